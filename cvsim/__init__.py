@@ -1,0 +1,28 @@
+"""cvsim: transient control-volume simulator for pressurised gas vessels and networks.
+
+Public API (imported lazily, so that ``cvsim --help`` starts fast)::
+
+    from cvsim import load_scenario, run
+    result = run("scenarios/nitrogen-blowdown.yaml")
+"""
+__version__ = "0.1.0"
+
+_LAZY = {
+    "run": ("cvsim.api", "run"),
+    "run_network": ("cvsim.api", "run_network"),
+    "load_scenario": ("cvsim.scenario", "load_scenario"),
+    "load_scenario_text": ("cvsim.scenario", "load_scenario_text"),
+    "Result": ("cvsim.result", "Result"),
+    "CAUTION": ("cvsim.result", "CAUTION"),
+    "write_run_outputs": ("cvsim.outputs", "write_run_outputs"),
+}
+
+__all__ = ["__version__", *_LAZY]
+
+
+def __getattr__(name):
+    if name in _LAZY:
+        import importlib
+        mod, attr = _LAZY[name]
+        return getattr(importlib.import_module(mod), attr)
+    raise AttributeError(f"module 'cvsim' has no attribute '{name}'")

@@ -1,0 +1,444 @@
+"""The model of a whole network: state-vector layout and right-hand side.
+
+State vector ``y`` (all SI):
+
+* per vessel: mass m [kg] and internal energy U [J] of its contents;
+* per heat term with states of its own (walls, later): those states;
+* bookkeeping integrals, which never feed back into the dynamics: per link the
+  mass that passed [kg], the energy that left the node the stream leaves [J]
+  and the energy that entered the node it enters [J]; per heat term the heat
+  into the gas [J]. They make the balances of the whole run exact to the
+  integrator's round-off (linear invariants are kept by every Runge-Kutta and
+  multistep method) and give the mass vented or delivered per link.
+
+Balances per vessel (first law for a control volume with rigid walls; flow work
+is carried inside the stagnation enthalpy of each stream):
+
+    dm/dt = sum(mdot_in) - sum(mdot_out)
+    dU/dt = Q_heat - p dV/dt + sum(mdot_in h0_in) - sum(mdot_out h0_out)
+
+with dV/dt = 0 for the rigid vessels built here (the term stays in the
+equations so that a moving boundary can be added). The thermodynamic state
+follows from the density m/V and the specific internal energy U/m through the
+fluid layer. A stream leaving a vessel carries the vessel's specific enthalpy;
+when two phases are present the outlet draws vapour (top outlet).
+
+The model is split by time: :meth:`Model.segment` prepares a
+:class:`Segment` for one stretch between breakpoints with the discrete states
+(valves open or shut, flows running or stopped) fixed; the solver integrates
+it, and starts a new segment at every breakpoint and switch.
+"""
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from . import network as nw
+from .errors import StateError
+from .flow.base import Flow
+from .flow.fixed import FixedFlowDevice
+from .flow.orifice import OrificeDevice
+from .fluid import make_fluid
+from .heat.loads import AmbientExchangeTerm, HeatLoadTerm
+from .signals import Constant
+
+#: run-time class of each device definition; later devices register here
+DEVICE_TYPES = {
+    nw.Orifice: OrificeDevice,
+    nw.FixedFlow: FixedFlowDevice,
+}
+
+#: run-time class of each heat-term definition
+HEAT_TYPES = {
+    nw.HeatLoad: HeatLoadTerm,
+    nw.AmbientExchange: AmbientExchangeTerm,
+}
+
+ACC_PER_LINK = 3  # mass, energy out of the node left, energy into the node entered
+
+
+class VesselRuntime:
+    __slots__ = ("name", "index", "volume", "i_m", "i_U", "T_hint", "heat")
+
+    def __init__(self, definition: nw.Vessel, index: int):
+        self.name = definition.name
+        self.index = index
+        self.volume = definition.volume
+        self.i_m = 2 * index
+        self.i_U = 2 * index + 1
+        self.T_hint = definition.initial.temperature
+        self.heat = []
+
+
+class Model:
+    """Run-time model of a :class:`cvsim.network.Network` (see module docstring)."""
+
+    def __init__(self, network: nw.Network):
+        self.network = network
+        f = network.fluid
+        self.fluid = make_fluid(f.name, f.model, f.molar_mass, f.cp, f.cp_temperature)
+        self.vessels = [VesselRuntime(v, i) for i, v in enumerate(network.vessels)]
+        self.reservoirs = list(network.reservoirs)
+        self.node_names = [v.name for v in network.vessels] + [r.name for r in network.reservoirs]
+        self.node_index = {n: i for i, n in enumerate(self.node_names)}
+        self.n_vessels = len(self.vessels)
+
+        # heat terms and their own states
+        offset = 2 * self.n_vessels
+        self.heat_terms = []
+        for vrt, vdef in zip(self.vessels, network.vessels):
+            for h in vdef.heat:
+                term = HEAT_TYPES[type(h)](h, vdef.name)
+                term.offset = offset
+                offset += term.n_states
+                vrt.heat.append(term)
+                self.heat_terms.append((vrt.index, term))
+        self.n_dynamic = offset
+
+        # links
+        self.links = list(network.links)
+        self.devices = []
+        for i, link in enumerate(self.links):
+            cls = DEVICE_TYPES[type(link.device)]
+            self.devices.append(cls(link.device, self.fluid, i, self.node_index[link.source],
+                                    self.node_index[link.target]))
+
+        # bookkeeping integrals
+        self.i_acc_links = offset
+        offset += ACC_PER_LINK * len(self.links)
+        self.i_acc_heat = offset
+        offset += len(self.heat_terms)
+        self.n_states = offset
+        self._reservoir_cache: dict[tuple[float, float], object] = {}
+
+    # ------------------------------------------------------------ set-up
+    def initial_states(self):
+        """Initial thermodynamic state of each vessel (from pressure and temperature)."""
+        out = []
+        for v in self.network.vessels:
+            try:
+                out.append(self.fluid.state_pt(v.initial.pressure, v.initial.temperature))
+            except StateError as exc:
+                raise StateError(f"initial state: {exc.detail}", where=f"vessel '{v.name}'",
+                                 time=0.0) from None
+        return out
+
+    def y0(self) -> np.ndarray:
+        y = np.zeros(self.n_states)
+        for vrt, st in zip(self.vessels, self.initial_states()):
+            m = st.rho * vrt.volume
+            y[vrt.i_m] = m
+            y[vrt.i_U] = m * st.u
+            vrt.T_hint = st.T
+        for vi, term in self.heat_terms:
+            init = term.initial_states(None)
+            y[term.offset:term.offset + term.n_states] = init
+        return y
+
+    def scales(self, y0: np.ndarray) -> np.ndarray:
+        """Characteristic size of each state, for absolute tolerances.
+
+        Vessel mass: its volume times the density at the highest pressure in
+        the network (so an evacuated vessel that fills gets a sensible scale);
+        internal energy: that mass times a characteristic specific energy.
+        """
+        p_ref = max([v.initial.pressure for v in self.network.vessels]
+                    + [r.pressure.extremes()[1] for r in self.reservoirs])
+        sc = np.ones(self.n_states)
+        m_total = 0.0
+        e_total = 0.0
+        for vrt, vdef in zip(self.vessels, self.network.vessels):
+            T = vdef.initial.temperature
+            try:
+                rho = self.fluid.state_pt(p_ref, T).rho
+            except StateError:
+                rho = y0[vrt.i_m] / vrt.volume
+            m = max(rho * vrt.volume, y0[vrt.i_m], 1e-12)
+            e = m * max(abs(y0[vrt.i_U]) / max(y0[vrt.i_m], 1e-30), 1000.0 * T)
+            sc[vrt.i_m], sc[vrt.i_U] = m, e
+            m_total += m
+            e_total += e
+        for vi, term in self.heat_terms:
+            sc[term.offset:term.offset + term.n_states] = 300.0
+        sc[self.i_acc_links:] = m_total
+        for k in range(len(self.links)):
+            j = self.i_acc_links + ACC_PER_LINK * k
+            sc[j + 1:j + 3] = e_total
+        sc[self.i_acc_heat:] = e_total
+        return sc
+
+    def breakpoints(self) -> list[float]:
+        bps = set()
+        for d in self.devices:
+            bps.update(d.breakpoints())
+        for vi, term in self.heat_terms:
+            bps.update(term.breakpoints())
+        for r in self.reservoirs:
+            bps.update(r.pressure.breakpoints)
+            bps.update(r.temperature.breakpoints)
+        return sorted(t for t in bps if t > 0.0 and math.isfinite(t))
+
+    def initial_discrete(self, y0: np.ndarray) -> dict:
+        seg = Segment(self, 0.0, 0.0, {})
+        snap = seg.states(0.0, y0)
+        discrete = {}
+        for d in self.devices:
+            discrete.update(d.initial_discrete(snap))
+        return discrete
+
+    def segment(self, t0: float, t1: float, discrete: dict) -> "Segment":
+        return Segment(self, t0, t1, discrete)
+
+    # ------------------------------------------------------------ helpers
+    def reservoir_state(self, p: float, T: float, name: str, t: float):
+        key = (p, T)
+        st = self._reservoir_cache.get(key)
+        if st is None:
+            try:
+                st = self.fluid.state_pt(p, T)
+            except StateError as exc:
+                raise StateError(exc.detail, where=f"reservoir '{name}'", time=t) from None
+            if len(self._reservoir_cache) > 256:
+                self._reservoir_cache.clear()
+            self._reservoir_cache[key] = st
+        return st
+
+    def columns(self) -> list[tuple[str, str, str]]:
+        """(column name, SI unit, kind) of each observed quantity, in order."""
+        cols = [("time", "s", "time")]
+        for v in self.vessels:
+            for q, u in (("pressure", "Pa"), ("temperature", "K"), ("mass", "kg"),
+                         ("density", "kg/m3"), ("specific_enthalpy", "J/kg"),
+                         ("specific_internal_energy", "J/kg"), ("specific_entropy", "J/(kg K)"),
+                         ("vapour_quality", "-")):
+                cols.append((f"{v.name}.{q}", u, "vessel"))
+            for term in v.heat:
+                cols.append((f"{v.name}.heat.{term.name}", "W", "heat"))
+        for r in self.reservoirs:
+            cols.append((f"{r.name}.pressure", "Pa", "reservoir"))
+            cols.append((f"{r.name}.temperature", "K", "reservoir"))
+        for link in self.links:
+            cols.append((f"{link.name}.mass_flow", "kg/s", "link"))
+            cols.append((f"{link.name}.choked", "-", "link"))
+        return cols
+
+
+class States:
+    """Node states at one (t, y): vessels first, then reservoirs; ``outflow``
+    are the states a stream leaving each node carries."""
+
+    __slots__ = ("t", "states", "outflow")
+
+    def __init__(self, t, states, outflow):
+        self.t = t
+        self.states = states
+        self.outflow = outflow
+
+
+class Segment:
+    """The model on one stretch of time [t0, t1] with fixed discrete states."""
+
+    def __init__(self, model: Model, t0: float, t1: float, discrete: dict):
+        self.model = model
+        self.t0 = t0
+        self.t1 = t1
+        self.midpoint = 0.5 * (t0 + t1) if math.isfinite(t1) else t0 + 1.0
+        self.discrete = discrete
+        self._coef: dict[int, tuple[float, float]] = {}
+        self._key = None
+        self._states = None
+        self._flows_key = None
+        self._flows = None
+        self.last_error: StateError | None = None
+        self.rhs_calls = 0
+        self.jac_calls = 0
+        n = model.n_states
+        self._dydt = np.zeros(n)
+
+    # ---------------------------------------------------------- signals
+    def signal(self, sig, t: float) -> float:
+        if type(sig) is Constant:
+            return sig.value
+        c = self._coef.get(id(sig))
+        if c is None:
+            c = sig.linear_on(self.t0, self.t1)
+            self._coef[id(sig)] = c
+        return c[0] + c[1] * (t - self.t0)
+
+    # ---------------------------------------------------------- states
+    def states(self, t: float, y: np.ndarray) -> States:
+        key = (t, y.tobytes())
+        if key == self._key:
+            return self._states
+        m = self.model
+        fluid = m.fluid
+        states = []
+        outflow = []
+        for v in m.vessels:
+            mass = y[v.i_m]
+            try:
+                st = fluid.state_du(mass / v.volume, y[v.i_U] / mass if mass > 0 else math.nan,
+                                    v.T_hint)
+            except StateError as exc:
+                raise StateError(exc.detail, where=f"vessel '{v.name}'", time=t) from None
+            v.T_hint = st.T
+            states.append(st)
+            if st.two_phase:
+                outflow.append(fluid.saturated_vapour_at_p(st.p))
+            else:
+                outflow.append(st)
+        for r in m.reservoirs:
+            p = self.signal(r.pressure, t)
+            T = self.signal(r.temperature, t)
+            st = m.reservoir_state(p, T, r.name, t)
+            states.append(st)
+            outflow.append(st)
+        s = States(t, states, outflow)
+        self._key, self._states = key, s
+        return s
+
+    def flows(self, t: float, y: np.ndarray) -> tuple[States, list[Flow]]:
+        s = self.states(t, y)
+        if self._flows_key is self._key:
+            return s, self._flows
+        flows = []
+        for d in self.model.devices:
+            try:
+                flows.append(d.flow(t, s.outflow[d.source], s.outflow[d.target], self))
+            except StateError as exc:
+                name = self.model.links[d.index].name
+                raise StateError(exc.detail, where=f"link '{name}'", time=t) from None
+        self._flows_key, self._flows = self._key, flows
+        return s, flows
+
+    # ---------------------------------------------------------- dynamics
+    def rhs(self, t: float, y: np.ndarray) -> np.ndarray:
+        """dy/dt. On a state outside the equation of state's range it returns
+        NaN (so the integrator rejects the step and retries smaller) and keeps
+        the error for the message if the integrator cannot go on."""
+        self.rhs_calls += 1
+        try:
+            return self._rhs(t, y)
+        except StateError as exc:
+            self.last_error = exc
+            return np.full(self.model.n_states, np.nan)
+
+    def _rhs(self, t: float, y: np.ndarray) -> np.ndarray:
+        m = self.model
+        s, flows = self.flows(t, y)
+        dydt = np.zeros(m.n_states)
+        nv = m.n_vessels
+        acc = m.i_acc_links
+        for k, (d, f) in enumerate(zip(m.devices, flows)):
+            mdot = f.mdot
+            if mdot == 0.0:
+                continue
+            if mdot > 0.0:
+                e_src, e_tgt = mdot * f.h_from, mdot * f.h_to
+            else:
+                e_src, e_tgt = mdot * f.h_to, mdot * f.h_from
+            if d.source < nv:
+                dydt[2 * d.source] -= mdot
+                dydt[2 * d.source + 1] -= e_src
+            if d.target < nv:
+                dydt[2 * d.target] += mdot
+                dydt[2 * d.target + 1] += e_tgt
+            j = acc + ACC_PER_LINK * k
+            dydt[j] = mdot
+            dydt[j + 1] = e_src
+            dydt[j + 2] = e_tgt
+        jh = m.i_acc_heat
+        for k, (vi, term) in enumerate(m.heat_terms):
+            own = y[term.offset:term.offset + term.n_states]
+            q = term.evaluate(t, s.states[vi], own, self, dydt)
+            dydt[2 * vi + 1] += q
+            dydt[jh + k] = q
+        return dydt
+
+    def jac(self, t: float, y: np.ndarray) -> np.ndarray:
+        """Finite-difference Jacobian over the dynamic states only (the
+        bookkeeping integrals never feed back, so their columns are zero)."""
+        self.jac_calls += 1
+        m = self.model
+        n = m.n_states
+        f0 = self.rhs(t, y)
+        J = np.zeros((n, n))
+        eps = 1.4901161193847656e-08  # sqrt(machine epsilon)
+        yp = y.copy()
+        for j in range(m.n_dynamic):
+            h = eps * max(abs(y[j]), self.scale[j] if self.scale is not None else 1.0)
+            yp[j] = y[j] + h
+            J[:, j] = (self.rhs(t, yp) - f0) / h
+            yp[j] = y[j]
+        return J
+
+    scale = None
+
+    # ---------------------------------------------------------- events
+    def events(self, stop_conditions) -> list:
+        """Event functions for scipy (terminal), each with ``.action``:
+        ``("stop", condition, text)`` or ``("switch", Switch, text)``."""
+        m = self.model
+        evs = []
+        for cond in stop_conditions:
+            i = m.node_index[cond.node]
+            sign = 1.0 if cond.direction == "above" else -1.0
+            fn = _quantity_event(self, i, cond.quantity, cond.value)
+            fn.terminal = True
+            fn.direction = sign
+            fn.action = ("stop", cond, cond.describe())
+            evs.append(fn)
+        for d in m.devices:
+            for sw in d.switches(self.discrete):
+                fn = _switch_event(self, sw)
+                fn.terminal = True
+                fn.direction = sw.direction
+                fn.action = ("switch", sw, f"{m.links[d.index].name}: {sw.describe}")
+                evs.append(fn)
+        return evs
+
+    # ---------------------------------------------------------- output
+    def observe(self, t: float, y: np.ndarray) -> list[float]:
+        """One row of the observed quantities, in the order of :meth:`Model.columns`."""
+        m = self.model
+        s, flows = self.flows(t, y)
+        row = [t]
+        nv = m.n_vessels
+        for v in m.vessels:
+            st = s.states[v.index]
+            row += [st.p, st.T, y[v.i_m], st.rho, st.h, st.u, st.s, st.quality]
+            for term in v.heat:
+                own = y[term.offset:term.offset + term.n_states]
+                row.append(term.evaluate(t, st, own, self, np.zeros(m.n_states)))
+        for k, r in enumerate(m.reservoirs):
+            st = s.states[nv + k]
+            row += [st.p, st.T]
+        for f in flows:
+            row += [f.mdot, 1.0 if f.choked else 0.0]
+        return row
+
+
+def _quantity_event(seg: Segment, node: int, quantity: str, value: float):
+    nv = seg.model.n_vessels
+
+    def g(t, y):
+        if quantity == "mass":
+            return (y[2 * node] if node < nv else math.inf) - value
+        try:
+            st = seg.states(t, y).states[node]
+        except StateError as exc:
+            seg.last_error = exc
+            return math.nan
+        return (st.p if quantity == "pressure" else st.T) - value
+    return g
+
+
+def _switch_event(seg: Segment, sw):
+    def g(t, y):
+        try:
+            return sw.function(t, seg.states(t, y))
+        except StateError as exc:
+            seg.last_error = exc
+            return math.nan
+    return g

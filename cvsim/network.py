@@ -1,0 +1,243 @@
+"""The network a scenario describes, as frozen definitions in SI units.
+
+This is the hand-over point between the scenario reader (which knows YAML and
+unit text) and the model (which knows only SI numbers). Nothing here parses or
+validates text: the scenario reader guarantees that every value is present,
+in SI and physically possible before it builds these objects.
+
+Words: a *node* is a vessel (its state changes) or a reservoir (its state is
+imposed); a *link* joins two nodes through a flow *device*; a *heat term*
+adds heat to a vessel's gas.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from .signals import Constant, Signal
+
+# --------------------------------------------------------------------- fluid
+
+
+@dataclass(frozen=True)
+class FluidSpec:
+    """Which fluid and which property model.
+
+    name        CoolProp fluid name (pure or pseudo-pure), e.g. ``Nitrogen``.
+    model       ``real`` (CoolProp HEOS) or ``ideal-gas`` (constant heat capacities).
+    molar_mass  [kg/mol] ideal-gas model only; ``None``: CoolProp's value.
+    cp          [J/(kg K)] ideal-gas model only; ``None``: CoolProp's ideal-gas
+                value at ``cp_temperature``.
+    """
+
+    name: str
+    model: str = "real"
+    molar_mass: float | None = None
+    cp: float | None = None
+    cp_temperature: float = 298.15
+
+
+# ------------------------------------------------------------------ geometry
+
+
+@dataclass(frozen=True)
+class Geometry:
+    """Inside shape of a rigid vessel.
+
+    volume         [m3] internal volume
+    kind           ``volume`` (only the volume is known), ``cylinder`` or ``sphere``
+    inner_diameter [m] cylinder or sphere; ``None`` for ``volume``
+    length         [m] cylinder length tangent to tangent (straight part); ``None`` otherwise
+    orientation    ``vertical`` or ``horizontal`` (cylinders)
+    heads          head type of a cylinder: ``flat``, ``2:1-ellipsoidal``,
+                   ``torispherical``, ``hemispherical``
+    inner_area     [m2] inside surface area (for heat transfer)
+    height         [m] inside height (for natural convection); ``None`` if unknown
+    """
+
+    volume: float
+    kind: str = "volume"
+    inner_diameter: float | None = None
+    length: float | None = None
+    orientation: str = "vertical"
+    heads: str = "flat"
+    inner_area: float | None = None
+    height: float | None = None
+
+
+# ----------------------------------------------------------------- heat terms
+
+
+@dataclass(frozen=True)
+class HeatLoad:
+    """A heat rate into the gas [W] (negative: heat removed), constant or a table."""
+
+    name: str
+    rate: Signal
+
+
+@dataclass(frozen=True)
+class AmbientExchange:
+    """Heat exchange with surroundings: Q = UA * (T_ambient - T_gas) [W].
+
+    ua      [W/K] overall coefficient times area
+    ambient [K] surrounding temperature, constant or a table in time
+    """
+
+    name: str
+    ua: float
+    ambient: Signal
+
+
+HeatTerm = HeatLoad | AmbientExchange
+
+
+# -------------------------------------------------------------------- nodes
+
+
+@dataclass(frozen=True)
+class InitialState:
+    """Initial state of a vessel's contents: pressure [Pa] and temperature [K]."""
+
+    pressure: float
+    temperature: float
+
+
+@dataclass(frozen=True)
+class Vessel:
+    name: str
+    geometry: Geometry
+    initial: InitialState
+    heat: tuple[HeatTerm, ...] = ()
+
+    @property
+    def volume(self) -> float:
+        return self.geometry.volume
+
+
+@dataclass(frozen=True)
+class Reservoir:
+    """A node with imposed pressure [Pa] and temperature [K] (constant or tables)."""
+
+    name: str
+    pressure: Signal
+    temperature: Signal
+
+
+# ------------------------------------------------------------------ devices
+
+
+@dataclass(frozen=True)
+class Orifice:
+    """Restriction orifice or nozzle.
+
+    area                  [m2] geometric flow area
+    discharge_coefficient [-]
+    flow_model            ``real-gas`` (isentropic nozzle on the real equation of
+                          state) or ``ideal-gas`` (perfect-gas nozzle with the local
+                          heat-capacity ratio)
+    open_from, open_until [s] the orifice passes flow only in this time window
+                          (an isolation valve opening or closing instantly)
+    """
+
+    area: float
+    discharge_coefficient: float
+    flow_model: str = "real-gas"
+    open_from: float = 0.0
+    open_until: float = float("inf")
+
+
+@dataclass(frozen=True)
+class FixedFlow:
+    """A forced mass flow [kg/s] from ``source`` to ``target`` (compressor, pump, controller).
+
+    mass_flow            [kg/s] constant or a table in time (>= 0)
+    delivery_temperature [K] temperature of the stream as it enters the
+                         receiving vessel, at that vessel's pressure; ``None``:
+                         the stream carries the stagnation enthalpy of the
+                         source node (a throttling flow controller)
+    stop_below           [Pa] the flow stops while the source node's pressure is
+                         below this (protects a vessel from being drawn empty);
+                         ``None``: no such stop
+    """
+
+    mass_flow: Signal
+    delivery_temperature: float | None = None
+    stop_below: float | None = None
+
+
+Device = Orifice | FixedFlow
+
+
+@dataclass(frozen=True)
+class Link:
+    """A flow device between two nodes; positive flow goes ``source`` -> ``target``."""
+
+    name: str
+    source: str
+    target: str
+    device: Device
+
+
+# ------------------------------------------------------------------- the run
+
+
+@dataclass(frozen=True)
+class StopCondition:
+    """Stop the run when ``quantity`` of ``node`` goes ``direction`` ``value``.
+
+    quantity  ``pressure`` [Pa], ``temperature`` [K] or ``mass`` [kg]
+    direction ``below`` or ``above``
+    """
+
+    node: str
+    quantity: str
+    direction: str
+    value: float
+
+    def describe(self) -> str:
+        return f"{self.node} {self.quantity} {self.direction} {self.value:g}"
+
+
+@dataclass(frozen=True)
+class RunSettings:
+    """How to integrate and record.
+
+    end_time     [s]
+    record_every [s] interval of the recorded histories (event times are added exactly)
+    stop         conditions that end the run early (first one met wins)
+    method       scipy solve_ivp method
+    rtol, atol_scale  relative tolerance; absolute tolerance as a fraction of each
+                 state's initial scale
+    max_step     [s] largest solver step (``inf``: no limit)
+    """
+
+    end_time: float
+    record_every: float
+    stop: tuple[StopCondition, ...] = ()
+    method: str = "LSODA"
+    rtol: float = 1e-6
+    atol_scale: float = 1e-9
+    max_step: float = float("inf")
+
+
+@dataclass(frozen=True)
+class Network:
+    """Everything the model needs: fluid, nodes, links and run settings (SI)."""
+
+    title: str
+    fluid: FluidSpec
+    vessels: tuple[Vessel, ...]
+    reservoirs: tuple[Reservoir, ...] = ()
+    links: tuple[Link, ...] = ()
+    run: RunSettings = field(default_factory=lambda: RunSettings(end_time=60.0, record_every=1.0))
+    atmosphere: float = 101325.0  # [Pa] the local atmosphere gauge pressures refer to
+
+    def node_names(self) -> tuple[str, ...]:
+        return tuple(v.name for v in self.vessels) + tuple(r.name for r in self.reservoirs)
+
+
+__all__ = [
+    "AmbientExchange", "Constant", "Device", "FixedFlow", "FluidSpec", "Geometry",
+    "HeatLoad", "HeatTerm", "InitialState", "Link", "Network", "Orifice", "Reservoir",
+    "RunSettings", "StopCondition", "Vessel",
+]

@@ -1,0 +1,263 @@
+"""Results of a run: histories, totals, balances and the summary.
+
+A :class:`Result` holds SI arrays. ``result["receiver.pressure"]`` is the
+recorded history of one column (names as in :meth:`Result.columns`),
+``result.time`` the recorded times; ``result.fine(...)`` the same at every
+accepted solver step. :meth:`Result.summary` gives the figures engineers
+look for, each with its time, the balances of the whole run and the caution.
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from .model import ACC_PER_LINK, Model
+from .network import Network
+from .solve import RawRun
+
+CAUTION = ("Screening estimate - verify against the governing codes (e.g. ASME Section VIII, "
+           "API 520/521, ISO 4126, ISO 23251, local regulations) and have it reviewed by a "
+           "qualified engineer.")
+
+
+@dataclass
+class Result:
+    network: Network
+    status: str
+    message: str
+    columns: list            # (name, SI unit, kind)
+    data: np.ndarray         # recorded rows x columns (SI)
+    fine_data: np.ndarray    # every accepted step x columns (SI)
+    events: list             # (time [s], text)
+    stats: dict
+    totals: dict             # per link: mass [kg], energy out [J], energy in [J]; per heat term
+    balance: dict            # mass and energy closure of the whole run
+    assumptions: list        # model choices, in words
+    provenance: dict = field(default_factory=dict)  # versions, scenario hash
+
+    # -------------------------------------------------------------- access
+    @property
+    def ok(self) -> bool:
+        return self.status != "failed"
+
+    @property
+    def time(self) -> np.ndarray:
+        return self.data[:, 0]
+
+    def names(self) -> list[str]:
+        return [c[0] for c in self.columns]
+
+    def unit(self, name: str) -> str:
+        return self.columns[self._col(name)][1]
+
+    def _col(self, name: str) -> int:
+        for i, c in enumerate(self.columns):
+            if c[0] == name:
+                return i
+        raise KeyError(f"no column '{name}'; columns are: {', '.join(self.names())}")
+
+    def __getitem__(self, name: str) -> np.ndarray:
+        return self.data[:, self._col(name)]
+
+    def fine(self, name: str) -> np.ndarray:
+        """History of one column at every accepted solver step (and recorded points)."""
+        return self._all()[:, self._col(name)]
+
+    def _all(self) -> np.ndarray:
+        if self.fine_data.size == 0:
+            return self.data
+        both = np.vstack([self.data, self.fine_data])
+        return both[np.argsort(both[:, 0], kind="stable")]
+
+    def vessel_names(self) -> list[str]:
+        return [v.name for v in self.network.vessels]
+
+    def link_names(self) -> list[str]:
+        return [k.name for k in self.network.links]
+
+    def to_dataframe(self):
+        """The recorded histories as a pandas DataFrame (SI units; needs pandas)."""
+        import pandas as pd
+        return pd.DataFrame(self.data, columns=[f"{n} [{u}]" for n, u, _ in self.columns])
+
+    # -------------------------------------------------------------- summary
+    def extreme(self, name: str, kind: str) -> tuple[float, float]:
+        """(value, time) of the maximum (``kind='max'``) or minimum of a column,
+        over recorded points and every solver step."""
+        allrows = self._all()
+        col = allrows[:, self._col(name)]
+        if np.all(np.isnan(col)):
+            return (math.nan, math.nan)
+        i = int(np.nanargmax(col) if kind == "max" else np.nanargmin(col))
+        return float(col[i]), float(allrows[i, 0])
+
+    def summary(self) -> dict:
+        """Figures for the summary (SI), plain data ready for JSON."""
+        out = {
+            "title": self.network.title,
+            "status": self.status,
+            "message": self.message,
+            "end_time_s": float(self.time[-1]) if len(self.data) else 0.0,
+            "vessels": {},
+            "links": {},
+            "heat": {},
+            "events": [{"time_s": float(t), "event": e} for t, e in self.events],
+            "balance": self.balance,
+            "solver": self.stats,
+            "assumptions": self.assumptions,
+            "provenance": self.provenance,
+            "caution": CAUTION,
+        }
+        if not len(self.data):
+            return out
+        for v in self.network.vessels:
+            n = v.name
+            d = {}
+            for q, key in (("pressure", "pressure_Pa"), ("temperature", "temperature_K")):
+                vmax, tmax = self.extreme(f"{n}.{q}", "max")
+                vmin, tmin = self.extreme(f"{n}.{q}", "min")
+                d[f"max_{key}"] = vmax
+                d[f"max_{key[:-2]}_time_s"] = tmax
+                d[f"min_{key}"] = vmin
+                d[f"min_{key[:-2]}_time_s"] = tmin
+            m = self[f"{n}.mass"]
+            d["initial_mass_kg"] = float(m[0])
+            d["final_mass_kg"] = float(m[-1])
+            d["final_pressure_Pa"] = float(self[f"{n}.pressure"][-1])
+            d["final_temperature_K"] = float(self[f"{n}.temperature"][-1])
+            q = self.fine(f"{n}.vapour_quality")
+            if np.any(~np.isnan(q)):
+                t_all = self._all()[:, 0]
+                first = int(np.argmax(~np.isnan(q)))
+                d["two_phase_from_s"] = float(t_all[first])
+                d["min_vapour_quality"] = float(np.nanmin(q))
+            out["vessels"][n] = d
+        for link in self.network.links:
+            n = link.name
+            flow = self[f"{n}.mass_flow"]
+            fmax, tmax = self.extreme(f"{n}.mass_flow", "max")
+            fmin, tmin = self.extreme(f"{n}.mass_flow", "min")
+            tot = self.totals["links"][n]
+            out["links"][n] = {
+                "from": link.source, "to": link.target, "device": type(link.device).__name__,
+                "mass_passed_kg": tot["mass_kg"],
+                "max_mass_flow_kg_s": fmax, "max_mass_flow_time_s": tmax,
+                "min_mass_flow_kg_s": fmin, "min_mass_flow_time_s": tmin,
+                "final_mass_flow_kg_s": float(flow[-1]),
+                "energy_added_by_device_J": tot["energy_in_J"] - tot["energy_out_J"],
+            }
+        for name, q in self.totals["heat"].items():
+            out["heat"][name] = {"heat_into_gas_J": q}
+        return out
+
+
+def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> Result:
+    """Assemble a :class:`Result` from the integrator's output."""
+    cols = raw.columns
+    data = np.array(raw.rows, dtype=float) if raw.rows else np.zeros((0, len(cols)))
+    fine = np.array(raw.fine_rows, dtype=float) if raw.fine_rows else np.zeros((0, len(cols)))
+    totals, balance = _balances(model, raw)
+    return Result(network=model.network, status=raw.status, message=raw.message, columns=cols,
+                  data=data, fine_data=fine, events=list(raw.events), stats=dict(raw.stats),
+                  totals=totals, balance=balance, assumptions=assumptions(model),
+                  provenance=dict(provenance or {}))
+
+
+def _balances(model: Model, raw: RawRun):
+    """Mass and energy balance of the vessels over the whole run.
+
+    closure = change of content - (inflow - outflow across the boundary + heat),
+    relative to the largest of the initial content, final content and the
+    throughput. Links between two vessels cancel; links to reservoirs cross the
+    boundary. The energy a device adds (compressor work less aftercooling) is
+    part of what it delivers.
+    """
+    links = {}
+    heat = {}
+    y0, y1 = raw.y_initial, raw.y_final
+    if y0 is None or y1 is None:
+        return {"links": {k.name: {"mass_kg": 0.0, "energy_out_J": 0.0, "energy_in_J": 0.0}
+                          for k in model.links}, "heat": {}}, {}
+    nv = model.n_vessels
+    m0 = sum(y0[2 * i] for i in range(nv))
+    m1 = sum(y1[2 * i] for i in range(nv))
+    U0 = sum(y0[2 * i + 1] for i in range(nv))
+    U1 = sum(y1[2 * i + 1] for i in range(nv))
+    net_m = 0.0
+    net_e = 0.0
+    through_m = 0.0
+    through_e = 0.0
+    for k, (link, d) in enumerate(zip(model.links, model.devices)):
+        j = model.i_acc_links + ACC_PER_LINK * k
+        M, Eout, Ein = float(y1[j]), float(y1[j + 1]), float(y1[j + 2])
+        links[link.name] = {"mass_kg": M, "energy_out_J": Eout, "energy_in_J": Ein}
+        if d.target < nv:
+            net_m += M
+            net_e += Ein
+        if d.source < nv:
+            net_m -= M
+            net_e -= Eout
+        through_m += abs(M)
+        through_e += abs(Ein) + abs(Eout)
+    for k, (vi, term) in enumerate(model.heat_terms):
+        q = float(y1[model.i_acc_heat + k])
+        heat[f"{term.vessel}.{term.name}"] = q
+        net_e += q
+        through_e += abs(q)
+    res_m = (m1 - m0) - net_m
+    res_e = (U1 - U0) - net_e
+    ref_m = max(m0, m1, through_m, 1e-300)
+    ref_e = max(abs(U0), abs(U1), through_e, 1e-300)
+    balance = {
+        "initial_mass_kg": m0, "final_mass_kg": m1, "net_mass_in_kg": net_m,
+        "mass_residual_kg": res_m, "mass_closure_relative": abs(res_m) / ref_m,
+        "initial_internal_energy_J": U0, "final_internal_energy_J": U1,
+        "net_energy_in_J": net_e, "energy_residual_J": res_e,
+        "energy_closure_relative": abs(res_e) / ref_e,
+    }
+    return {"links": links, "heat": heat}, balance
+
+
+def assumptions(model: Model) -> list[str]:
+    """The model choices of this run, in words (the assumption register)."""
+    net = model.network
+    f = net.fluid
+    out = []
+    if f.model == "real":
+        out.append(f"Fluid properties: {f.name}, Helmholtz-energy equation of state (CoolProp "
+                   "HEOS), equilibrium single- and two-phase states.")
+    else:
+        fl = model.fluid
+        out.append(f"Fluid properties: {f.name} as an ideal gas with constant heat capacities "
+                   f"(M = {fl.molar_mass * 1000:.4f} g/mol, cp = {fl.cp:.1f} J/(kg K), "
+                   f"gamma = {fl.gamma:.4f}).")
+    out.append("Vessels are rigid and their contents well mixed (one uniform state per vessel).")
+    out.append("A stream leaving a vessel carries the vessel's specific enthalpy; with two phases "
+               "present the outlet draws saturated vapour.")
+    kinds = {type(link.device).__name__ for link in net.links}
+    if "Orifice" in kinds:
+        models = sorted({link.device.flow_model for link in net.links
+                         if type(link.device).__name__ == "Orifice"})
+        for fm in models:
+            if fm == "real-gas":
+                out.append("Orifices (real-gas form): isentropic nozzle on the real equation of "
+                           "state, choked at the maximum mass flux, times the discharge "
+                           "coefficient.")
+            else:
+                out.append("Orifices (ideal-gas form): perfect-gas nozzle with the upstream "
+                           "heat-capacity ratio cp/cv and density, times the discharge "
+                           "coefficient.")
+        out.append("Below a relative pressure difference of 1e-4 the orifice flow is taken "
+                   "linear in the difference (regularisation of the square-root law).")
+    if "FixedFlow" in kinds:
+        out.append("Fixed flows are imposed whatever the pressures; with a delivery temperature "
+                   "the stream enters at that temperature and the receiving vessel's pressure.")
+    if not any(v.heat for v in net.vessels):
+        out.append("No heat exchange with the vessel walls or surroundings (adiabatic vessels): "
+                   "walls would damp the temperature swings.")
+    else:
+        out.append("Heat terms as stated per vessel; no wall heat capacity unless a wall is "
+                   "modelled.")
+    return out

@@ -1,0 +1,38 @@
+"""Shared helpers for the tests: small networks built directly in SI."""
+import math
+
+import pytest
+
+from cvsim import network as nw
+from cvsim.signals import Constant
+
+R_U = 8.314462618
+M_AIR = 0.0289647  # [kg/mol] dry air (CRC Handbook of Chemistry and Physics), from memory
+
+
+def ideal_air(gamma: float = 1.4) -> nw.FluidSpec:
+    """A perfect gas with the molar mass of air and cp chosen for the given gamma."""
+    R = R_U / M_AIR
+    return nw.FluidSpec("Air", model="ideal-gas", molar_mass=M_AIR, cp=gamma / (gamma - 1) * R)
+
+
+def orifice_area(d: float) -> float:
+    return math.pi * d * d / 4.0
+
+
+def blowdown_network(fluid, p0, T0, volume=1.0, d=0.01, cd=0.84, flow_model="real-gas",
+                     p_stop=None, end=2000.0, heat=(), p_back=101325.0, rtol=1e-8,
+                     record_every=1.0, method="LSODA"):
+    stop = (nw.StopCondition("tank", "pressure", "below", p_stop),) if p_stop else ()
+    return nw.Network(
+        title="test blowdown", fluid=fluid,
+        vessels=(nw.Vessel("tank", nw.Geometry(volume), nw.InitialState(p0, T0), heat=heat),),
+        reservoirs=(nw.Reservoir("outside", Constant(p_back), Constant(T0)),),
+        links=(nw.Link("vent", "tank", "outside", nw.Orifice(orifice_area(d), cd, flow_model)),),
+        run=nw.RunSettings(end_time=end, record_every=record_every, stop=stop, rtol=rtol,
+                           method=method))
+
+
+@pytest.fixture
+def air14():
+    return ideal_air(1.4)
