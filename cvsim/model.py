@@ -179,6 +179,14 @@ class Model:
             bps.update(r.temperature.breakpoints)
         return sorted(t for t in bps if t > 0.0 and math.isfinite(t))
 
+    def schedule(self) -> list[tuple[float, str]]:
+        """Scheduled changes of the devices, (time [s], text), in time order."""
+        out = []
+        for d in self.devices:
+            name = self.links[d.index].name
+            out += [(t, f"{name}: {text}") for t, text in d.schedule()]
+        return sorted(out, key=lambda e: e[0])
+
     def initial_discrete(self, y0: np.ndarray) -> dict:
         seg = Segment(self, 0.0, 0.0, {})
         snap = seg.states(0.0, y0)

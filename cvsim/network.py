@@ -155,14 +155,18 @@ class FixedFlow:
                          receiving vessel, at that vessel's pressure; ``None``:
                          the stream carries the stagnation enthalpy of the
                          source node (a throttling flow controller)
-    stop_below           [Pa] the flow stops while the source node's pressure is
-                         below this (protects a vessel from being drawn empty);
-                         ``None``: no such stop
+    stop_below           [Pa] the flow stops when the source node's pressure falls
+                         to this (a low-pressure cut-off that keeps a vessel from
+                         being drawn empty); ``None``: no cut-off
+    restart_above        [Pa] after a cut-off the flow restarts when the source
+                         pressure rises to this (the switch's deadband);
+                         ``None``: it stays stopped (a latching cut-off)
     """
 
     mass_flow: Signal
     delivery_temperature: float | None = None
     stop_below: float | None = None
+    restart_above: float | None = None
 
 
 Device = Orifice | FixedFlow
@@ -195,7 +199,13 @@ class StopCondition:
     value: float
 
     def describe(self) -> str:
-        return f"{self.node} {self.quantity} {self.direction} {self.value:g}"
+        if self.quantity == "pressure":
+            v = f"{self.value / 1e5:.6g} bar a"
+        elif self.quantity == "temperature":
+            v = f"{self.value - 273.15:.6g} degC"
+        else:
+            v = f"{self.value:.6g} kg"
+        return f"{self.node} {self.quantity} {self.direction} {v}"
 
 
 @dataclass(frozen=True)

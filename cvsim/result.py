@@ -115,13 +115,13 @@ class Result:
         for v in self.network.vessels:
             n = v.name
             d = {}
-            for q, key in (("pressure", "pressure_Pa"), ("temperature", "temperature_K")):
+            for q, unit in (("pressure", "Pa"), ("temperature", "K")):
                 vmax, tmax = self.extreme(f"{n}.{q}", "max")
                 vmin, tmin = self.extreme(f"{n}.{q}", "min")
-                d[f"max_{key}"] = vmax
-                d[f"max_{key[:-2]}_time_s"] = tmax
-                d[f"min_{key}"] = vmin
-                d[f"min_{key[:-2]}_time_s"] = tmin
+                d[f"max_{q}_{unit}"] = vmax
+                d[f"max_{q}_time_s"] = tmax
+                d[f"min_{q}_{unit}"] = vmin
+                d[f"min_{q}_time_s"] = tmin
             m = self[f"{n}.mass"]
             d["initial_mass_kg"] = float(m[0])
             d["final_mass_kg"] = float(m[-1])

@@ -30,6 +30,13 @@ from .model import Model
 #: that started it and are not acted on again
 _EVENT_AT_START = 1e-12
 
+#: chattering guard: this many switches within a time span of CHATTER_SPAN
+#: times the run's end time end the run with a message
+CHATTER_COUNT = 50
+CHATTER_SPAN = 1e-6
+#: and no run handles more switches than this
+MAX_SWITCHES = 20000
+
 
 @dataclass
 class RawRun:
@@ -87,8 +94,12 @@ def integrate(model: Model, progress=None) -> RawRun:
         raw.stats = stats
         return raw
 
+    schedule = [e for e in model.schedule() if e[0] <= t_end]
+    switch_times: list[float] = []
     bi = 0
     while t < t_end:
+        while schedule and schedule[0][0] <= t:
+            raw.events.append(schedule.pop(0))
         while bi < len(breakpoints) - 1 and breakpoints[bi] <= t:
             bi += 1
         t1 = breakpoints[bi]
@@ -150,6 +161,19 @@ def integrate(model: Model, progress=None) -> RawRun:
         discrete = dict(discrete)
         discrete[what.key] = what.new_value
         raw.events.append((t, text))
+        switch_times.append(t)
+        if len(switch_times) >= CHATTER_COUNT and (
+                t - switch_times[-CHATTER_COUNT] <= CHATTER_SPAN * max(t_end, 1.0)):
+            return _fail(raw, stats, f"{CHATTER_COUNT} switches within "
+                         f"{CHATTER_SPAN * max(t_end, 1.0):.3g} s at t = {t:.6g} s ({text}): "
+                         "the device chatters. Give its switch a deadband (e.g. "
+                         "restart_above for a cut-off, a larger blowdown for a relief valve).",
+                         y, t, model, evals0, wall0)
+        if len(switch_times) > MAX_SWITCHES:
+            return _fail(raw, stats, f"more than {MAX_SWITCHES} switches by t = {t:.6g} s "
+                         f"(last: {text}); the run is cycling too often to integrate. Widen "
+                         "the device's deadband or shorten the run.", y, t, model, evals0,
+                         wall0)
     else:
         raw.message = f"end time reached ({t_end:g} s)"
 

@@ -76,6 +76,10 @@ class Device:
     def breakpoints(self) -> tuple[float, ...]:
         return ()
 
+    def schedule(self) -> list[tuple[float, str]]:
+        """Scheduled changes, (time [s], what happens), for the event log."""
+        return []
+
     def initial_discrete(self, snapshot) -> dict:
         """Discrete states this device keeps (name -> initial value) at the start."""
         return {}

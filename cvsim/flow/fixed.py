@@ -14,34 +14,49 @@ class FixedFlowDevice(Device):
     of the machine, booked as energy added by the device); otherwise with the
     source's enthalpy (an isenthalpic flow controller).
 
-    With ``stop_below`` the flow stops while the source pressure is below that
-    value (a discrete switch with a relative hysteresis of 1e-6 so that the
-    solver does not re-trigger at the switching point).
+    With ``stop_below`` the flow stops when the source pressure falls to that
+    value (a discrete switch found by a solver event); it restarts when the
+    source pressure rises to ``restart_above`` if one is given (a pressure
+    switch with a deadband), otherwise it stays stopped. A switch without a
+    deadband would chatter: heat flowing back into a vessel whose draw has just
+    stopped raises its pressure again at once.
     """
 
     kind = "fixed-flow"
-    HYSTERESIS = 1e-6
 
     def breakpoints(self):
         return tuple(self.d.mass_flow.breakpoints)
+
+    def schedule(self):
+        sig = self.d.mass_flow
+        out = []
+        if hasattr(sig, "times"):
+            for (t0, v0), (t1, v1) in zip(zip(sig.times, sig.values),
+                                          zip(sig.times[1:], sig.values[1:])):
+                if t0 == t1 and v0 != v1:
+                    out.append((t1, f"flow steps from {v0:.4g} to {v1:.4g} kg/s"))
+        return out
 
     def initial_discrete(self, snapshot):
         if self.d.stop_below is None:
             return {}
         p = snapshot.states[self.source].p
-        return {self.key("running"): p >= self.d.stop_below}
+        return {self.key("running"): p > self.d.stop_below}
 
     def switches(self, discrete):
         if self.d.stop_below is None:
             return []
         key = self.key("running")
-        i, p_stop = self.source, self.d.stop_below
+        i = self.source
         if discrete[key]:
+            p_stop = self.d.stop_below
             return [Switch(key, lambda t, snap: snap.states[i].p - p_stop, -1, False,
-                           "flow stopped: source pressure fell to the stop pressure")]
-        p_start = p_stop * (1.0 + self.HYSTERESIS)
+                           f"flow stopped: source pressure fell to {p_stop / 1e5:.6g} bar a")]
+        if self.d.restart_above is None:
+            return []
+        p_start = self.d.restart_above
         return [Switch(key, lambda t, snap: snap.states[i].p - p_start, +1, True,
-                       "flow restarted: source pressure rose above the stop pressure")]
+                       f"flow restarted: source pressure rose to {p_start / 1e5:.6g} bar a")]
 
     def flow(self, t, a, b, segment) -> Flow:
         if self.d.stop_below is not None and not segment.discrete[self.key("running")]:

@@ -29,6 +29,14 @@ class OrificeDevice(Device):
         return tuple(t for t in (self.d.open_from, self.d.open_until)
                      if t > 0.0 and math.isfinite(t))
 
+    def schedule(self):
+        out = []
+        if self.d.open_from > 0.0:
+            out.append((self.d.open_from, "opens"))
+        if math.isfinite(self.d.open_until):
+            out.append((self.d.open_until, "closes"))
+        return out
+
     def is_open(self, segment) -> bool:
         mid = segment.midpoint
         return self.d.open_from <= mid < self.d.open_until

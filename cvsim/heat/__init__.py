@@ -1,1 +1,1 @@
-"""Heat paths of a vessel: inside geometry (``geometry``); walls and heat transfer to come."""
+"""Heat paths of a vessel: inside geometry (``geometry``) and heat terms on its gas."""

@@ -1,0 +1,163 @@
+"""Command line: ``cvsim run | check | fluids``.
+
+Heavy libraries (CoolProp, scipy, matplotlib, pint) are imported inside the
+commands, so that ``cvsim --help`` answers at once. Errors a user can cause
+end in one message and exit status 2; a run that fails part-way exits 1.
+"""
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+
+from . import __version__
+
+DESCRIPTION = """\
+cvsim - transient simulation of pressurised gas vessels and networks: filling,
+venting, blowdown and relief on real-fluid properties. Each scenario is a YAML
+file with units written out (see docs/scenario-format.md).
+
+Results are screening estimates: verify against the governing codes (ASME VIII,
+API 520/521, ISO 4126, ISO 23251, local regulations) and have them reviewed by a
+qualified engineer."""
+
+EPILOG = """\
+examples:
+  cvsim run scenarios/nitrogen-blowdown.yaml --out results/blowdown
+  cvsim check scenarios/hydrogen-fast-fill.yaml
+  cvsim fluids
+"""
+
+
+def _parser() -> argparse.ArgumentParser:
+    p = argparse.ArgumentParser(prog="cvsim", description=DESCRIPTION, epilog=EPILOG,
+                                formatter_class=argparse.RawDescriptionHelpFormatter)
+    p.add_argument("--version", action="version", version=f"cvsim {__version__}")
+    sub = p.add_subparsers(dest="command", metavar="COMMAND")
+
+    r = sub.add_parser("run", help="simulate a scenario; write histories, plots and a summary",
+                       description="Simulate a scenario and write history.csv, steps.csv, "
+                       "summary.txt, summary.json, inputs.txt and PNG plots into an output "
+                       "folder. The folder is written completely or not at all.")
+    r.add_argument("scenario", type=Path, help="scenario file (YAML)")
+    r.add_argument("--out", type=Path, default=None,
+                   help="output folder (default: results/<scenario name>)")
+    r.add_argument("--set", dest="overrides", action="append", default=[], metavar="KEY=VALUE",
+                   help="change one scenario value, e.g. --set links.vent.diameter='12 mm' "
+                   "(repeatable)")
+    r.add_argument("--no-plots", action="store_true", help="skip the PNG plots")
+    r.add_argument("--keep-failed", action="store_true",
+                   help="if the run fails part-way, still write what was computed (every "
+                   "file then says the run failed)")
+    r.add_argument("--quiet", action="store_true", help="do not print the summary")
+
+    c = sub.add_parser("check", help="validate a scenario without running it",
+                       description="Read and validate a scenario; list every problem at once "
+                       "with its key and line, or show the inputs as they will be used (SI).")
+    c.add_argument("scenario", type=Path, help="scenario file (YAML)")
+    c.add_argument("--set", dest="overrides", action="append", default=[], metavar="KEY=VALUE",
+                   help="change one scenario value before checking (repeatable)")
+
+    f = sub.add_parser("fluids", help="list the fluid names CoolProp offers",
+                       description="List the pure and pseudo-pure fluids available (CoolProp "
+                       "names, to be written as 'fluid:' in a scenario).")
+    f.add_argument("--search", default=None, help="show only names containing this text")
+    return p
+
+
+def _overrides(items: list[str]) -> dict:
+    from .errors import Problem, ScenarioError
+    out = {}
+    problems = []
+    for item in items:
+        if "=" not in item:
+            problems.append(Problem(item, "write --set KEY=VALUE, e.g. "
+                                    "--set links.vent.diameter='12 mm'"))
+            continue
+        k, v = item.split("=", 1)
+        out[k.strip()] = v.strip()
+    if problems:
+        raise ScenarioError(problems, "--set")
+    return out
+
+
+def cmd_run(args) -> int:
+    from .api import run
+    from .outputs import summary_text, write_run_outputs
+    from .scenario import load_scenario
+
+    scenario = load_scenario(args.scenario, overrides=_overrides(args.overrides))
+    out = args.out or Path("results") / args.scenario.stem
+    progress = None
+    bar = None
+    if not args.quiet and sys.stderr.isatty():
+        from tqdm import tqdm
+        end = scenario.network.run.end_time
+        bar = tqdm(total=end, unit="s", desc="simulating", leave=False,
+                   bar_format="{desc}: {percentage:3.0f}%|{bar}| {n:.4g}/{total:.4g} s")
+
+        def progress(t, t_end):
+            bar.update(t - bar.n)
+    try:
+        result = run(scenario, progress=progress)
+    finally:
+        if bar is not None:
+            bar.close()
+    if not result.ok and not args.keep_failed:
+        print(f"cvsim: the run failed: {result.message}", file=sys.stderr)
+        print("No output written (use --keep-failed to write what was computed).",
+              file=sys.stderr)
+        return 1
+    write_run_outputs(result, out, plots=not args.no_plots, echo=scenario.echo)
+    if not args.quiet:
+        print(summary_text(result))
+    print(f"Results written to {out}/")
+    return 0 if result.ok else 1
+
+
+def cmd_check(args) -> int:
+    from .scenario import load_scenario
+    scenario = load_scenario(args.scenario, overrides=_overrides(args.overrides))
+    print(f"{args.scenario}: no problems found.")
+    w = max([len(str(r.key)) for r in scenario.echo] + [10])
+    for r in scenario.echo:
+        line = f"  {r.key:<{w}}  {r.given!s:<22} -> {r.used}"
+        if getattr(r, "note", ""):
+            line += f"   ({r.note})"
+        print(line)
+    return 0
+
+
+def cmd_fluids(args) -> int:
+    from .fluid import coolprop_fluid_names, coolprop_version
+    names = coolprop_fluid_names()
+    if args.search:
+        names = [n for n in names if args.search.lower() in n.lower()]
+    print(f"CoolProp {coolprop_version()}: {len(names)} fluids")
+    for n in names:
+        print(f"  {n}")
+    return 0
+
+
+COMMANDS = {"run": cmd_run, "check": cmd_check, "fluids": cmd_fluids}
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = _parser()
+    args = parser.parse_args(argv)
+    if not args.command:
+        parser.print_help()
+        return 0
+    from .errors import CvsimError
+    try:
+        return COMMANDS[args.command](args)
+    except CvsimError as exc:
+        print(f"cvsim: {exc}", file=sys.stderr)
+        return 2
+    except KeyboardInterrupt:  # pragma: no cover - interactive
+        print("cvsim: interrupted; no output written.", file=sys.stderr)
+        return 130
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

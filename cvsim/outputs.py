@@ -1,0 +1,231 @@
+"""Files of a run: CSV histories, summary (text and JSON), plots, input echo.
+
+Everything is written into a temporary folder beside the requested one and
+moved into place only when complete, so a failed run never leaves files that
+look finished. Every file carries the caution and the provenance (cvsim and
+CoolProp versions, the scenario file's hash).
+"""
+from __future__ import annotations
+
+import csv
+import json
+import math
+import os
+import shutil
+import tempfile
+from pathlib import Path
+
+from .errors import OutputError
+from .result import CAUTION, Result
+
+#: SI unit -> (engineering unit shown, function SI -> shown)
+DISPLAY = {
+    "Pa": ("bar a", lambda v: v / 1e5),
+    "K": ("degC", lambda v: v - 273.15),
+    "J/kg": ("kJ/kg", lambda v: v / 1e3),
+    "J/(kg K)": ("kJ/(kg K)", lambda v: v / 1e3),
+    "W": ("kW", lambda v: v / 1e3),
+    "J": ("kJ", lambda v: v / 1e3),
+}
+
+
+def display(unit: str):
+    """(shown unit, converter) for an SI unit; identity for the others."""
+    return DISPLAY.get(unit, (unit, lambda v: v))
+
+
+def write_csv(result: Result, path: Path, fine: bool = False) -> Path:
+    """Histories as CSV in engineering units (bar a, degC, kg, kg/s, kJ/kg).
+
+    The first lines start with ``#``: title, provenance, caution (pandas:
+    ``read_csv(path, comment="#")``). Columns are ``<node>.<quantity> [unit]``.
+    """
+    rows = result._all() if fine else result.data
+    head = []
+    convs = []
+    for name, unit, kind in result.columns:
+        shown, conv = display(unit)
+        head.append(f"{name} [{shown}]")
+        convs.append(conv)
+    with open(path, "w", newline="", encoding="utf-8") as fh:
+        for line in _header_lines(result):
+            fh.write(f"# {line}\n")
+        w = csv.writer(fh)
+        w.writerow(head)
+        for r in rows:
+            w.writerow([_fmt(c(v)) for c, v in zip(convs, r)])
+    return path
+
+
+def _fmt(v: float) -> str:
+    if v != v:
+        return ""
+    return f"{v:.10g}"
+
+
+def _header_lines(result: Result) -> list[str]:
+    p = result.provenance
+    lines = [result.network.title,
+             f"cvsim {p.get('cvsim', '?')}, CoolProp {p.get('coolprop', '?')}, "
+             f"scenario {p.get('scenario', '?')} sha256 {p.get('scenario_sha256', '?')[:16]}",
+             f"status: {result.status} - {result.message}",
+             "pressures absolute (bar a); gauge = absolute - "
+             f"{result.network.atmosphere / 1e5:.5g} bar (the scenario's atmosphere)",
+             CAUTION]
+    return lines
+
+
+def write_summary_json(result: Result, path: Path) -> Path:
+    with open(path, "w", encoding="utf-8") as fh:
+        json.dump(_jsonable(result.summary()), fh, indent=2)
+        fh.write("\n")
+    return path
+
+
+def _jsonable(obj):
+    if isinstance(obj, dict):
+        return {str(k): _jsonable(v) for k, v in obj.items()}
+    if isinstance(obj, (list, tuple)):
+        return [_jsonable(v) for v in obj]
+    if isinstance(obj, float):
+        return obj if math.isfinite(obj) else None
+    if hasattr(obj, "item"):  # numpy scalars
+        return _jsonable(obj.item())
+    return obj
+
+
+def _bar(p: float, atm: float) -> str:
+    return f"{p / 1e5:.4g} bar a ({(p - atm) / 1e5:.4g} bar g)"
+
+
+def _degc(T: float) -> str:
+    return f"{T - 273.15:.1f} degC"
+
+
+def _t(t: float) -> str:
+    if not math.isfinite(t):
+        return "-"
+    if t < 600:
+        return f"{t:.4g} s"
+    if t < 3 * 3600:
+        return f"{t / 60:.4g} min"
+    return f"{t / 3600:.4g} h"
+
+
+def summary_text(result: Result) -> str:
+    """The summary as text for the screen and for summary.txt."""
+    s = result.summary()
+    atm = result.network.atmosphere
+    L = [f"{s['title']}", "=" * min(len(s['title']), 78),
+         f"Status: {s['status']} - {s['message']}",
+         f"Simulated time: {_t(s['end_time_s'])}", ""]
+    for name, v in s["vessels"].items():
+        L.append(f"Vessel '{name}':")
+        L.append(f"  pressure    max {_bar(v['max_pressure_Pa'], atm)} at {_t(v['max_pressure_time_s'])};"
+                 f" min {_bar(v['min_pressure_Pa'], atm)} at {_t(v['min_pressure_time_s'])}")
+        L.append(f"  gas temp.   max {_degc(v['max_temperature_K'])} at "
+                 f"{_t(v['max_temperature_time_s'])}; min {_degc(v['min_temperature_K'])} at "
+                 f"{_t(v['min_temperature_time_s'])}")
+        L.append(f"  mass        {v['initial_mass_kg']:.5g} kg -> {v['final_mass_kg']:.5g} kg")
+        L.append(f"  final state {_bar(v['final_pressure_Pa'], atm)}, "
+                 f"{_degc(v['final_temperature_K'])}")
+        if "two_phase_from_s" in v:
+            L.append(f"  two phases present from {_t(v['two_phase_from_s'])} "
+                     f"(lowest vapour quality {v['min_vapour_quality']:.4f})")
+    if s["links"]:
+        L.append("")
+        L.append("Links (flow positive from 'from' to 'to'):")
+        for name, k in s["links"].items():
+            L.append(f"  {name} ({k['from']} -> {k['to']}): {k['mass_passed_kg']:.5g} kg passed; "
+                     f"peak {k['max_mass_flow_kg_s']:.4g} kg/s at {_t(k['max_mass_flow_time_s'])}")
+            if abs(k["energy_added_by_device_J"]) > 0:
+                L.append(f"    energy added by the device: {k['energy_added_by_device_J'] / 1e3:.5g} kJ")
+    if s["heat"]:
+        L.append("")
+        L.append("Heat into the gas:")
+        for name, h in s["heat"].items():
+            L.append(f"  {name}: {h['heat_into_gas_J'] / 1e3:.5g} kJ")
+    if s["events"]:
+        L.append("")
+        L.append("Events:")
+        for e in s["events"]:
+            L.append(f"  {_t(e['time_s'])}: {e['event']}")
+    b = s["balance"]
+    if b:
+        L.append("")
+        L.append(f"Balances of the whole run: mass closure {b['mass_closure_relative']:.2e}, "
+                 f"energy closure {b['energy_closure_relative']:.2e} (relative)")
+    st = s["solver"]
+    if st:
+        L.append(f"Solver: {st.get('steps', 0)} steps, {st.get('rhs_calls', 0)} right-hand-side "
+                 f"calls, {st.get('events', 0)} events, {st.get('wall_time_s', 0):.3g} s")
+    L.append("")
+    L.append("Assumptions:")
+    L += [f"  - {a}" for a in s["assumptions"]]
+    L.append("")
+    L.append("CAUTION: " + CAUTION)
+    return "\n".join(L) + "\n"
+
+
+#: file that marks a folder as cvsim's own output (so it may be replaced)
+MARKER = ".cvsim-output"
+
+
+def write_run_outputs(result: Result, out_dir: Path, plots: bool = True,
+                      echo: list | None = None) -> list[Path]:
+    """Write history.csv, steps.csv, summary.txt, summary.json, inputs.txt and
+    plots into ``out_dir``, atomically: all of them or none."""
+    out_dir = Path(out_dir)
+    parent = out_dir.parent
+    if out_dir.exists() and (not out_dir.is_dir() or (
+            any(out_dir.iterdir()) and not (out_dir / MARKER).exists())):
+        raise OutputError(f"'{out_dir}' exists and is not an earlier cvsim output folder; "
+                          "choose a new folder with --out (cvsim replaces only its own "
+                          "output folders).")
+    try:
+        parent.mkdir(parents=True, exist_ok=True)
+        tmp = Path(tempfile.mkdtemp(prefix=f".{out_dir.name}.partial-", dir=parent))
+    except OSError as exc:
+        raise OutputError(f"cannot create the output folder '{out_dir}': {exc.strerror}") from None
+    try:
+        (tmp / MARKER).write_text("written by cvsim; this folder is replaced on the next run\n")
+        write_csv(result, tmp / "history.csv")
+        write_csv(result, tmp / "steps.csv", fine=True)
+        (tmp / "summary.txt").write_text(summary_text(result), encoding="utf-8")
+        write_summary_json(result, tmp / "summary.json")
+        if echo is not None:
+            (tmp / "inputs.txt").write_text(echo_text(result, echo), encoding="utf-8")
+        if plots and len(result.data) > 1:
+            from .plot import plot_run
+            plot_run(result, tmp)
+        if out_dir.exists():
+            old = Path(tempfile.mkdtemp(prefix=f".{out_dir.name}.old-", dir=parent))
+            os.rename(out_dir, old / "x")
+            os.rename(tmp, out_dir)
+            shutil.rmtree(old, ignore_errors=True)
+        else:
+            os.rename(tmp, out_dir)
+    except OSError as exc:
+        shutil.rmtree(tmp, ignore_errors=True)
+        raise OutputError(f"cannot write results into '{out_dir}': {exc}") from None
+    except BaseException:
+        shutil.rmtree(tmp, ignore_errors=True)
+        raise
+    return sorted(out_dir.iterdir())
+
+
+def echo_text(result: Result, echo: list) -> str:
+    """Inputs as given and as used (SI), with notes, plus provenance."""
+    p = result.provenance
+    L = [f"Inputs of: {result.network.title}",
+         f"scenario file: {p.get('scenario', '?')}  sha256 {p.get('scenario_sha256', '?')}",
+         f"cvsim {p.get('cvsim', '?')}, CoolProp {p.get('coolprop', '?')}", ""]
+    w = max([len(str(r.key)) for r in echo] + [10])
+    for r in echo:
+        line = f"{r.key:<{w}}  {r.given!s:<22}  ->  {r.used}"
+        if getattr(r, "note", ""):
+            line += f"   ({r.note})"
+        L.append(line)
+    L.append("")
+    L.append("CAUTION: " + CAUTION)
+    return "\n".join(L) + "\n"

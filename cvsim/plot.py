@@ -1,0 +1,506 @@
+"""PNG plots of a run, ready for a calculation package.
+
+:func:`plot_run` writes an overview (pressure, temperature, mass and mass
+flow on one page) and one figure per quantity. Every figure carries the
+scenario title, the run's status, axis labels with units, a legend, a grid
+and a footer with the caution and the cvsim version.
+
+Units on the plots: pressure in bar absolute (right-hand axis in bar gauge
+relative to the network's atmosphere), temperature in °C, mass in kg, mass
+flow in kg/s, g/s or kg/h by magnitude (:func:`flow_unit`), time in s, min
+or h by the length of the run (:func:`time_unit`), openings in %.
+
+Columns added later are picked up by name: every column in K whose name
+starts with a vessel's name is drawn with that vessel's gas temperature
+(walls, for instance), and ``<link>.opening`` columns get a figure of their
+own when there are any.
+
+matplotlib (and the rest of cvsim) is imported only inside the functions
+(the command line starts faster) and only through its object interface with the Agg canvas: no
+pyplot, no global backend switch, so plotting never disturbs the figures of
+an interactive session and needs no display.
+"""
+from __future__ import annotations
+
+import contextlib
+import math
+import textwrap
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+import numpy as np
+
+if TYPE_CHECKING:
+    from .result import Result
+
+BAR = 1e5                 # [Pa]
+ZERO_CELSIUS = 273.15     # [K]
+DPI = 150
+OVERVIEW_SIZE = (11.0, 8.0)   # [in] fits a landscape A4 page inside its margins
+SINGLE_SIZE = (10.0, 6.0)     # [in]
+MAX_EVENT_LABELS = 8      # more events than this: lines only, no text
+EVENT_LABEL_HEIGHT = 0.6  # event text is cut to this fraction of the panel height
+SUBTITLE_MESSAGE_CHARS = 240  # a longer status message is cut (the summary has it whole)
+EVENT_SHORT = (("stop condition met: ", "stop: "), ("run failed: ", "failed: "))
+EVENT_MIN_GAP = 0.03      # labels closer than this fraction of the time span are dropped
+
+# colour-blind safe palette (Okabe & Ito), without the yellow that fades on paper
+COLOURS = ("#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9", "#000000")
+DASHES = ("-", (0, (6, 2)), (0, (1, 1.5)), (0, (6, 2, 1, 2)))
+
+# [in] size of one panel's plotting area, a little less than it turns out after
+# layout (to place legends and cut event texts before the layout is known)
+PANEL_IN = {True: (4.4, 2.8), False: (8.6, 3.8)}
+
+TITLE_PT = 12.0
+SUBTITLE_PT = 9.0
+FOOTER_PT = 7.0
+LEGEND_PT = 7.5
+LEGEND_ROWS = 6           # a longer legend is set in two columns
+EVENT_PT = 6.5
+
+# (unit, seconds per unit, use above this run length [s])
+TIME_UNITS = (("h", 3600.0, 3 * 3600.0), ("min", 60.0, 600.0), ("s", 1.0, -math.inf))
+# (unit, kg/s per unit, use at or above this peak flow [kg/s]); the smallest flows
+# are shown in kg/h, the unit that gives them the largest numbers of the three
+FLOW_UNITS = (("kg/s", 1.0, 1.0), ("g/s", 1e-3, 1e-3), ("kg/h", 1 / 3600.0, -math.inf))
+
+
+# ------------------------------------------------------------------- units
+
+def time_unit(t_end: float) -> tuple[str, float]:
+    """Time unit for a run of length ``t_end`` [s]: (name, seconds per unit).
+
+    Longer than 3 h: hours; longer than 600 s: minutes; otherwise seconds.
+
+    >>> time_unit(172.0), time_unit(1800.0), time_unit(4 * 3600.0)
+    (('s', 1.0), ('min', 60.0), ('h', 3600.0))
+    """
+    for name, size, above in TIME_UNITS:
+        if t_end > above:
+            return name, size
+    return TIME_UNITS[-1][:2]
+
+
+def flow_unit(peak: float) -> tuple[str, float]:
+    """Mass-flow unit for flows whose largest magnitude is ``peak`` [kg/s]:
+    (name, kg/s per unit).
+
+    At least 1 kg/s: kg/s; at least 1 g/s: g/s; below: kg/h.
+
+    >>> flow_unit(25.0), flow_unit(0.1), flow_unit(2e-4)
+    (('kg/s', 1.0), ('g/s', 0.001), ('kg/h', 0.0002777777777777778))
+    """
+    for name, size, at_least in FLOW_UNITS:
+        if peak >= at_least:
+            return name, size
+    return FLOW_UNITS[-1][:2]
+
+
+# ---------------------------------------------------------------- the run
+
+def plot_run(result: Result, folder: Path) -> list[Path]:
+    """Write the plots of ``result`` into ``folder`` (created if missing).
+
+    Files: ``overview.png`` (pressure, temperature, mass, mass flow),
+    ``pressure.png``, ``temperature.png``, ``mass.png``, ``flow.png`` and,
+    only when the result has ``<link>.opening`` columns, ``opening.png``.
+    Returns the paths written, in that order.
+    """
+    folder = Path(folder)
+    folder.mkdir(parents=True, exist_ok=True)
+    view = _View(result)
+    panels = [("pressure", _pressure), ("temperature", _temperature), ("mass", _mass),
+              ("flow", _flow)]
+    if view.openings:
+        panels.append(("opening", _opening))
+    written = []
+
+    path = folder / "overview.png"
+    with _figure(OVERVIEW_SIZE, view) as fig:
+        axes = fig.subplots(2, 2, sharex=True).ravel()
+        for ax, (_, draw) in zip(axes, panels[:4]):
+            draw(ax, view, overview=True)
+        for ax in axes[2:]:
+            ax.set_xlabel(view.time_label)
+        fig.savefig(path, dpi=DPI)
+    written.append(path)
+
+    for name, draw in panels:
+        path = folder / f"{name}.png"
+        with _figure(SINGLE_SIZE, view) as fig:
+            ax = fig.subplots()
+            draw(ax, view, overview=False)
+            ax.set_xlabel(view.time_label)
+            fig.savefig(path, dpi=DPI)
+        written.append(path)
+    return written
+
+
+class _View:
+    """What the plots need from a result, in plotting units."""
+
+    def __init__(self, result: Result):
+        self.result = result
+        net = result.network
+        n = len(result.data)
+        self.empty = n == 0
+        t_end = float(result.time[-1]) if n else net.run.end_time
+        self.time_name, self.time_size = time_unit(t_end)
+        self.time_label = f"Time [{self.time_name}]"
+        self.t = result.time / self.time_size if n else np.zeros(0)
+        self.vessels = result.vessel_names()
+        self.reservoirs = [r.name for r in net.reservoirs]
+        self.links = result.link_names()
+        names = result.names()
+        self.openings = [k for k in self.links if f"{k}.opening" in names]
+        # one colour per object across every figure: vessels, reservoirs, links;
+        # past the palette's end the colours come again with a dash
+        order = self.vessels + self.reservoirs + self.links
+        self.colour = {o: COLOURS[i % len(COLOURS)] for i, o in enumerate(order)}
+        self.dash = {o: DASHES[(i // len(COLOURS)) % len(DASHES)] for i, o in enumerate(order)}
+        self.extra_temperatures = self._extra_temperatures(names)
+        self.atmosphere_bar = net.atmosphere / BAR
+        self.events = [(float(t) / self.time_size, str(text)) for t, text in result.events]
+
+    def _extra_temperatures(self, names: list[str]) -> dict[str, list[str]]:
+        """Columns in K other than the gas temperature, by the vessel whose name
+        (the longest that fits) starts them, e.g. ``receiver.wall.inner``."""
+        out = {v: [] for v in self.vessels}
+        by_length = sorted(self.vessels, key=len, reverse=True)
+        for name in names:
+            if self.result.unit(name) != "K":
+                continue
+            owner = next((v for v in by_length if name.startswith(v + ".")), None)
+            if owner is not None and name != f"{owner}.temperature":
+                out[owner].append(name)
+        return out
+
+    def subtitle(self) -> str:
+        r = self.result
+        fluid = r.network.fluid
+        props = "real-fluid properties" if fluid.model == "real" else "ideal gas"
+        head = f"{fluid.name} ({props})"
+        if self.empty:
+            return (f"{head}. Run {r.status.upper()} before the first record: "
+                    f"{_cut(r.message, SUBTITLE_MESSAGE_CHARS)}")
+        t_end = float(r.time[-1])
+        if r.status in ("failed", "stopped"):
+            at = float(r.events[-1][0]) if r.events else t_end
+            last = ("" if abs(at - t_end) <= 1e-9 * max(abs(at), 1.0) else
+                    f" (last recorded state at t = {_fmt_time(t_end)})")
+            message = _cut(r.message, SUBTITLE_MESSAGE_CHARS)
+            return f"{head}. Run {r.status.upper()} at t = {_fmt_time(at)}{last}: {message}"
+        return f"{head}. Run {r.status} at t = {_fmt_time(t_end)}."
+
+
+def _cut(text: str, most: int) -> str:
+    return text if len(text) <= most else text[:most - 1] + "…"
+
+
+def _fmt_time(t: float) -> str:
+    """A time [s] with its size in minutes or hours when that helps."""
+    name, size = time_unit(t)
+    if name == "s":
+        return f"{t:.4g} s"
+    return f"{t:.6g} s ({t / size:.4g} {name})"
+
+
+# ---------------------------------------------------------------- panels
+
+def _pressure(ax, view: _View, overview: bool):
+    r = view.result
+    for v in view.vessels:
+        _line(ax, view, r[f"{v}.pressure"] / BAR, v, view.colour[v], lw=1.6, ls=view.dash[v])
+    for res in view.reservoirs:
+        _line(ax, view, r[f"{res}.pressure"] / BAR, f"{res} (reservoir)", view.colour[res],
+              lw=0.9, ls="--")
+    ax.set_ylabel("Pressure [bar a]")
+    atm = view.atmosphere_bar
+    if view.empty:
+        _finish(ax, view, "Pressure", floor=None, overview=overview)
+        return
+    gauge = ax.secondary_yaxis("right", functions=(lambda b: b - atm, lambda g: g + atm))
+    gauge.set_ylabel(f"Pressure [bar g]  (atmosphere {atm:.4g} bar a)", fontsize=8)
+    gauge.tick_params(labelsize=8)
+    _finish(ax, view, "Pressure", floor=1e-3, overview=overview, event_labels=True)
+
+
+def _temperature(ax, view: _View, overview: bool):
+    r = view.result
+    for v in view.vessels:
+        colour = view.colour[v]
+        _line(ax, view, r[f"{v}.temperature"] - ZERO_CELSIUS, f"{v} gas", colour, lw=1.6,
+              ls=view.dash[v])
+        for k, name in enumerate(view.extra_temperatures[v]):
+            label = f"{v} {name[len(v) + 1:]}"
+            _line(ax, view, r[name] - ZERO_CELSIUS, label, colour, lw=1.1,
+                  ls=DASHES[1 + k % (len(DASHES) - 1)])
+    ax.set_ylabel("Temperature [°C]")
+    walls = any(view.extra_temperatures.values())
+    title = "Gas and wall temperatures" if walls else "Gas temperature"
+    _finish(ax, view, title, floor=1e-2, overview=overview)
+
+
+def _mass(ax, view: _View, overview: bool):
+    for v in view.vessels:
+        _line(ax, view, view.result[f"{v}.mass"], v, view.colour[v], lw=1.6, ls=view.dash[v])
+    ax.set_ylabel("Mass in vessel [kg]")
+    _finish(ax, view, "Mass in each vessel", floor=1e-6, overview=overview)
+
+
+def _flow(ax, view: _View, overview: bool):
+    r = view.result
+    net = r.network
+    flows = {k: r[f"{k}.mass_flow"] for k in view.links}
+    peak = max((_peak(f) for f in flows.values()), default=0.0)
+    name, size = flow_unit(peak)
+    for link in net.links:
+        label = f"{link.name} ({link.source} → {link.target})"
+        _line(ax, view, flows[link.name] / size, label, view.colour[link.name], lw=1.6,
+              ls=view.dash[link.name])
+    if view.links:
+        ax.set_ylabel(f"Mass flow [{name}]")
+    else:
+        ax.set_ylabel("Mass flow")
+        ax.set_yticks([])
+        if not view.empty:
+            _note(ax, "no links in this network")
+    _finish(ax, view, "Mass flow through each link (positive from source to target)",
+            floor=1e-3, overview=overview)
+
+
+def _opening(ax, view: _View, overview: bool):
+    for k in view.openings:
+        _line(ax, view, 100.0 * view.result[f"{k}.opening"], k, view.colour[k], lw=1.6,
+              ls=view.dash[k])
+    ax.set_ylabel("Opening [%]")
+    ax.set_ylim(-5.0, 105.0)
+    _finish(ax, view, "Valve opening", floor=None, overview=overview)
+
+
+def _line(ax, view: _View, y, label, colour, lw, ls="-"):
+    if view.empty:
+        return
+    marker = "o" if len(view.t) < 2 else None  # a single record shows as a dot
+    ax.plot(view.t, y, label=label, color=colour, lw=lw, ls=ls, marker=marker, ms=4)
+
+
+def _peak(values: np.ndarray) -> float:
+    finite = np.abs(values[np.isfinite(values)])
+    return float(finite.max()) if finite.size else 0.0
+
+
+def _note(ax, text: str):
+    ax.text(0.5, 0.5, text, transform=ax.transAxes, ha="center", va="center",
+            fontsize=10, color="0.35")
+
+
+def _finish(ax, view: _View, title: str, floor: float | None, overview: bool,
+            event_labels: bool = False):
+    """Title, grid, y range, event lines and legend of a panel.
+
+    floor  smallest y span shown [plot unit] (with at least 1e-3 of the largest
+           value), so that a flat line does not show rounding noise as ticks;
+           ``None``: the panel sets its own range
+    """
+    ax.set_title(title, fontsize=10, loc="left")
+    ax.grid(True, which="major", color="0.85", lw=0.6)
+    ax.set_axisbelow(True)
+    ax.ticklabel_format(axis="y", useOffset=False)
+    size = PANEL_IN[overview]
+    obstacles = []
+    if view.empty:
+        ax.set_yticks([])
+        _note(ax, "no recorded data")
+    else:
+        ax.set_xlim(view.t[0], view.t[-1] if view.t[-1] > view.t[0] else view.t[0] + 1.0)
+        if floor is not None:
+            _least_span(ax, floor)
+        obstacles = _events(ax, view, event_labels, size)
+    _legend(ax, size, obstacles)
+
+
+def _curves(ax) -> list:
+    """The data lines of a panel (event lines and the like have no label)."""
+    return [ln for ln in ax.get_lines() if not ln.get_label().startswith("_")]
+
+
+def _least_span(ax, floor: float):
+    parts = [np.asarray(ln.get_ydata(), dtype=float) for ln in _curves(ax)]
+    values = np.concatenate(parts) if parts else np.zeros(0)
+    values = values[np.isfinite(values)]
+    if not len(values):
+        return
+    lo, hi = float(values.min()), float(values.max())
+    least = max(floor, 1e-3 * max(abs(lo), abs(hi)))
+    if hi - lo < least:
+        mid = 0.5 * (lo + hi)
+        ax.set_ylim(mid - 0.5 * least, mid + 0.5 * least)
+
+
+def _events(ax, view: _View, labels: bool, size: tuple[float, float]) -> list:
+    """Event times as thin dotted lines, with text beside them when there are
+    few; returns the boxes the texts take (axes fractions x0, y0, x1, y1)."""
+    span = view.t[-1] - view.t[0] if len(view.t) else 0.0
+    show = labels and len(view.events) <= MAX_EVENT_LABELS
+    glyph = 0.56 * EVENT_PT / 72.0  # [in] average character width
+    most = int(EVENT_LABEL_HEIGHT * size[1] / glyph)
+    thick = 1.5 * EVENT_PT / 72.0 / size[0]  # text height across the panel [axes fraction]
+    boxes = []
+    last = -math.inf
+    lo, hi = ax.get_xlim()
+    for t, text in view.events:
+        if not lo <= t <= hi:
+            continue
+        ax.axvline(t, color="0.4", lw=0.8, ls=":", zorder=1)
+        if not show or (span > 0 and t - last < EVENT_MIN_GAP * span):
+            continue
+        last = t
+        for long, short in EVENT_SHORT:
+            text = text.replace(long, short)
+        text = _cut(text, most)
+        at_right = span > 0 and t > view.t[0] + 0.5 * span
+        ax.text(t, 0.98, text, transform=ax.get_xaxis_transform(), rotation=90,
+                ha="right" if at_right else "left", va="top", fontsize=EVENT_PT,
+                color="0.2", bbox=dict(boxstyle="square,pad=0.1", fc="white", ec="none",
+                                       alpha=0.6), zorder=4, clip_on=True)
+        x = (t - lo) / (hi - lo)
+        height = len(text) * glyph / size[1]
+        boxes.append((x - thick, 0.98 - height, x, 0.98) if at_right else
+                     (x, 0.98 - height, x + thick, 0.98))
+    return boxes
+
+
+def _legend(ax, size: tuple[float, float], obstacles: list):
+    """A legend where it hides no curve and no event text.
+
+    Tries the corners and edge middles in turn with the legend's size
+    estimated from its text; if every place covers something, raises the top
+    of the y range until the legend fits above the curves at the upper right
+    or upper left (one that hides no event text, then the one that needs less).
+    """
+    handles, labels = ax.get_legend_handles_labels()
+    if not handles:
+        return
+    columns = 1 if len(labels) <= LEGEND_ROWS else 2
+    kw = dict(fontsize=LEGEND_PT, framealpha=0.9, ncols=columns)
+    # legend size in axes fractions (text, handle, padding and frame)
+    rows = math.ceil(len(labels) / columns)
+    w = columns * (max(map(len, labels)) * 0.56 + 4.2) * LEGEND_PT / 72.0 / size[0]
+    h = (rows * 1.42 + 1.2) * LEGEND_PT / 72.0 / size[1]
+    m = 0.02
+    places = {
+        "upper right": (1 - m - w, 1 - m - h), "upper left": (m, 1 - m - h),
+        "lower right": (1 - m - w, m), "lower left": (m, m),
+        "center right": (1 - m - w, 0.5 - h / 2), "center left": (m, 0.5 - h / 2),
+        "upper center": (0.5 - w / 2, 1 - m - h), "lower center": (0.5 - w / 2, m),
+    }
+    x, y = _outline(ax)
+    for loc, (x0, y0) in places.items():
+        box = (x0, y0, x0 + w, y0 + h)
+        if not _hits_curves(x, y, box) and not _hits_boxes(obstacles, box):
+            ax.legend(loc=loc, **kw)
+            return
+    lo, hi = ax.get_ylim()
+    options = []
+    for loc, x0 in (("upper right", 1 - m - w), ("upper left", m)):
+        inside = (x >= x0 - m) & (x <= x0 + w + m)
+        ymax = float(y[inside].max()) if inside.any() else 0.0
+        top = lo + (hi - lo) * ymax / max(1.0 - 2 * m - h, 0.2)
+        hides_text = _hits_boxes(obstacles, (x0, 1 - m - h, x0 + w, 1 - m))
+        options.append((hides_text, top, loc))
+    _, top, loc = min(options)
+    ax.set_ylim(lo, max(hi, top))
+    ax.legend(loc=loc, **kw)
+
+
+def _outline(ax) -> tuple[np.ndarray, np.ndarray]:
+    """Points along every curve of a panel, in axes fractions, close enough
+    together that a legend box cannot fall between two of them."""
+    (x0, x1), (y0, y1) = ax.get_xlim(), ax.get_ylim()
+    xs, ys = [], []
+    for ln in _curves(ax):
+        x = (np.asarray(ln.get_xdata(), dtype=float) - x0) / (x1 - x0)
+        y = (np.asarray(ln.get_ydata(), dtype=float) - y0) / (y1 - y0)
+        ok = np.isfinite(x) & np.isfinite(y)
+        x, y = x[ok], y[ok]
+        if len(x) < 2:
+            xs.append(x)
+            ys.append(y)
+            continue
+        s = np.concatenate([[0.0], np.cumsum(np.hypot(np.diff(x), np.diff(y)))])
+        at = np.linspace(0.0, s[-1], max(2, int(s[-1] / 0.004) + 1))
+        xs.append(np.interp(at, s, x))
+        ys.append(np.interp(at, s, y))
+    if not xs:
+        return np.zeros(0), np.zeros(0)
+    return np.concatenate(xs), np.concatenate(ys)
+
+
+def _hits_curves(x, y, box) -> bool:
+    x0, y0, x1, y1 = box
+    return bool(np.any((x >= x0) & (x <= x1) & (y >= y0) & (y <= y1)))
+
+
+def _hits_boxes(boxes, box) -> bool:
+    x0, y0, x1, y1 = box
+    return any(b[0] <= x1 and b[2] >= x0 and b[1] <= y1 and b[3] >= y0 for b in boxes)
+
+
+# ---------------------------------------------------------------- figures
+
+@contextlib.contextmanager
+def _figure(size: tuple[float, float], view: _View):
+    """A figure on the Agg canvas with the header and footer drawn and the
+    space between them left to the panels; cleared on leaving."""
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.figure import Figure
+
+    fig = Figure(figsize=size, dpi=DPI, layout="constrained")
+    FigureCanvasAgg(fig)
+    try:
+        top, bottom = _frame(fig, view)
+        fig.get_layout_engine().set(rect=(0.0, bottom, 1.0, top - bottom))
+        yield fig
+    finally:
+        fig.clear()
+
+
+def _frame(fig, view: _View) -> tuple[float, float]:
+    """Draw title, subtitle and footer; return the free band (top, bottom) as
+    fractions of the figure height."""
+    width, height = fig.get_size_inches()
+    pad = 0.12 * 72  # [pt]
+    to_frac = 1.0 / (72.0 * height)
+    spacing = 1.25
+
+    title = _wrap(view.result.network.title or "cvsim run", width, TITLE_PT, bold=True)
+    sub = _wrap(view.subtitle(), width, SUBTITLE_PT)
+    y = 1.0 - pad * to_frac
+    fig.text(0.5, y, "\n".join(title), ha="center", va="top", fontsize=TITLE_PT,
+             fontweight="bold", linespacing=spacing)
+    y -= len(title) * TITLE_PT * spacing * to_frac + 0.25 * pad * to_frac
+    colour = "#A00000" if view.result.status == "failed" else "0.15"
+    fig.text(0.5, y, "\n".join(sub), ha="center", va="top", fontsize=SUBTITLE_PT,
+             color=colour, linespacing=spacing)
+    y -= len(sub) * SUBTITLE_PT * spacing * to_frac + pad * to_frac
+
+    from . import __version__
+    from .result import CAUTION
+    foot = _wrap(CAUTION, width, FOOTER_PT) + [f"cvsim {__version__}"]
+    fig.text(0.012, pad * to_frac, "\n".join(foot), ha="left", va="bottom",
+             fontsize=FOOTER_PT, color="0.3", linespacing=spacing)
+    bottom = (pad + len(foot) * FOOTER_PT * spacing + 0.5 * pad) * to_frac
+    return y, bottom
+
+
+def _wrap(text: str, width_in: float, size_pt: float, bold: bool = False) -> list[str]:
+    """Lines of ``text`` that fit a figure ``width_in`` wide at ``size_pt``
+    (average glyph of DejaVu Sans about 0.55 em, bold 0.62 em)."""
+    em = 0.62 if bold else 0.55
+    chars = max(20, int(0.96 * width_in * 72.0 / (em * size_pt)))
+    return textwrap.wrap(text, chars) or [""]
+
+
+__all__ = ["flow_unit", "plot_run", "time_unit"]

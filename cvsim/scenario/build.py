@@ -1,0 +1,189 @@
+"""Load a scenario: text -> tree -> overrides -> validation -> :class:`~cvsim.network.Network`.
+
+Every user mistake found on the way is collected and raised once, as a
+:class:`~cvsim.errors.ScenarioError` listing all problems with their key paths
+and lines; nothing the user can write produces a traceback.
+"""
+from __future__ import annotations
+
+import hashlib
+import math
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from ..errors import Problem, ScenarioError
+from ..network import FluidSpec, Link, Network, RunSettings, StopCondition
+from . import properties, schema, tree
+from . import vessels as vessels_
+from .spec import BAD, At, Context, EchoRow
+
+
+@dataclass(frozen=True)
+class Scenario:
+    """A scenario read, checked and converted to SI.
+
+    network      the network the model runs
+    echo         one row per value: key path, value as given, value used (SI), note
+    source_name  file path or the name given to :func:`load_scenario_text`
+    source_text  the text read (before overrides)
+    sha256       hex digest of the file's bytes (of the text encoded as UTF-8)
+    overrides    the overrides applied, key path -> value as given
+    """
+
+    network: Network
+    echo: tuple[EchoRow, ...]
+    source_name: str
+    source_text: str
+    sha256: str
+    overrides: dict = field(default_factory=dict)
+
+    def echo_table(self) -> str:
+        """The echo as aligned text columns: key, given, used, note."""
+        rows = [("key", "given", "used", "note")]
+        rows += [(r.key, r.given, r.used, r.note) for r in self.echo]
+        widths = [min(max(len(r[i]) for r in rows), 48) for i in range(3)]
+        return "\n".join(
+            "  ".join(c.ljust(w) for c, w in zip(r[:3], widths)) + ("  " + r[3] if r[3] else "")
+            for r in rows)
+
+
+def load_scenario(path, overrides: dict | None = None) -> Scenario:
+    """Read a scenario file; see :func:`load_scenario_text`.
+
+    Raises :class:`~cvsim.errors.ScenarioError` also when the file cannot be
+    read or is not UTF-8 text.
+    """
+    path = Path(path)
+    try:
+        data = path.read_bytes()
+    except OSError as exc:
+        raise ScenarioError([Problem("", f"cannot read the file: {exc.strerror or exc}")],
+                            str(path)) from None
+    try:
+        text = data.decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        raise ScenarioError([Problem("", f"the file is not UTF-8 text ({exc.reason} at byte "
+                                         f"{exc.start}); save it as UTF-8")], str(path)) from None
+    return _load(text, str(path), hashlib.sha256(data).hexdigest(), overrides)
+
+
+def load_scenario_text(text: str, source_name: str = "<text>",
+                       overrides: dict | None = None) -> Scenario:
+    """Read a scenario from text, apply ``overrides``, check it and build its network.
+
+    Parameters
+    ----------
+    text : str
+        the scenario (YAML).
+    source_name : str
+        how messages name the source.
+    overrides : dict, optional
+        dotted key path -> value, e.g. ``{"links.vent.diameter": "12 mm"}``;
+        applied before validation. Text values are read as YAML.
+
+    Raises
+    ------
+    ScenarioError
+        listing every problem found, each with key path and line.
+    """
+    return _load(text, source_name, hashlib.sha256(text.encode("utf-8")).hexdigest(), overrides)
+
+
+def _load(text: str, source_name: str, sha256: str, overrides: dict | None) -> Scenario:
+    ctx = Context()
+    root, problems = tree.parse(text)
+    ctx.problems += problems
+    values = BAD
+    if root is None and not problems:
+        ctx.problems.append(Problem("", "the file is empty; a scenario needs at least "
+                                        "'fluid', 'vessels' and 'run'", 1))
+    elif root is not None and not isinstance(root, dict):
+        ctx.problems.append(Problem("", "the file must be a mapping of keys "
+                                        "('title:', 'fluid:', 'vessels:', ...)", 1))
+    elif root is not None:
+        applied, problems = tree.apply_overrides(root, overrides)
+        ctx.problems += problems
+        ctx.overridden = applied
+        values = schema.read(root, ctx)
+    if values is not BAD and not ctx.problems:
+        read_rows = len(ctx.echo)
+        network = build_network(values, ctx)
+        ctx.echo[:] = _merge_echo(ctx.echo[:read_rows], ctx.echo[read_rows:])
+    if ctx.problems:
+        raise ScenarioError(_ordered(ctx.problems), source_name)
+    return Scenario(network=network, echo=tuple(ctx.echo), source_name=source_name,
+                    source_text=text, sha256=sha256, overrides=dict(overrides or {}))
+
+
+def _merge_echo(read: list[EchoRow], built: list[EchoRow]) -> list[EchoRow]:
+    """Place each row computed while building after the last row of its parent key."""
+    rows = list(read)
+    for row in built:
+        parent = row.key.rsplit(".", 1)[0] if "." in row.key else row.key
+        place = len(rows)
+        for i in range(len(rows) - 1, -1, -1):
+            key = rows[i].key
+            if key == parent or key.startswith((parent + ".", parent + "[")):
+                place = i + 1
+                break
+        rows.insert(place, row)
+    return rows
+
+
+def _ordered(problems: list[Problem]) -> list[Problem]:
+    """Problems in file order; those without a line (from overrides) last."""
+    return sorted(problems, key=lambda p: (p.line is None, p.line or 0))
+
+
+def build_network(values, ctx: Context) -> Network | None:
+    """The :class:`~cvsim.network.Network` from values read without problems."""
+    fluid = _fluid(values, ctx)
+    ctx.fluid = fluid
+    vessels = tuple(vessels_.build_vessel(name, v, ctx)
+                    for name, v in values["vessels"].items())
+    reservoirs = tuple(vessels_.build_reservoir(name, v, ctx)
+                       for name, v in (values["reservoirs"] or {}).items())
+    links = []
+    for name, v in (values["links"] or {}).items():
+        device = v.variant.build(v, ctx)
+        links.append(Link(name=name, source=v["from"], target=v["to"], device=device))
+    linked = {n for link in links for n in (link.source, link.target)}
+    for vessel in vessels:
+        if vessel.name not in linked:
+            ctx.record(At(f"vessels.{vessel.name}", values["vessels"][vessel.name].at.line),
+                       "", None, "", "warning: no link; only heat terms change its contents")
+    network = Network(title=values["title"], fluid=fluid, vessels=vessels,
+                      reservoirs=reservoirs, links=tuple(links), run=_run(values["run"]),
+                      atmosphere=ctx.atmosphere)
+    return network if not ctx.problems else None
+
+
+def _fluid(values, ctx: Context) -> FluidSpec:
+    name, model = values["fluid"], values["properties"]
+    ideal = values["ideal_gas"] or {}
+    molar_mass, cp = ideal.get("molar_mass"), ideal.get("heat_capacity")
+    if model == "ideal-gas":
+        at = At("ideal_gas", values.where["ideal_gas"].line)
+        if molar_mass is None:
+            ctx.record(at.child("molar_mass", None), "(CoolProp)", properties.molar_mass(name),
+                       "kg/mol", "default: CoolProp molar mass")
+        if cp is None:
+            ctx.record(at.child("heat_capacity", None), "(CoolProp)",
+                       properties.ideal_gas_cp(name, 298.15), "J/(kg K)",
+                       "default: CoolProp ideal-gas cp at 25 degC")
+    return FluidSpec(name=name, model=model, molar_mass=molar_mass, cp=cp)
+
+
+def _run(values) -> RunSettings:
+    stops = []
+    for stop in values["stop_when"] or []:
+        for key in schema.STOP_KEYS:
+            if stop[key] is not None:
+                quantity, direction = key.rsplit("_", 1)
+                stops.append(StopCondition(stop["vessel"], quantity, direction, stop[key]))
+    solver = values["solver"]
+    return RunSettings(end_time=values["end"], record_every=values["record_every"],
+                       stop=tuple(stops), method=solver["method"],
+                       rtol=solver["relative_tolerance"],
+                       atol_scale=solver["absolute_tolerance"],
+                       max_step=math.inf if solver["max_step"] is None else solver["max_step"])

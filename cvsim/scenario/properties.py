@@ -1,0 +1,79 @@
+"""The few fluid properties the scenario reader needs, in one place.
+
+The reader checks fluid names, and turns standard-volume flows into mass flows
+with the gas density at the flow's basis. These calls go to CoolProp directly
+for now; they are kept here so that they can be pointed at the fluid layer
+without touching the rest of the reader. CoolProp is imported on first use.
+"""
+from __future__ import annotations
+
+import difflib
+
+from ..errors import FluidError
+from ..network import FluidSpec
+
+R = 8.314462618  # [J/(mol K)] molar gas constant (CODATA 2018, exact)
+
+
+def _coolprop():
+    import CoolProp.CoolProp as CP
+
+    return CP
+
+
+def fluid_names() -> list[str]:
+    """Names of the pure and pseudo-pure fluids CoolProp knows."""
+    return sorted(_coolprop().get_global_param_string("FluidsList").split(","))
+
+
+def canonical_fluid(name: str) -> str:
+    """CoolProp's own name for ``name`` (``N2`` -> ``Nitrogen``).
+
+    Raises :class:`FluidError` listing close matches for an unknown name.
+    """
+    CP = _coolprop()
+    if "&" in name or "::" in name:
+        raise FluidError(f"'{name}': mixtures and back-end prefixes are not supported yet; "
+                         "give one CoolProp fluid name (pseudo-pure 'Air' is accepted)")
+    try:
+        return CP.get_fluid_param_string(name, "name")
+    except (ValueError, RuntimeError):
+        names = fluid_names()
+        by_lower = {n.lower(): n for n in names}
+        close = difflib.get_close_matches(name.lower(), list(by_lower), n=3, cutoff=0.6)
+        hint = (f"; did you mean {' or '.join(repr(by_lower[c]) for c in close)}?"
+                if close else "; `cvsim fluids` lists the names")
+        raise FluidError(f"unknown fluid '{name}'{hint}") from None
+
+
+def molar_mass(name: str) -> float:
+    """[kg/mol] CoolProp's molar mass of the fluid."""
+    return _coolprop().PropsSI("M", name)
+
+
+def ideal_gas_cp(name: str, temperature: float) -> float:
+    """[J/(kg K)] CoolProp's ideal-gas isobaric heat capacity at ``temperature`` [K]."""
+    return _coolprop().PropsSI("Cp0mass", "T", temperature, "P", 101325.0, name)
+
+
+def basis_density(fluid: FluidSpec, pressure: float, temperature: float) -> float:
+    """Density [kg/m3] of the gas at a standard-volume basis (``pressure`` [Pa], ``temperature`` [K]).
+
+    real model: CoolProp HEOS density; ideal-gas model: rho = p M / (R T).
+    Raises :class:`FluidError` when the fluid is not a gas at the basis (a
+    standard volume of a liquid has no meaning).
+    """
+    CP = _coolprop()
+    if fluid.model == "ideal-gas":
+        M = fluid.molar_mass if fluid.molar_mass is not None else molar_mass(fluid.name)
+        return pressure * M / (R * temperature)
+    try:
+        phase = CP.PhaseSI("P", pressure, "T", temperature, fluid.name)
+        rho = CP.PropsSI("D", "P", pressure, "T", temperature, fluid.name)
+    except ValueError as exc:
+        raise FluidError(f"no density for {fluid.name} at {pressure:g} Pa, {temperature:g} K: "
+                         f"{exc}") from None
+    if "gas" not in phase:
+        raise FluidError(f"{fluid.name} is {phase} at the basis ({pressure:g} Pa, "
+                         f"{temperature:g} K); give the flow as a mass flow")
+    return rho
