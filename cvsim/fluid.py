@@ -266,8 +266,11 @@ class RealFluid:
         """
         T = self._solve_T(rho, s, T_guess, self._as.smass, 0)
         if T <= self.t_min * (1 + 1e-9):
-            raise StateError(f"isentropic expansion of {self.name} reaches the lowest "
-                             f"temperature of its equation of state ({self.t_min:.6g} K)")
+            raise StateError(f"the expansion of {self.name} through the device reaches the "
+                             f"lowest temperature of its equation of state ({self.t_min:.6g} "
+                             f"K, triple point {self.t_triple:.6g} K): solid would form, which "
+                             "cvsim does not model. Stop the run earlier (a pressure or "
+                             "temperature stop) or add heat input.")
         return self._read()
 
     def saturated_vapour_at_p(self, p: float) -> State:

@@ -1,15 +1,20 @@
 """Integration of a model in time: segments, events, stops, recording.
 
 The run is cut at every breakpoint (a schedule time, a table point) so that
-no integration step straddles a jump. Inside a segment, scipy's ``solve_ivp``
-integrates with terminal events for the stop conditions and for the devices'
-discrete switches; at a switch the discrete state changes and a new segment
-starts at the event time, from the state found there.
+no integration step straddles a jump. Inside a segment one of scipy's ODE
+solvers (LSODA by default) is stepped by hand, which gives this module full
+control of every accepted step:
 
-Recording: the histories hold the state at every multiple of the recording
-interval (from the solver's dense output), at the start and end of every
-segment and at every event, exactly. A second, finer history holds every
-accepted solver step; summaries take extremes from both.
+* events (stop conditions, device switches) are located on the step's dense
+  output by Brent's method, as ``solve_ivp`` does, and end the segment; at a
+  switch the discrete state changes and a new segment starts at the event;
+* a step that produced non-finite values (a trial state outside the equation
+  of state's range: LSODA does not reject those by itself) is thrown away
+  and retried from the last good state with a smaller first step; when that
+  does not help the run ends with the reason and the last good time;
+* the histories hold every multiple of the recording interval (from the dense
+  output), the start and end of every segment and every event, exactly; a
+  finer history holds every accepted step (summaries take extremes from both).
 
 A failed run is a result (status ``failed`` and a message), so that sweeps can
 report it in a row and go on; the command line turns it into an error.
@@ -21,10 +26,15 @@ import time as _time
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy.integrate import solve_ivp
+from scipy.integrate import BDF, DOP853, LSODA, RK23, RK45, Radau
+from scipy.optimize import brentq
 
 from .errors import StateError
 from .model import Model
+
+METHODS = {"LSODA": LSODA, "BDF": BDF, "Radau": Radau, "RK45": RK45, "RK23": RK23,
+           "DOP853": DOP853}
+IMPLICIT = {"LSODA", "BDF", "Radau"}
 
 #: events closer than this to a segment's start [s] are taken as the switch
 #: that started it and are not acted on again
@@ -36,6 +46,10 @@ CHATTER_COUNT = 50
 CHATTER_SPAN = 1e-6
 #: and no run handles more switches than this
 MAX_SWITCHES = 20000
+#: retries of a step that produced non-finite values, each with a first step
+#: RETRY_SHRINK times smaller
+MAX_RETRIES = 12
+RETRY_SHRINK = 8.0
 
 
 @dataclass
@@ -54,6 +68,12 @@ class RawRun:
     stats: dict = field(default_factory=dict)
 
 
+class _Failure(Exception):
+    def __init__(self, message, t, y):
+        super().__init__(message)
+        self.t, self.y = t, y
+
+
 def integrate(model: Model, progress=None) -> RawRun:
     """Integrate ``model`` over its run settings; never raises for a run that
     fails part-way (the failure is in the returned status and message)."""
@@ -61,134 +81,181 @@ def integrate(model: Model, progress=None) -> RawRun:
     raw = RawRun(columns=model.columns())
     wall0 = _time.perf_counter()
     evals0 = model.fluid.evaluations
-    stats = {"segments": 0, "steps": 0, "rhs_calls": 0, "jacobians": 0, "events": 0}
-    t = 0.0
+    stats = {"segments": 0, "steps": 0, "rejected_retries": 0, "rhs_calls": 0,
+             "jacobians": 0, "events": 0}
+    raw.stats = stats
     t_end = settings.end_time
     try:
         y = model.y0()
+        raw.y_initial = y.copy()
+        discrete = model.initial_discrete(y)
+        seg = model.segment(0.0, t_end, discrete)
+        met = _met_at_start(seg, settings.stop, y)
     except StateError as exc:
-        raw.status, raw.message = "failed", str(exc)
-        raw.stats = stats
-        return raw
-    raw.y_initial = y.copy()
+        return _finish(raw, "failed", str(exc), None, 0.0, model, evals0, wall0)
+    if met is not None:
+        raw.rows.append(seg.observe(0.0, y))
+        msg = f"stop condition already met at the start: {met.describe()}"
+        raw.events.append((0.0, msg))
+        return _finish(raw, "stopped", msg, y, 0.0, model, evals0, wall0)
+
     scale = model.scales(y)
     atol = settings.atol_scale * scale
     breakpoints = [b for b in model.breakpoints() if b < t_end] + [t_end]
-    try:
-        discrete = model.initial_discrete(y)
-    except StateError as exc:
-        raw.status, raw.message = "failed", str(exc)
-        raw.stats = stats
-        return raw
-    dt_rec = settings.record_every
-
-    # a stop condition already met at the start ends the run at once
-    seg = model.segment(0.0, breakpoints[0], discrete)
-    met = _met_at_start(seg, settings.stop, y)
-    if met is not None:
-        raw.rows.append(seg.observe(0.0, y))
-        raw.status = "stopped"
-        raw.message = f"stop condition already met at the start: {met.describe()}"
-        raw.events.append((0.0, raw.message))
-        raw.y_final, raw.t_final = y, 0.0
-        raw.stats = stats
-        return raw
-
     schedule = [e for e in model.schedule() if e[0] <= t_end]
     switch_times: list[float] = []
+    t = 0.0
     bi = 0
     while t < t_end:
         while schedule and schedule[0][0] <= t:
             raw.events.append(schedule.pop(0))
         while bi < len(breakpoints) - 1 and breakpoints[bi] <= t:
             bi += 1
-        t1 = breakpoints[bi]
-        seg = model.segment(t, t1, discrete)
+        seg = model.segment(t, breakpoints[bi], discrete)
         seg.scale = scale
-        events = seg.events(settings.stop)
         stats["segments"] += 1
         try:
             raw.rows.append(seg.observe(t, y))
-        except StateError as exc:
-            return _fail(raw, stats, str(exc), y, t, model, evals0, wall0)
-        sol = solve_ivp(seg.rhs, (t, t1), y, method=settings.method, rtol=settings.rtol,
-                        atol=atol, jac=seg.jac if settings.method in ("LSODA", "BDF", "Radau")
-                        else None, events=events or None, dense_output=True,
-                        max_step=settings.max_step)
+            t, y, hit = _integrate_segment(seg, settings, atol, y, raw, stats)
+        except _Failure as f:
+            stats["rhs_calls"] += seg.rhs_calls
+            stats["jacobians"] += seg.jac_calls
+            return _finish(raw, "failed", str(f), f.y, f.t, model, evals0, wall0)
+        except StateError as exc:  # observing a recorded point
+            return _finish(raw, "failed", str(exc), y, t, model, evals0, wall0)
         stats["rhs_calls"] += seg.rhs_calls
         stats["jacobians"] += seg.jac_calls
-        stats["steps"] += max(len(sol.t) - 1, 0)
-        if sol.status == -1 or not np.all(np.isfinite(sol.y[:, -1])):
-            why = str(seg.last_error) if seg.last_error is not None else sol.message
-            return _fail(raw, stats, f"the solver could not proceed past t = {sol.t[-1]:.6g} s: "
-                         f"{why}", sol.y[:, -1], sol.t[-1], model, evals0, wall0)
-
-        # earliest event that is not the one this segment started with
-        hit = None
-        if sol.status == 1:
-            for k, te in enumerate(sol.t_events):
-                for j, tk in enumerate(te):
-                    if tk - t > _EVENT_AT_START and (hit is None or tk < hit[0]):
-                        hit = (tk, sol.y_events[k][j], events[k].action)
-        t_stop = hit[0] if hit is not None else sol.t[-1]
-
-        try:
-            for tk, yk in zip(sol.t[1:], sol.y.T[1:]):
-                if tk <= t_stop:
-                    raw.fine_rows.append(seg.observe(tk, yk))
-            n0 = math.floor(t / dt_rec + 1e-9) + 1
-            for n in range(n0, math.floor(t_stop / dt_rec * (1 + 1e-12)) + 1):
-                tk = n * dt_rec
-                if t < tk < t_stop:
-                    raw.rows.append(seg.observe(tk, sol.sol(tk)))
-            y_stop = hit[1] if hit is not None else sol.y[:, -1]
-            raw.rows.append(seg.observe(t_stop, y_stop))
-        except StateError as exc:
-            return _fail(raw, stats, str(exc), sol.y[:, -1], sol.t[-1], model, evals0, wall0)
-
-        t, y = t_stop, np.array(y_stop, dtype=float)
         if progress is not None:
             progress(t, t_end)
         if hit is None:
             continue
         stats["events"] += 1
-        kind, what, text = hit[2]
+        kind, what, text = hit
         if kind == "stop":
-            raw.status = "stopped"
-            raw.message = f"stop condition met: {text}"
-            raw.events.append((t, raw.message))
-            break
+            msg = f"stop condition met: {text}"
+            raw.events.append((t, msg))
+            return _finish(raw, "stopped", msg, y, t, model, evals0, wall0)
         discrete = dict(discrete)
         discrete[what.key] = what.new_value
         raw.events.append((t, text))
         switch_times.append(t)
-        if len(switch_times) >= CHATTER_COUNT and (
-                t - switch_times[-CHATTER_COUNT] <= CHATTER_SPAN * max(t_end, 1.0)):
-            return _fail(raw, stats, f"{CHATTER_COUNT} switches within "
-                         f"{CHATTER_SPAN * max(t_end, 1.0):.3g} s at t = {t:.6g} s ({text}): "
-                         "the device chatters. Give its switch a deadband (e.g. "
-                         "restart_above for a cut-off, a larger blowdown for a relief valve).",
-                         y, t, model, evals0, wall0)
+        span = CHATTER_SPAN * max(t_end, 1.0)
+        if len(switch_times) >= CHATTER_COUNT and t - switch_times[-CHATTER_COUNT] <= span:
+            return _finish(raw, "failed", f"{CHATTER_COUNT} switches within {span:.3g} s at "
+                           f"t = {t:.6g} s ({text}): the device chatters. Give its switch a "
+                           "deadband (e.g. restart_above for a cut-off, a larger blowdown "
+                           "for a relief valve).", y, t, model, evals0, wall0)
         if len(switch_times) > MAX_SWITCHES:
-            return _fail(raw, stats, f"more than {MAX_SWITCHES} switches by t = {t:.6g} s "
-                         f"(last: {text}); the run is cycling too often to integrate. Widen "
-                         "the device's deadband or shorten the run.", y, t, model, evals0,
-                         wall0)
-    else:
-        raw.message = f"end time reached ({t_end:g} s)"
+            return _finish(raw, "failed", f"more than {MAX_SWITCHES} switches by t = {t:.6g} s "
+                           f"(last: {text}); the run is cycling too often to integrate. Widen "
+                           "the device's deadband or shorten the run.", y, t, model, evals0,
+                           wall0)
+    return _finish(raw, "completed", f"end time reached ({t_end:g} s)", y, t, model, evals0,
+                   wall0)
 
-    raw.y_final, raw.t_final = y, t
-    stats["property_evaluations"] = model.fluid.evaluations - evals0
-    stats["wall_time_s"] = _time.perf_counter() - wall0
-    raw.stats = stats
-    return raw
+
+def _new_solver(seg, settings, atol, t, y, first_step):
+    cls = METHODS[settings.method]
+    opts = dict(rtol=settings.rtol, atol=atol, max_step=settings.max_step)
+    if settings.method in IMPLICIT:
+        opts["jac"] = seg.jac
+    if first_step is not None:
+        opts["first_step"] = min(first_step, seg.t1 - t)
+    return cls(seg.rhs, t, y, seg.t1, **opts)
+
+
+def _integrate_segment(seg, settings, atol, y, raw, stats):
+    """Step one segment; returns (t, y, event action or None)."""
+    t = seg.t0
+    events = seg.events(settings.stop)
+    g = [ev(t, y) for ev in events]
+    solver = _new_solver(seg, settings, atol, t, y, None)
+    dt_rec = settings.record_every
+    retries = 0
+    h_last = None
+    while True:
+        t_old, y_old = t, y
+        seg.last_error = None
+        msg = solver.step()
+        bad = solver.status == "failed" or not np.all(np.isfinite(solver.y))
+        if bad:
+            why = str(seg.last_error) if seg.last_error is not None else (
+                msg or "non-finite values")
+            retries += 1
+            stats["rejected_retries"] += 1
+            if retries > MAX_RETRIES:
+                raise _Failure(f"the solver could not proceed past t = {t_old:.6g} s: {why}",
+                               t_old, y_old)
+            h_try = (h_last or max(seg.t1 - t_old, 1e-9) * 1e-3) / RETRY_SHRINK ** retries
+            if h_try < 1e-12 * max(abs(t_old), 1.0):
+                raise _Failure(f"the solver could not proceed past t = {t_old:.6g} s: {why}",
+                               t_old, y_old)
+            solver = _new_solver(seg, settings, atol, t_old, y_old, h_try)
+            continue
+        retries = 0
+        t, y = solver.t, solver.y.copy()
+        h_last = t - t_old
+        stats["steps"] += 1
+        dense = None
+        hit = None
+        if events:
+            g_new = [ev(t, y) for ev in events]
+            for k, ev in enumerate(events):
+                if _crossed(g[k], g_new[k], ev.direction):
+                    dense = dense or solver.dense_output()
+                    te = _locate(ev, dense, t_old, t)
+                    if te - seg.t0 > _EVENT_AT_START and (hit is None or te < hit[0]):
+                        hit = (te, k)
+            g = g_new
+        t_stop = hit[0] if hit is not None else t
+        if dense is None and _grid_between(t_old, t_stop, dt_rec):
+            dense = solver.dense_output()
+        for tk in _grid_between(t_old, t_stop, dt_rec):
+            raw.rows.append(seg.observe(tk, dense(tk)))
+        if hit is not None:
+            y_stop = dense(t_stop)
+            raw.rows.append(seg.observe(t_stop, y_stop))
+            return t_stop, y_stop, events[hit[1]].action
+        raw.fine_rows.append(seg.observe(t, y))
+        if solver.status == "finished":
+            raw.rows.append(seg.observe(t, y))
+            return t, y, None
+
+
+def _grid_between(t0, t1, dt):
+    """Multiples of dt strictly between t0 and t1."""
+    n0 = math.floor(t0 / dt + 1e-9) + 1
+    n1 = math.ceil(t1 / dt - 1e-9) - 1
+    return [n * dt for n in range(n0, n1 + 1) if t0 < n * dt < t1]
+
+
+def _crossed(g0, g1, direction) -> bool:
+    """A zero crossing in the watched direction (as scipy's solve_ivp decides)."""
+    if not (g0 == g0 and g1 == g1):
+        return False
+    up = g0 <= 0.0 <= g1 and g0 != g1
+    down = g0 >= 0.0 >= g1 and g0 != g1
+    return (up and direction > 0) or (down and direction < 0) or (
+        (up or down) and direction == 0)
+
+
+def _locate(ev, dense, t0, t1) -> float:
+    """Time of the zero of an event function inside a step, on the dense output."""
+    f0 = ev(t0, dense(t0))
+    f1 = ev(t1, dense(t1))
+    if f0 == 0.0:
+        return t0
+    if f1 == 0.0 or f0 * f1 > 0.0:
+        return t1
+    return brentq(lambda tt: ev(tt, dense(tt)), t0, t1, xtol=4 * np.finfo(float).eps,
+                  rtol=4 * np.finfo(float).eps)
 
 
 def _met_at_start(seg, conditions, y):
     for cond in conditions:
-        st = seg.states(0.0, y).states[seg.model.node_index[cond.node]]
-        vi = seg.model.node_index[cond.node]
-        value = (y[2 * vi] if cond.quantity == "mass" else
+        i = seg.model.node_index[cond.node]
+        st = seg.states(0.0, y).states[i]
+        value = (y[2 * i] if cond.quantity == "mass" else
                  st.p if cond.quantity == "pressure" else st.T)
         if (cond.direction == "below" and value <= cond.value) or (
                 cond.direction == "above" and value >= cond.value):
@@ -196,12 +263,13 @@ def _met_at_start(seg, conditions, y):
     return None
 
 
-def _fail(raw, stats, message, y, t, model, evals0, wall0):
-    raw.status = "failed"
+def _finish(raw, status, message, y, t, model, evals0, wall0):
+    raw.status = status
     raw.message = message
-    raw.y_final, raw.t_final = np.asarray(y, dtype=float), float(t)
-    raw.events.append((float(t), "run failed: " + message))
-    stats["property_evaluations"] = model.fluid.evaluations - evals0
-    stats["wall_time_s"] = _time.perf_counter() - wall0
-    raw.stats = stats
+    raw.y_final = None if y is None else np.asarray(y, dtype=float)
+    raw.t_final = float(t)
+    if status == "failed":
+        raw.events.append((float(t), "run failed: " + message))
+    raw.stats["property_evaluations"] = model.fluid.evaluations - evals0
+    raw.stats["wall_time_s"] = _time.perf_counter() - wall0
     return raw

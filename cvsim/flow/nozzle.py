@@ -35,6 +35,7 @@ from __future__ import annotations
 
 import math
 
+from ..errors import StateError
 from ..fluid import State
 
 #: Relative pressure difference (p0 - pb)/p0 below which the flux is linear in
@@ -195,24 +196,38 @@ def _throat(fluid, up: State, hint: NozzleHint):
 
 
 def _throat_by_maximum(fluid, up: State, x_guess: float, T_guess: float):
-    """Golden-section search for the maximum of G(x) on [x_guess - 1.5, -1e-4]."""
+    """Golden-section search for the maximum of G(x) on [x_guess - 1.5, -1e-4].
+
+    Points beyond the end of the equation of state (below the triple point)
+    count as zero flux: the maximum lies at higher density.
+    """
     invphi = (math.sqrt(5.0) - 1.0) / 2.0
     a, b = x_guess - 1.5, -1e-4
-    T = T_guess
+
+    def point(x, T):
+        try:
+            return _point(fluid, up, x, T)
+        except StateError:
+            return None, -1.0, 0.0
+
     c = b - invphi * (b - a)
     d = a + invphi * (b - a)
-    stc, gc, _ = _point(fluid, up, c, T)
-    std, gd, _ = _point(fluid, up, d, stc.T)
+    stc, gc, _ = point(c, T_guess)
+    std, gd, _ = point(d, stc.T if stc is not None else T_guess)
     while b - a > 1e-6:
         if gc > gd:
             b, d, std, gd = d, c, stc, gc
             c = b - invphi * (b - a)
-            stc, gc, _ = _point(fluid, up, c, std.T)
+            stc, gc, _ = point(c, std.T if std is not None else T_guess)
         else:
             a, c, stc, gc = c, d, std, gd
             d = a + invphi * (b - a)
-            std, gd, _ = _point(fluid, up, d, stc.T)
-    return (c, stc, gc) if gc > gd else (d, std, gd)
+            std, gd, _ = point(d, stc.T if stc is not None else T_guess)
+    best = (c, stc, gc) if gc > gd else (d, std, gd)
+    if best[1] is None:
+        raise StateError(f"no throat state found for {fluid.name} expanding from "
+                         f"{up.p / 1e5:.6g} bar a, {up.T:.6g} K")
+    return best
 
 
 def _subcritical(fluid, up: State, pb: float, hint: NozzleHint, x_crit: float | None = None):
