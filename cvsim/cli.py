@@ -50,6 +50,9 @@ def _parser() -> argparse.ArgumentParser:
                    help="if the run fails part-way, still write what was computed (every "
                    "file then says the run failed)")
     r.add_argument("--quiet", action="store_true", help="do not print the summary")
+    r.add_argument("--fail-on-limits", action="store_true",
+                   help="exit with status 3 when a design limit stated in the scenario is "
+                   "crossed (for scripted studies)")
 
     c = sub.add_parser("check", help="validate a scenario without running it",
                        description="Read and validate a scenario; list every problem at once "
@@ -112,7 +115,12 @@ def cmd_run(args) -> int:
     if not args.quiet:
         print(summary_text(result))
     print(f"Results written to {out}/")
-    return 0 if result.ok else 1
+    if not result.ok:
+        return 1
+    if args.fail_on_limits and result.limits_crossed:
+        print(f"cvsim: {len(result.limits_crossed)} design limit(s) crossed", file=sys.stderr)
+        return 3
+    return 0
 
 
 def cmd_check(args) -> int:

@@ -103,11 +103,39 @@ class InitialState:
 
 
 @dataclass(frozen=True)
+class VesselLimits:
+    """Design limits of a vessel, checked after the run (``None``: not checked).
+
+    design_pressure        [Pa, absolute] MAWP / design pressure
+    accumulation           [-] allowed overpressure above design pressure, as a fraction
+                           of the design gauge pressure (0.10 single relief device,
+                           0.16 several, 0.21 fire)
+    accumulation_case      the case named in the scenario (``single-device``,
+                           ``multiple-devices``, ``fire``) or ``stated``
+    min_metal_temperature  [K] minimum design metal temperature (MDMT)
+    max_temperature        [K] highest allowed gas or wall temperature
+    depressure_to          [Pa, absolute] depressuring target pressure
+    depressure_within      [s] time allowed to reach it
+    depressure_basis       how the target was stated (for the report)
+    """
+
+    design_pressure: float | None = None
+    accumulation: float | None = None
+    accumulation_case: str = "stated"
+    min_metal_temperature: float | None = None
+    max_temperature: float | None = None
+    depressure_to: float | None = None
+    depressure_within: float | None = None
+    depressure_basis: str = ""
+
+
+@dataclass(frozen=True)
 class Vessel:
     name: str
     geometry: Geometry
     initial: InitialState
     heat: tuple[HeatTerm, ...] = ()
+    limits: VesselLimits | None = None
 
     @property
     def volume(self) -> float:
@@ -249,5 +277,5 @@ class Network:
 __all__ = [
     "AmbientExchange", "Constant", "Device", "FixedFlow", "FluidSpec", "Geometry",
     "HeatLoad", "HeatTerm", "InitialState", "Link", "Network", "Orifice", "Reservoir",
-    "RunSettings", "StopCondition", "Vessel",
+    "RunSettings", "StopCondition", "Vessel", "VesselLimits",
 ]

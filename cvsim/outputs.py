@@ -150,6 +150,9 @@ def summary_text(result: Result) -> str:
         L.append("Events:")
         for e in s["events"]:
             L.append(f"  {_t(e['time_s'])}: {e['event']}")
+    if result.limits:
+        L.append("")
+        L.append(limits_text(result))
     b = s["balance"]
     if b:
         L.append("")
@@ -169,6 +172,45 @@ def summary_text(result: Result) -> str:
 
 #: file that marks a folder as cvsim's own output (so it may be replaced)
 MARKER = ".cvsim-output"
+
+
+def _limit_value(value: float, unit: str, atm: float) -> str:
+    if value != value:
+        return "-"
+    if unit == "Pa":
+        return f"{(value - atm) / 1e5:.4g} bar g"
+    if unit == "K":
+        return f"{value - 273.15:.1f} degC"
+    if unit == "s":
+        return _t(value)
+    return f"{value:.4g} {unit}"
+
+
+def _margin(value: float, unit: str) -> str:
+    if value != value:
+        return "-"
+    if unit == "Pa":
+        return f"{value / 1e5:+.3g} bar"
+    if unit == "K":
+        return f"{value:+.1f} K"
+    if unit == "s":
+        return f"{value:+.4g} s"
+    return f"{value:+.4g} {unit}"
+
+
+def limits_text(result: Result) -> str:
+    """The design-limit table of a run, for the screen and summary.txt."""
+    atm = result.network.atmosphere
+    crossed = result.limits_crossed
+    L = [f"Design limits: {len(result.limits) - len(crossed)} met, {len(crossed)} CROSSED"]
+    for c in result.limits:
+        state = "met    " if c.met else "CROSSED"
+        when = f" at {_t(c.time)}" if c.unit != "s" and c.time == c.time else ""
+        L.append(f"  [{state}] {c.vessel}: {c.name}")
+        L.append(f"            limit {_limit_value(c.limit, c.unit, atm)}, reached "
+                 f"{_limit_value(c.actual, c.unit, atm)}{when}, margin {_margin(c.margin, c.unit)}")
+        L.append(f"            practice: {c.practice}" + (f"; {c.note}" if c.note else ""))
+    return "\n".join(L)
 
 
 def write_run_outputs(result: Result, out_dir: Path, plots: bool = True,

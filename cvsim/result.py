@@ -13,6 +13,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from .limits import check_vessel
 from .model import ACC_PER_LINK, Model
 from .network import Network
 from .solve import RawRun
@@ -36,6 +37,12 @@ class Result:
     balance: dict            # mass and energy closure of the whole run
     assumptions: list        # model choices, in words
     provenance: dict = field(default_factory=dict)  # versions, scenario hash
+    limits: list = field(default_factory=list)      # LimitCheck per vessel limit
+
+    @property
+    def limits_crossed(self) -> list:
+        """The design limits this run crosses."""
+        return [c for c in self.limits if not c.met]
 
     # -------------------------------------------------------------- access
     @property
@@ -104,6 +111,8 @@ class Result:
             "links": {},
             "heat": {},
             "events": [{"time_s": float(t), "event": e} for t, e in self.events],
+            "limits": [c.as_dict() for c in self.limits],
+            "limits_crossed": len(self.limits_crossed),
             "balance": self.balance,
             "solver": self.stats,
             "assumptions": self.assumptions,
@@ -159,10 +168,30 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
     data = np.array(raw.rows, dtype=float) if raw.rows else np.zeros((0, len(cols)))
     fine = np.array(raw.fine_rows, dtype=float) if raw.fine_rows else np.zeros((0, len(cols)))
     totals, balance = _balances(model, raw)
-    return Result(network=model.network, status=raw.status, message=raw.message, columns=cols,
-                  data=data, fine_data=fine, events=list(raw.events), stats=dict(raw.stats),
-                  totals=totals, balance=balance, assumptions=assumptions(model),
-                  provenance=dict(provenance or {}))
+    result = Result(network=model.network, status=raw.status, message=raw.message,
+                    columns=cols, data=data, fine_data=fine, events=list(raw.events),
+                    stats=dict(raw.stats), totals=totals, balance=balance,
+                    assumptions=assumptions(model), provenance=dict(provenance or {}))
+    result.limits = check_limits(result)
+    return result
+
+
+def check_limits(result: Result) -> list:
+    """Design-limit checks of every vessel that states limits (see :mod:`cvsim.limits`)."""
+    out = []
+    if len(result.data) == 0:
+        return out
+    rows = result._all()
+    t = rows[:, 0]
+    for v in result.network.vessels:
+        if v.limits is None:
+            continue
+        walls = {name: rows[:, i] for i, (name, unit, kind) in enumerate(result.columns)
+                 if name.startswith(f"{v.name}.wall.") and unit == "K"}
+        out += check_vessel(v.name, v.limits, result.network.atmosphere, t,
+                            rows[:, result._col(f"{v.name}.pressure")],
+                            rows[:, result._col(f"{v.name}.temperature")], walls)
+    return out
 
 
 def _balances(model: Model, raw: RawRun):

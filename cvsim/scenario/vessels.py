@@ -8,6 +8,7 @@ from __future__ import annotations
 
 from ..heat import geometry as geo
 from ..network import AmbientExchange, Geometry, HeatLoad, InitialState, Reservoir, Vessel
+from .limits import LIMITS_FIELD, build_limits
 from .registry import HEAT_TERMS, SHAPES, HeatTermKind, register_heat_term, register_shape
 from .spec import BAD, Choice, Field, Quantity, Section, Sub, Variant
 
@@ -171,6 +172,7 @@ VESSEL = Section(
         Field("shape", Sub(SHAPE), "Inside shape; gives the volume, inner area and height."),
         Field("initial", Sub(INITIAL), "Initial state.", required=True),
         Field("heat", Sub(HEAT), "Heat terms; none given: adiabatic."),
+        LIMITS_FIELD,
     ),
     one_of=(("volume", "shape"),),
     checks=(_check_vessel,),
@@ -207,7 +209,8 @@ def build_vessel(name: str, values, ctx) -> Vessel:
     terms = tuple(kind.build(heat[key], geometry, heat.where[key], ctx)
                   for key, kind in HEAT_TERMS.items() if heat.get(key) is not None)
     return Vessel(name=name, geometry=geometry,
-                  initial=InitialState(initial["pressure"], initial["temperature"]), heat=terms)
+                  initial=InitialState(initial["pressure"], initial["temperature"]), heat=terms,
+                  limits=build_limits(values["limits"], ctx))
 
 
 def build_reservoir(name: str, values, ctx) -> Reservoir:

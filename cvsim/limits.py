@@ -1,0 +1,194 @@
+"""Design-limit checks: pressure with allowed accumulation, metal and gas temperatures,
+depressuring target.
+
+Pure functions on SI numbers and arrays. Each check gives a :class:`LimitCheck`:
+the limit, the extreme reached and when, met or crossed, the margin, and the
+governing practice named, so the summary and report can list it beside the
+caution that every result carries.
+"""
+from __future__ import annotations
+
+from dataclasses import asdict, dataclass
+
+import numpy as np
+
+#: Allowed accumulation above MAWP as a fraction of the MAWP (gauge), and the
+#: smallest allowed overpressure [Pa] for low design pressures.
+#: Source: ASME BPVC Section VIII Div. 1, UG-125(c) (10 % or 3 psi for a single device,
+#: 16 % or 4 psi for several devices, 21 % for fire); API 520 Part I, sec. 4 (table of
+#: accumulation). Values from memory; the percentages are also listed in
+#: shared/references.md from a relief-valve engineering handbook citing API.
+ACCUMULATION = {
+    "single-device": (0.10, 20.684e3),     # 3 psi
+    "multiple-devices": (0.16, 27.579e3),  # 4 psi
+    "fire": (0.21, 0.0),
+}
+ACCUMULATION_SOURCE = "ASME VIII-1 UG-125(c); API 520 Part I (allowed accumulation)"
+
+#: Depressuring guideline: to 690 kPa gauge (100 psig) or 50 % of the design gauge
+#: pressure, whichever is lower, in about 15 min (API 521, depressuring; secondary
+#: sources: common practice, no primary source at hand).
+GUIDELINE_GAUGE = 690e3
+GUIDELINE_FRACTION = 0.5
+GUIDELINE_TIME = 15 * 60.0
+GUIDELINE_SOURCE = ("API 521 depressuring guideline: 690 kPa g or 50 % of design pressure, "
+                    "whichever is lower, within about 15 min (common practice)")
+MDMT_SOURCE = "ASME VIII-1 UG-20 / UCS-66 (minimum design metal temperature)"
+
+
+def allowed_pressure(design_pressure: float, atmosphere: float, accumulation: float,
+                     min_overpressure: float = 0.0) -> float:
+    """Highest allowed pressure [Pa, absolute] during relief.
+
+        p_allowed = p_atm + p_design,g + max(a * p_design,g, dp_min)
+
+    Parameters
+    ----------
+    design_pressure : MAWP [Pa, absolute]
+    atmosphere : local atmospheric pressure [Pa]
+    accumulation : allowed accumulation as a fraction of the design gauge pressure [-]
+    min_overpressure : smallest allowed overpressure [Pa] (3 psi single device)
+
+    >>> round(allowed_pressure(10e5 + 101325, 101325, 0.10) - 101325)  # 10 bar g + 10 %
+    1100000
+    """
+    gauge = design_pressure - atmosphere
+    return atmosphere + gauge + max(accumulation * gauge, min_overpressure)
+
+
+def guideline_target(design_pressure: float, atmosphere: float) -> float:
+    """Depressuring target of the API 521 guideline [Pa, absolute]:
+    690 kPa gauge or half the design gauge pressure, whichever is lower.
+
+    >>> round(guideline_target(20e5 + 101325, 101325) - 101325)  # 20 bar g design
+    690000
+    >>> round(guideline_target(10e5 + 101325, 101325) - 101325)  # 10 bar g design
+    500000
+    """
+    return atmosphere + min(GUIDELINE_GAUGE, GUIDELINE_FRACTION * (design_pressure - atmosphere))
+
+
+@dataclass(frozen=True)
+class LimitCheck:
+    """One design limit against the run.
+
+    quantity  what is limited (``pressure``, ``temperature``, ``time``)
+    limit     the limit [SI]; ``actual`` the extreme reached [SI] at ``time`` [s]
+    margin    [SI] positive when met (how far from the limit), negative when crossed
+    """
+
+    vessel: str
+    name: str
+    quantity: str
+    limit: float
+    actual: float
+    time: float
+    met: bool
+    margin: float
+    unit: str
+    practice: str
+    note: str = ""
+
+    def as_dict(self) -> dict:
+        return asdict(self)
+
+
+def _extreme(t, values, kind):
+    values = np.asarray(values, dtype=float)
+    if values.size == 0 or np.all(np.isnan(values)):
+        return float("nan"), float("nan")
+    i = int(np.nanargmax(values) if kind == "max" else np.nanargmin(values))
+    return float(values[i]), float(t[i])
+
+
+def first_time_at_or_below(t, values, target: float) -> float:
+    """First time [s] a history reaches ``target`` from above (linear between
+    points); NaN if never."""
+    t = np.asarray(t, dtype=float)
+    v = np.asarray(values, dtype=float)
+    below = np.nonzero(v <= target * (1.0 + 1e-9))[0]  # a stop event lands on the target
+    if below.size == 0:
+        return float("nan")
+    i = int(below[0])
+    if i == 0:
+        return float(t[0])
+    t0, t1, v0, v1 = t[i - 1], t[i], v[i - 1], v[i]
+    if v1 >= target or v0 == v1:
+        return float(t1)
+    return float(t0 + (t1 - t0) * (v0 - target) / (v0 - v1))
+
+
+def check_vessel(name: str, limits, atmosphere: float, t, pressure, gas_temperature,
+                 wall_temperatures: dict | None = None, end_time: float | None = None
+                 ) -> list[LimitCheck]:
+    """All limit checks of one vessel from its histories (SI arrays on times ``t``).
+
+    ``wall_temperatures`` maps a wall column name to its history; metal-temperature
+    limits use the wall where one is modelled, else the gas temperature (in a
+    blowdown the gas is colder than the wall, so this is conservative).
+    """
+    out: list[LimitCheck] = []
+    t = np.asarray(t, dtype=float)
+    walls = wall_temperatures or {}
+    if limits is None:
+        return out
+    if limits.design_pressure is not None:
+        acc = limits.accumulation if limits.accumulation is not None else 0.10
+        dp_min = ACCUMULATION.get(limits.accumulation_case, (acc, 0.0))[1]
+        p_allow = allowed_pressure(limits.design_pressure, atmosphere, acc, dp_min)
+        p_max, t_max = _extreme(t, pressure, "max")
+        out.append(LimitCheck(
+            name, f"peak pressure within design pressure + {acc * 100:.0f} % accumulation "
+            f"({limits.accumulation_case})", "pressure", p_allow, p_max, t_max,
+            bool(p_max <= p_allow), p_allow - p_max, "Pa", ACCUMULATION_SOURCE,
+            f"design pressure {(limits.design_pressure - atmosphere) / 1e5:.6g} bar g"))
+    if limits.min_metal_temperature is not None:
+        if walls:
+            mins = [(_extreme(t, v, "min"), k) for k, v in walls.items()]
+            (T_min, t_min), col = min(mins, key=lambda m: m[0][0])
+            basis = f"wall temperature ({col})"
+        else:
+            T_min, t_min = _extreme(t, gas_temperature, "min")
+            basis = "gas temperature (no wall modelled; conservative for the metal)"
+        out.append(LimitCheck(
+            name, "lowest metal temperature above the minimum design metal temperature",
+            "temperature", limits.min_metal_temperature, T_min, t_min,
+            bool(T_min >= limits.min_metal_temperature), T_min - limits.min_metal_temperature,
+            "K", MDMT_SOURCE, f"checked on the {basis}"))
+        if walls:
+            Tg, tg = _extreme(t, gas_temperature, "min")
+            out.append(LimitCheck(
+                name, "lowest gas temperature above the minimum design metal temperature",
+                "temperature", limits.min_metal_temperature, Tg, tg,
+                bool(Tg >= limits.min_metal_temperature), Tg - limits.min_metal_temperature,
+                "K", MDMT_SOURCE, "gas in contact with the inner wall"))
+    if limits.max_temperature is not None:
+        series = {"gas": gas_temperature, **walls}
+        for label, values in series.items():
+            T_max, t_max = _extreme(t, values, "max")
+            out.append(LimitCheck(
+                name, f"highest {label} temperature below the allowed maximum",
+                "temperature", limits.max_temperature, T_max, t_max,
+                bool(T_max <= limits.max_temperature), limits.max_temperature - T_max, "K",
+                "design limit stated in the scenario (e.g. 85 degC for hydrogen vehicle "
+                "cylinders, SAE J2601)", ""))
+    if limits.depressure_to is not None and limits.depressure_within is not None:
+        t_reach = first_time_at_or_below(t, pressure, limits.depressure_to)
+        reached = t_reach == t_reach
+        met = bool(reached and t_reach <= limits.depressure_within)
+        guideline = "guideline" in limits.depressure_basis
+        note = "" if guideline else limits.depressure_basis
+        if not reached:
+            p_end = float(np.asarray(pressure)[-1])
+            note = (note + "; " if note else "") + (
+                f"not reached by the end of the run (t = {t[-1]:.6g} s, "
+                f"{(p_end - atmosphere) / 1e5:.4g} bar g)")
+        out.append(LimitCheck(
+            name, f"depressured to {(limits.depressure_to - atmosphere) / 1e5:.4g} bar g "
+            f"within {limits.depressure_within / 60:.4g} min", "time",
+            limits.depressure_within, t_reach if reached else float("nan"),
+            t_reach if reached else float("nan"), met,
+            limits.depressure_within - t_reach if reached else float("nan"), "s",
+            GUIDELINE_SOURCE if guideline else
+            "depressuring target stated in the scenario (API 521 practice)", note))
+    return out
