@@ -275,20 +275,24 @@ class RealFluid:
 
     def saturated_vapour_at_p(self, p: float) -> State:
         """Saturated vapour at pressure p [Pa] (below the critical pressure)."""
-        self.evaluations += 1
-        self._as.update(self._PQ, p, 1.0)
-        a = self._as
-        # quality 1 exactly: report it as a (boundary) single-phase vapour state
-        return State(a.rhomass(), a.T(), a.p(), a.umass(), a.hmass(), a.smass(),
-                     NAN, a.cvmass(), NAN, 1.0)
+        return self._saturated(p, 1.0)
 
     def saturated_liquid_at_p(self, p: float) -> State:
         """Saturated liquid at pressure p [Pa] (below the critical pressure)."""
+        return self._saturated(p, 0.0)
+
+    def _saturated(self, p: float, quality: float) -> State:
         self.evaluations += 1
-        self._as.update(self._PQ, p, 0.0)
+        try:
+            self._as.update(self._PQ, p, quality)
+        except ValueError as exc:
+            raise StateError(f"{self.name} saturation state failed at p = {p:.6g} Pa: "
+                             f"{exc}") from None
         a = self._as
+        # on the saturation line cp and the speed of sound are those of a phase
+        # boundary; report them as undefined, like the two-phase states
         return State(a.rhomass(), a.T(), a.p(), a.umass(), a.hmass(), a.smass(),
-                     NAN, a.cvmass(), NAN, 0.0)
+                     NAN, a.cvmass(), NAN, quality)
 
 
 class IdealGas:
