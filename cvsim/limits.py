@@ -106,7 +106,8 @@ def first_time_at_or_below(t, values, target: float) -> float:
     points); NaN if never."""
     t = np.asarray(t, dtype=float)
     v = np.asarray(values, dtype=float)
-    below = np.nonzero(v <= target * (1.0 + 1e-9))[0]  # a stop event lands on the target
+    # a stop event lands on the target: allow for its last digits
+    below = np.nonzero(v <= target + 1e-9 * abs(target))[0]
     if below.size == 0:
         return float("nan")
     i = int(below[0])

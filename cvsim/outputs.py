@@ -132,6 +132,12 @@ def summary_text(result: Result) -> str:
         if "two_phase_from_s" in v:
             L.append(f"  two phases present from {_t(v['two_phase_from_s'])} "
                      f"(lowest vapour quality {v['min_vapour_quality']:.4f})")
+    if s["targets"]:
+        L.append("")
+        L.append("Targets (stop conditions):")
+        for tg in s["targets"]:
+            when = _t(tg["time_s"]) if tg["time_s"] is not None else "not reached"
+            L.append(f"  {tg['condition']}: {when}")
     if s["links"]:
         L.append("")
         L.append("Links (flow positive from 'from' to 'to'):")

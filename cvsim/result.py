@@ -13,7 +13,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from .limits import check_vessel
+from .limits import check_vessel, first_time_at_or_below
 from .model import ACC_PER_LINK, Model
 from .network import Network
 from .solve import RawRun
@@ -100,6 +100,23 @@ class Result:
         i = int(np.nanargmax(col) if kind == "max" else np.nanargmin(col))
         return float(col[i]), float(allrows[i, 0])
 
+    def targets(self) -> list[dict]:
+        """Time each stop condition of the run was first met (``None``: not reached)."""
+        out = []
+        if not len(self.data):
+            return out
+        rows = self._all()
+        t = rows[:, 0]
+        for cond in self.network.run.stop:
+            col = rows[:, self._col(f"{cond.node}.{cond.quantity}")]
+            if cond.direction == "below":
+                hit = first_time_at_or_below(t, col, cond.value)
+            else:
+                hit = first_time_at_or_below(t, -col, -cond.value)
+            out.append({"condition": cond.describe(),
+                        "time_s": hit if hit == hit else None})
+        return out
+
     def summary(self) -> dict:
         """Figures for the summary (SI), plain data ready for JSON."""
         out = {
@@ -111,6 +128,7 @@ class Result:
             "links": {},
             "heat": {},
             "events": [{"time_s": float(t), "event": e} for t, e in self.events],
+            "targets": self.targets(),
             "limits": [c.as_dict() for c in self.limits],
             "limits_crossed": len(self.limits_crossed),
             "balance": self.balance,

@@ -165,3 +165,15 @@ def test_fixed_flow_stops_below_its_source_pressure():
     assert res.ok
     assert res["rx.pressure"][-1] == pytest.approx(5e5, rel=1e-5)
     assert any("stopped" in e for _, e in res.events)
+
+
+def test_carbon_dioxide_blowdown_stops_clearly_at_solid_formation():
+    """Below the triple point (5.18 bar a, -56.6 degC; references.md) solid CO2 would form:
+    the run ends with status 'failed', naming the time and the reason, never silently."""
+    net = blowdown_network(nw.FluidSpec("CarbonDioxide"), 40e5, 293.15, volume=0.05,
+                           d=0.005, cd=0.8, end=3600.0, rtol=1e-6)
+    res = run_network(net)
+    assert res.status == "failed"
+    assert "solid" in res.message and "t = " in res.message
+    # it got as far as the two-phase region first, with quality reported
+    assert res.summary()["vessels"]["tank"]["min_vapour_quality"] < 1.0
