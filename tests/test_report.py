@@ -6,6 +6,7 @@ import dataclasses
 import hashlib
 import html
 import math
+import os
 import re
 import shutil
 import subprocess
@@ -412,13 +413,16 @@ def test_sweep_report_needs_no_scenario_and_takes_every_column_by_default():
 # ------------------------------------------------------------------ in a browser
 
 CHROMIUM = shutil.which("chromium") or shutil.which("chromium-browser")
+# .ci/run installs Chromium and sets this, so that in CI these tests run or fail, never skip
+REQUIRED = os.environ.get("CVSIM_REQUIRE_CHROMIUM") == "1"
 needs_chromium = pytest.mark.skipif(
-    CHROMIUM is None, reason="Chromium is not installed (.ci/run installs Debian's "
-    "chromium; locally: apt-get install chromium)")
+    CHROMIUM is None and not REQUIRED, reason="Chromium is not installed (.ci/run installs "
+    "Debian's chromium; locally: apt-get install chromium)")
 
 
 def chromium(tmp_path, *args) -> subprocess.CompletedProcess:
     """Headless Chromium, offline and without a profile of its own."""
+    assert CHROMIUM, "CVSIM_REQUIRE_CHROMIUM=1 but no chromium on the PATH"
     cmd = [CHROMIUM, "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic",
            "--no-first-run", "--disable-background-networking", "--disable-component-update",
            "--disable-sync", "--hide-scrollbars", f"--user-data-dir={tmp_path / 'profile'}",
