@@ -249,6 +249,30 @@ def test_summary_and_checks_show_results_with_times(blowdown_html, blowdown_resu
         assert f"A{i} {a}" in model
 
 
+@pytest.mark.parametrize("path", sorted((ROOT / "scenarios").glob("*.yaml")),
+                         ids=lambda p: p.stem)
+def test_every_demo_scenario_gives_a_complete_report(path):
+    scenario = load_scenario(path)
+    result = run(scenario)
+    text = render_run_report(result, scenario, plots=[])  # plots: tested above
+    assert_offline(text)
+    tree = Tree(text)
+    assert set(RUN_SECTIONS) <= set(tree.ids())
+    assert tree.by_id("inputs-given").find("pre")[0].text() == scenario.source_text
+    assert result.network.title in tree.by_id("title-block").text()
+
+
+def test_text_from_the_scenario_cannot_break_the_page():
+    title = 'Tank <b>1</b> & "2" </style><script>alert(1)</script> \\ end'
+    result = run_network(dataclasses.replace(vent_network(), title=title))
+    text = render_run_report(result, None, plots=[])
+    assert "<script" not in text and "<b>1" not in text
+    tree = Tree(text)
+    assert words(tree.by_id("title-block").find("h1")[0].text()) == words(title)
+    style = tree.root.find("style")[0].text()
+    assert "</" not in style
+
+
 def test_changes_made_for_the_run_are_listed(tmp_path):
     scenario = load_scenario(BLOWDOWN, overrides={"run.end": "20 s"})
     result = run(scenario)
