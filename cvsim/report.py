@@ -124,7 +124,8 @@ def render_run_report(result: Result, scenario=None, plots=None) -> str:
             ("Report written", _now())]
     lead = Html("")
     if not result.ok:
-        lead = notice(f"The run FAILED at t = {_t(_end(result))}: {result.message}. The "
+        lead = notice(f"The run FAILED at t = {_t(_end(result))}: "
+                      f"{result.message.rstrip('.')}. The "
                       "results below cover only the part that was computed and must not be "
                       "used as the answer.", id="failed")
     return document(title=net.title, kind="cvsim calculation report: one run",
