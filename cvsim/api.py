@@ -34,9 +34,11 @@ def provenance(scenario=None) -> dict:
 
 def run_network(network: Network, scenario=None, progress=None) -> Result:
     """Integrate a network; a run that fails part-way returns status 'failed'."""
+    from datetime import datetime
+    started = datetime.now().astimezone().isoformat(timespec="seconds")
     model = Model(network)
     raw = integrate(model, progress=progress)
-    return build_result(model, raw, provenance(scenario))
+    return build_result(model, raw, {**provenance(scenario), "run_started": started})
 
 
 def run(scenario, overrides: dict | None = None, progress=None, check: bool = False) -> Result:

@@ -23,7 +23,7 @@ qualified engineer."""
 
 EPILOG = """\
 examples:
-  cvsim run scenarios/nitrogen-blowdown.yaml --out results/blowdown
+  cvsim run scenarios/nitrogen-blowdown.yaml --out results/blowdown --report
   cvsim check scenarios/hydrogen-fast-fill.yaml
   cvsim fluids
 """
@@ -37,8 +37,9 @@ def _parser() -> argparse.ArgumentParser:
 
     r = sub.add_parser("run", help="simulate a scenario; write histories, plots and a summary",
                        description="Simulate a scenario and write history.csv, steps.csv, "
-                       "summary.txt, summary.json, inputs.txt and PNG plots into an output "
-                       "folder. The folder is written completely or not at all.")
+                       "summary.txt, summary.json, inputs.txt and PNG plots (and with --report "
+                       "report.html) into an output folder. The folder is written completely "
+                       "or not at all.")
     r.add_argument("scenario", type=Path, help="scenario file (YAML)")
     r.add_argument("--out", type=Path, default=None,
                    help="output folder (default: results/<scenario name>)")
@@ -46,6 +47,9 @@ def _parser() -> argparse.ArgumentParser:
                    help="change one scenario value, e.g. --set links.vent.diameter='12 mm' "
                    "(repeatable)")
     r.add_argument("--no-plots", action="store_true", help="skip the PNG plots")
+    r.add_argument("--report", action="store_true",
+                   help="also write report.html: the calculation report of the run, one "
+                   "self-contained HTML file that prints to PDF (docs/report.md)")
     r.add_argument("--keep-failed", action="store_true",
                    help="if the run fails part-way, still write what was computed (every "
                    "file then says the run failed)")
@@ -111,10 +115,13 @@ def cmd_run(args) -> int:
         print("No output written (use --keep-failed to write what was computed).",
               file=sys.stderr)
         return 1
-    write_run_outputs(result, out, plots=not args.no_plots, echo=scenario.echo)
+    write_run_outputs(result, out, plots=not args.no_plots, echo=scenario.echo,
+                      report=args.report, scenario=scenario)
     if not args.quiet:
         print(summary_text(result))
     print(f"Results written to {out}/")
+    if args.report:
+        print(f"Calculation report: {out / 'report.html'}")
     if not result.ok:
         return 1
     if args.fail_on_limits and result.limits_crossed:

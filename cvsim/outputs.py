@@ -220,9 +220,13 @@ def limits_text(result: Result) -> str:
 
 
 def write_run_outputs(result: Result, out_dir: Path, plots: bool = True,
-                      echo: list | None = None) -> list[Path]:
+                      echo: list | None = None, report: bool = False,
+                      scenario=None) -> list[Path]:
     """Write history.csv, steps.csv, summary.txt, summary.json, inputs.txt and
-    plots into ``out_dir``, atomically: all of them or none."""
+    plots into ``out_dir``, atomically: all of them or none.
+
+    With ``report``, also report.html, the calculation report
+    (:mod:`cvsim.report`) of ``result`` and its ``scenario``."""
     out_dir = Path(out_dir)
     parent = out_dir.parent
     if out_dir.exists() and (not out_dir.is_dir() or (
@@ -243,9 +247,15 @@ def write_run_outputs(result: Result, out_dir: Path, plots: bool = True,
         write_summary_json(result, tmp / "summary.json")
         if echo is not None:
             (tmp / "inputs.txt").write_text(echo_text(result, echo), encoding="utf-8")
-        if plots and len(result.data) > 1:
-            from .plot import plot_run
-            plot_run(result, tmp)
+        drawn = None  # plots for the report: None = the report draws its own
+        if plots:
+            drawn = []
+            if len(result.data) > 1:
+                from .plot import plot_run
+                drawn = plot_run(result, tmp)
+        if report:
+            from .report import write_run_report
+            write_run_report(result, tmp / "report.html", scenario, plots=drawn)
         if out_dir.exists():
             old = Path(tempfile.mkdtemp(prefix=f".{out_dir.name}.old-", dir=parent))
             os.rename(out_dir, old / "x")

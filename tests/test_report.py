@@ -1,0 +1,501 @@
+"""The calculation report: every section present, plots embedded, nothing fetched from
+a network, the caution, limits, versions and the scenario's hash in it; and, in headless
+Chromium, a page that draws, keeps its sections and prints to PDF."""
+import base64
+import dataclasses
+import hashlib
+import html
+import math
+import os
+import re
+import shutil
+import subprocess
+from html.parser import HTMLParser
+from pathlib import Path
+
+import pytest
+
+from cvsim import __version__
+from cvsim import network as nw
+from cvsim.api import run, run_network
+from cvsim.cli import main
+from cvsim.report import (render_run_report, render_sweep_report, write_run_report,
+                          write_sweep_report)
+from cvsim.result import CAUTION
+from cvsim.scenario import load_scenario, load_scenario_text
+from cvsim.signals import Constant
+
+ROOT = Path(__file__).resolve().parents[1]
+BLOWDOWN = ROOT / "scenarios" / "nitrogen-blowdown.yaml"  # states limits; about 0.1 s to run
+
+RUN_SECTIONS = ["title-block", "caution-top", "contents", "job", "inputs", "inputs-given",
+                "inputs-used", "model", "model-choices", "assumptions", "warnings", "summary",
+                "limits", "plots", "checks", "balances", "solver", "software", "sign-off",
+                "caution-end"]
+SWEEP_SECTIONS = ["title-block", "caution-top", "job", "inputs", "parameters", "cases",
+                  "plots", "notes", "software", "sign-off", "caution-end"]
+VOID = {"meta", "img", "br", "wbr", "col", "hr", "input", "link"}
+
+NITROGEN = nw.FluidSpec("Nitrogen", model="ideal-gas", molar_mass=0.0280134, cp=1040.0)
+
+
+# ------------------------------------------------------------------ helpers
+
+class Node:
+    def __init__(self, tag, attrs, parent=None):
+        self.tag, self.attrs, self.parent = tag, dict(attrs), parent
+        self.children = []
+
+    def text(self) -> str:
+        return "".join(c if isinstance(c, str) else c.text() for c in self.children)
+
+    def walk(self):
+        yield self
+        for c in self.children:
+            if isinstance(c, Node):
+                yield from c.walk()
+
+    def find(self, tag=None, cls=None):
+        return [n for n in self.walk() if (tag is None or n.tag == tag)
+                and (cls is None or cls in n.attrs.get("class", "").split())]
+
+
+class Tree(HTMLParser):
+    """A small DOM from the standard library's parser; fails on unbalanced tags."""
+
+    def __init__(self, text):
+        super().__init__(convert_charrefs=True)
+        self.root = Node("#document", {})
+        self.at = self.root
+        self.feed(text)
+        self.close()
+        assert self.at is self.root, f"<{self.at.tag}> is never closed"
+
+    def handle_starttag(self, tag, attrs):
+        node = Node(tag, attrs, self.at)
+        self.at.children.append(node)
+        if tag not in VOID:
+            self.at = node
+
+    def handle_endtag(self, tag):
+        if tag in VOID:
+            return
+        assert self.at.tag == tag, f"</{tag}> closes <{self.at.tag}>"
+        self.at = self.at.parent
+
+    def handle_data(self, data):
+        self.at.children.append(data)
+
+    def ids(self) -> list[str]:
+        return [n.attrs["id"] for n in self.root.walk() if "id" in n.attrs]
+
+    def by_id(self, id_) -> Node:
+        found = [n for n in self.root.walk() if n.attrs.get("id") == id_]
+        assert len(found) == 1, f"id {id_!r} found {len(found)} times"
+        return found[0]
+
+
+def words(text: str) -> str:
+    return " ".join(text.split())
+
+
+def assert_offline(text: str):
+    """Nothing in the page would be fetched: no web addresses, scripts, style
+    sheets, fonts or frames; links only inside the page; pictures inline."""
+    assert not re.search(r"https?:", text, re.I)
+    assert not re.search(r"<(script|link|iframe|object|embed)\b", text, re.I)
+    assert "@import" not in text and "url(" not in text and "@font-face" not in text
+    tree = Tree(text)
+    for n in tree.root.walk():
+        if "href" in n.attrs:
+            assert n.attrs["href"].startswith("#"), n.attrs["href"]
+        if "src" in n.attrs:
+            assert n.attrs["src"].startswith("data:image/png;base64,")
+
+
+def embedded_pngs(tree: Tree) -> list[bytes]:
+    out = []
+    for img in tree.root.find("img"):
+        data = base64.b64decode(img.attrs["src"].split(",", 1)[1], validate=True)
+        assert data[:8] == b"\x89PNG\r\n\x1a\n"
+        out.append(data)
+    return out
+
+
+# ----------------------------------------------------------------- fixtures
+
+@pytest.fixture(scope="module")
+def blowdown(tmp_path_factory):
+    """`cvsim run --report` on the demo blowdown that states design limits."""
+    out = tmp_path_factory.mktemp("report") / "blowdown"
+    assert main(["run", str(BLOWDOWN), "--out", str(out), "--report", "--quiet"]) == 0
+    return out
+
+
+@pytest.fixture(scope="module")
+def blowdown_html(blowdown):
+    return (blowdown / "report.html").read_text(encoding="utf-8")
+
+
+@pytest.fixture(scope="module")
+def blowdown_result():
+    scenario = load_scenario(BLOWDOWN)
+    return scenario, run(scenario)
+
+
+def vent_network(title="Nitrogen receiver vented through an orifice", end=60.0):
+    """A small ideal-gas vent (no property library: fast)."""
+    return nw.Network(
+        title=title, fluid=NITROGEN,
+        vessels=(nw.Vessel("receiver", nw.Geometry(1.0), nw.InitialState(20e5, 288.15)),),
+        reservoirs=(nw.Reservoir("atmosphere", Constant(101325.0), Constant(288.15)),),
+        links=(nw.Link("vent", "receiver", "atmosphere",
+                       nw.Orifice(math.pi * 0.01 ** 2 / 4, 0.84, "ideal-gas")),),
+        run=nw.RunSettings(end_time=end, record_every=1.0))
+
+
+# -------------------------------------------------------------- the run report
+
+def test_cli_writes_the_report_inside_the_same_output_folder(blowdown):
+    names = {p.name for p in blowdown.iterdir()}
+    assert {"report.html", "summary.txt", "overview.png", "history.csv"} <= names
+    assert not list(blowdown.parent.glob(".*partial*"))
+
+
+def test_report_has_every_section_once_and_is_well_formed(blowdown_html):
+    tree = Tree(blowdown_html)  # raises on unbalanced tags
+    ids = tree.ids()
+    for id_ in RUN_SECTIONS:
+        assert ids.count(id_) == 1, id_
+    assert len(ids) == len(set(ids)), "ids must be unique"
+    assert blowdown_html.startswith("<!DOCTYPE html>")
+
+
+def test_report_embeds_every_plot_and_opens_offline(blowdown, blowdown_html):
+    assert_offline(blowdown_html)
+    tree = Tree(blowdown_html)
+    pngs = embedded_pngs(tree)
+    on_disk = sorted(blowdown.glob("*.png"))
+    assert len(on_disk) >= 5
+    assert sorted(pngs) == sorted(p.read_bytes() for p in on_disk)  # the same pictures
+    figures = tree.by_id("plots").find("figure")
+    assert [f.attrs["id"] for f in figures][0] == "plot-overview"
+
+
+def test_report_carries_the_caution_at_top_and_end(blowdown_html):
+    tree = Tree(blowdown_html)
+    for id_ in ("caution-top", "caution-end"):
+        assert CAUTION in words(tree.by_id(id_).text())
+    top = blowdown_html.index('id="caution-top"')
+    assert top < blowdown_html.index('id="job"')
+    assert blowdown_html.index('id="caution-end"') > blowdown_html.index('id="sign-off"')
+
+
+def test_limits_table_lists_each_limit_and_marks_crossed_rows_in_words(blowdown_html,
+                                                                      blowdown_result):
+    _, result = blowdown_result
+    assert result.limits and result.limits_crossed  # the demo crosses its MDMT
+    table = Tree(blowdown_html).by_id("limits").find("table")[0]
+    rows = table.find("tbody")[0].find("tr")
+    assert len(rows) == len(result.limits)
+    for row, check in zip(rows, result.limits):
+        text = words(row.text())
+        assert check.name in text and check.vessel in text
+        assert ("CROSSED" in text) == (not check.met)
+        assert ("crossed" in row.attrs.get("class", "")) == (not check.met)
+        assert check.practice.split(";")[0] in text
+
+
+def test_software_section_names_versions_hash_and_time(blowdown_html):
+    import CoolProp
+    import numpy
+    import scipy
+    text = words(Tree(blowdown_html).by_id("software").text())
+    sha = hashlib.sha256(BLOWDOWN.read_bytes()).hexdigest()
+    for expected in (__version__, CoolProp.__version__, scipy.__version__, numpy.__version__,
+                     sha, "nitrogen-blowdown.yaml", "Run started", "Report written"):
+        assert expected in text, expected
+    assert sha in words(Tree(blowdown_html).by_id("title-block").text())
+
+
+def test_inputs_show_the_file_verbatim_and_every_value_as_used(blowdown_html,
+                                                               blowdown_result):
+    scenario, _ = blowdown_result
+    tree = Tree(blowdown_html)
+    pre = tree.by_id("inputs-given").find("pre")[0]
+    assert pre.text() == scenario.source_text
+    rows = tree.by_id("inputs-used").find("tbody")[0].find("tr")
+    data = [r for r in rows if "group" not in r.attrs.get("class", "")]
+    assert len(data) == len(scenario.echo)
+    for row, echo in zip(data, scenario.echo):
+        cells = [c.text() for c in row.find("td")]
+        assert cells == [echo.key, echo.given, echo.used, echo.note]
+
+
+def test_summary_and_checks_show_results_with_times(blowdown_html, blowdown_result):
+    _, result = blowdown_result
+    tree = Tree(blowdown_html)
+    summary = words(tree.by_id("summary").text())
+    s = result.summary()
+    v = s["vessels"]["receiver"]
+    assert f"{v['min_temperature_K'] - 273.15:.1f} degC" in summary
+    assert "vent" in summary and f"{s['links']['vent']['mass_passed_kg']:.5g}" in summary
+    assert "stop condition met" in summary
+    checks = words(tree.by_id("balances").text())
+    assert f"{s['balance']['mass_closure_relative']:.2e}" in checks and "closed" in checks
+    assert str(s["solver"]["steps"]) in words(tree.by_id("solver").text())
+    model = words(tree.by_id("assumptions").text())
+    for i, a in enumerate(result.assumptions, 1):
+        assert f"A{i} {a}" in model
+
+
+@pytest.mark.parametrize("path", sorted((ROOT / "scenarios").glob("*.yaml")),
+                         ids=lambda p: p.stem)
+def test_every_demo_scenario_gives_a_complete_report(path):
+    scenario = load_scenario(path)
+    result = run(scenario)
+    text = render_run_report(result, scenario, plots=[])  # plots: tested above
+    assert_offline(text)
+    tree = Tree(text)
+    assert set(RUN_SECTIONS) <= set(tree.ids())
+    assert tree.by_id("inputs-given").find("pre")[0].text() == scenario.source_text
+    assert result.network.title in tree.by_id("title-block").text()
+
+
+def test_text_from_the_scenario_cannot_break_the_page():
+    title = 'Tank <b>1</b> & "2" </style><script>alert(1)</script> \\ end'
+    result = run_network(dataclasses.replace(vent_network(), title=title))
+    text = render_run_report(result, None, plots=[])
+    assert "<script" not in text and "<b>1" not in text
+    tree = Tree(text)
+    assert words(tree.by_id("title-block").find("h1")[0].text()) == words(title)
+    style = tree.root.find("style")[0].text()
+    assert "</" not in style
+
+
+def test_changes_made_for_the_run_are_listed(tmp_path):
+    scenario = load_scenario(BLOWDOWN, overrides={"run.end": "20 s"})
+    result = run(scenario)
+    text = render_run_report(result, scenario, plots=[])
+    tree = Tree(text)
+    assert "run.end" in words(tree.by_id("inputs-changed").text())
+    assert "run.end = 20 s" in words(tree.by_id("software").text())
+    # the target is not reached in 20 s: the depressuring check is crossed
+    assert "CROSSED" in words(tree.by_id("limits").text())
+
+
+def test_report_of_a_network_built_in_code_draws_its_own_plots(tmp_path):
+    result = run_network(vent_network())
+    path = write_run_report(result, tmp_path / "r.html")
+    text = path.read_text(encoding="utf-8")
+    assert_offline(text)
+    tree = Tree(text)
+    assert set(RUN_SECTIONS) - {"inputs-given", "inputs-used"} <= set(tree.ids())
+    assert "not read from a scenario file" in words(tree.by_id("inputs").text())
+    assert "No design limits are stated" in words(tree.by_id("limits").text())
+    assert len(embedded_pngs(tree)) == 5
+    assert not list(tmp_path.glob("cvsim-report-*"))
+
+
+def test_later_assumptions_warnings_and_summary_figures_appear_by_themselves():
+    scenario = load_scenario_text("""
+title: A vessel with no link
+fluid: Nitrogen
+properties: ideal-gas
+ideal_gas: {molar_mass: 28.0134 g/mol, heat_capacity: 1040 J/kg/K}
+vessels:
+  lonely: {volume: 1 m3, initial: {pressure: 5 barg, temperature: 15 degC}}
+run: {end: 5 s}
+""")
+    result = run(scenario)
+    result = dataclasses.replace(result, assumptions=result.assumptions + [
+        "Walls: one lumped temperature (a later model choice)."])
+    result.warnings = ["natural-convection correlation used outside its Rayleigh range"]
+    summary = result.summary
+    result.summary = lambda: {**summary(), "peak_wall_stress_Pa": 1.5e8}
+    tree = Tree(render_run_report(result, scenario, plots=[]))
+    assert "Walls: one lumped temperature" in tree.by_id("assumptions").text()
+    warnings = words(tree.by_id("warnings").text())
+    assert "vessels.lonely: no link" in warnings
+    assert "outside its Rayleigh range" in warnings
+    assert "peak_wall_stress_Pa" in tree.by_id("summary-further").text()
+
+
+def test_a_failed_run_says_so_before_anything_else():
+    result = run_network(vent_network())
+    failed = dataclasses.replace(result, status="failed",
+                                 message="state out of range at t = 12 s")
+    text = render_run_report(failed, None, plots=[])
+    tree = Tree(text)
+    notice = words(tree.by_id("failed").text())
+    assert "FAILED" in notice and "state out of range" in notice
+    assert text.index('id="failed"') < text.index('id="job"')
+    assert "FAILED" in words(tree.by_id("title-block").text())
+
+
+def test_a_run_that_failed_before_its_first_record_still_gives_a_report():
+    import numpy as np
+    result = run_network(vent_network())
+    empty = dataclasses.replace(
+        result, status="failed", message="no state at t = 0", data=np.zeros((0, len(
+            result.columns))), fine_data=np.zeros((0, len(result.columns))), events=[],
+        balance={}, stats={}, limits=[])
+    text = render_run_report(empty, None)
+    tree = Tree(text)
+    assert set(RUN_SECTIONS) - {"inputs-given", "inputs-used"} <= set(tree.ids())
+    assert "No plots" in tree.by_id("plots").text()
+    assert "FAILED" in tree.by_id("failed").text()
+
+
+IDEAL_VENT = """
+title: Ideal-gas vent for the report test
+fluid: Nitrogen
+properties: ideal-gas
+ideal_gas: {molar_mass: 28.0134 g/mol, heat_capacity: 1040 J/kg/K}
+vessels:
+  tank: {volume: 0.5 m3, initial: {pressure: 10 barg, temperature: 15 degC}}
+reservoirs:
+  outside: {pressure: 1 atm, temperature: 15 degC}
+links:
+  vent: {from: tank, to: outside, device: orifice, diameter: 5 mm, discharge_coefficient: 0.8,
+         flow_model: ideal-gas}
+run: {end: 20 s}
+"""
+
+
+def test_report_without_plot_files_still_embeds_the_plots(tmp_path):
+    path = tmp_path / "vent.yaml"
+    path.write_text(IDEAL_VENT)
+    out = tmp_path / "out"
+    assert main(["run", str(path), "--out", str(out), "--report", "--no-plots",
+                 "--quiet"]) == 0
+    assert not list(out.glob("*.png"))
+    tree = Tree((out / "report.html").read_text(encoding="utf-8"))
+    assert len(embedded_pngs(tree)) == 5
+
+
+# ------------------------------------------------------------ the sweep report
+
+@pytest.fixture(scope="module")
+def sweep_files(tmp_path_factory, blowdown):
+    """A sweep's plain data, made up: three cases, one failed, one crossing a limit."""
+    folder = tmp_path_factory.mktemp("sweep")
+    image = folder / "time_vs_diameter.png"
+    shutil.copy(blowdown / "pressure.png", image)
+    rows = [
+        {"links.vent.diameter": "8 mm", "status": "stopped", "time_to_target_s": 505.2,
+         "min_temperature_degC": -148.2, "limits_crossed": 1, "message": ""},
+        {"links.vent.diameter": "10 mm", "status": "stopped", "time_to_target_s": 323.4,
+         "min_temperature_degC": -153.7, "limits_crossed": 0, "message": ""},
+        {"links.vent.diameter": "0 mm", "status": "failed", "time_to_target_s": None,
+         "min_temperature_degC": float("nan"), "limits_crossed": None,
+         "message": "diameter must be positive"},
+    ]
+    return image, rows
+
+
+def test_sweep_report_from_plain_data(sweep_files, tmp_path):
+    image, rows = sweep_files
+    scenario = load_scenario(BLOWDOWN)
+    path = write_sweep_report(
+        tmp_path / "sweep.html", "Vent orifice diameter for the 15 min depressuring target",
+        scenario=scenario, parameters={"links.vent.diameter": ["8 mm", "10 mm", "0 mm"]},
+        rows=rows, columns=["links.vent.diameter", ("time_to_target_s", "Time to target [s]"),
+                            "min_temperature_degC", "limits_crossed", "status", "message"],
+        images=[(image, "Time to target against orifice diameter.")],
+        notes=["Each case is a complete simulation of the base scenario."])
+    text = path.read_text(encoding="utf-8")
+    assert_offline(text)
+    tree = Tree(text)
+    assert set(SWEEP_SECTIONS) <= set(tree.ids())
+    body = tree.by_id("cases").find("tbody")[0].find("tr")
+    assert len(body) == 3
+    flags = [words(r.text()) for r in body]
+    assert "LIMIT CROSSED" in flags[0] and "FAILED" not in flags[0]
+    assert "CROSSED" not in flags[1] and "FAILED" not in flags[1]
+    assert "FAILED" in flags[2] and "diameter must be positive" in flags[2]
+    assert [("crossed" in r.attrs.get("class", "")) for r in body] == [True, False, True]
+    assert "Time to target [s]" in tree.by_id("cases").text()
+    assert "505.2" in flags[0] and "-148.2" in flags[0]
+    assert len(embedded_pngs(tree)) == 1
+    assert "N1 Each case" in words(tree.by_id("notes").text())
+    assert scenario.sha256 in tree.by_id("software").text()
+    assert tree.by_id("inputs-given").find("pre")[0].text() == scenario.source_text
+    for id_ in ("caution-top", "caution-end"):
+        assert CAUTION in words(tree.by_id(id_).text())
+
+
+def test_sweep_report_needs_no_scenario_and_takes_every_column_by_default():
+    text = render_sweep_report("A study without a base file", rows=[{"a": 1, "b": 2.5},
+                                                                    {"a": 2, "c": "x"}])
+    tree = Tree(text)
+    head = [words(th.text()) for th in tree.by_id("cases").find("th")]
+    assert head == ["Case", "a", "b", "c"]
+    assert "Flag" not in head  # no status or limits columns: nothing to flag
+
+
+# ------------------------------------------------------------------ in a browser
+
+CHROMIUM = shutil.which("chromium") or shutil.which("chromium-browser")
+# .ci/run installs Chromium and sets this, so that in CI these tests run or fail, never skip
+REQUIRED = os.environ.get("CVSIM_REQUIRE_CHROMIUM") == "1"
+needs_chromium = pytest.mark.skipif(
+    CHROMIUM is None and not REQUIRED, reason="Chromium is not installed (.ci/run installs "
+    "Debian's chromium; locally: apt-get install chromium)")
+
+
+def chromium(tmp_path, *args) -> subprocess.CompletedProcess:
+    """Headless Chromium, offline and without a profile of its own."""
+    assert CHROMIUM, "CVSIM_REQUIRE_CHROMIUM=1 but no chromium on the PATH"
+    cmd = [CHROMIUM, "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic",
+           "--no-first-run", "--disable-background-networking", "--disable-component-update",
+           "--disable-sync", "--hide-scrollbars", f"--user-data-dir={tmp_path / 'profile'}",
+           *args]
+    done = subprocess.run(cmd, capture_output=True, timeout=180)
+    assert done.returncode == 0, done.stderr.decode(errors="replace")[-2000:]
+    return done
+
+
+@needs_chromium
+def test_chromium_draws_the_report_and_keeps_its_sections(blowdown, tmp_path):
+    import matplotlib.image as mpimg
+    import numpy as np
+
+    page = (blowdown / "report.html").resolve()
+    shot = tmp_path / "report.png"
+    chromium(tmp_path, f"--screenshot={shot}", "--window-size=1200,2000", page.as_uri())
+    pixels = mpimg.imread(shot)[..., :3]
+    assert pixels.shape[:2] == (2000, 1200)
+    grey = pixels.mean(axis=2)
+    assert grey.std() > 0.05                      # not a blank page
+    assert (grey < 0.5).mean() > 0.01             # text is drawn
+    colours = np.unique((pixels * 255).astype(np.uint8).reshape(-1, 3), axis=0)
+    assert len(colours) > 50                      # text, tints, the caution box
+    dom = chromium(tmp_path, "--dump-dom", page.as_uri()).stdout.decode("utf-8")
+    parsed = set(re.findall(r'\bid="([^"]+)"', dom))
+    assert set(RUN_SECTIONS) <= parsed
+    assert "Screening estimate" in dom
+
+
+@needs_chromium
+def test_chromium_prints_the_report_to_pdf(blowdown, tmp_path):
+    page = (blowdown / "report.html").resolve()
+    pdf = tmp_path / "report.pdf"
+    chromium(tmp_path, "--no-pdf-header-footer", f"--print-to-pdf={pdf}", page.as_uri())
+    data = pdf.read_bytes()
+    assert data.startswith(b"%PDF-")
+    pages = len(re.findall(rb"/Type\s*/Page(?!s)", data))
+    assert pages >= 1
+    # every major section starts a page, so the report fills several
+    assert pages >= 5
+
+
+@needs_chromium
+def test_chromium_reads_the_sweep_report(sweep_files, tmp_path):
+    image, rows = sweep_files
+    page = tmp_path / "sweep.html"
+    write_sweep_report(page, "A made-up study", parameters={"x": [1, 2, 3]}, rows=rows,
+                       images=[image])
+    dom = chromium(tmp_path, "--dump-dom", page.resolve().as_uri()).stdout.decode("utf-8")
+    assert set(SWEEP_SECTIONS) <= set(re.findall(r'\bid="([^"]+)"', dom))
+    assert html.escape("LIMIT CROSSED") in dom
