@@ -17,7 +17,7 @@ $(STAMP): pyproject.toml
 setup: $(STAMP)
 
 demo: $(STAMP)
-	$(BIN)/cvsim run scenarios/nitrogen-blowdown.yaml --out results/nitrogen-blowdown
+	$(BIN)/cvsim run scenarios/nitrogen-blowdown.yaml --out results/nitrogen-blowdown --report
 
 test: $(STAMP)
 	$(BIN)/python -m pytest -q
