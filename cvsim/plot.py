@@ -39,6 +39,8 @@ DPI = 150
 OVERVIEW_SIZE = (11.0, 8.0)   # [in] fits a landscape A4 page inside its margins
 SINGLE_SIZE = (10.0, 6.0)     # [in]
 MAX_EVENT_LABELS = 8      # more events than this: lines only, no text
+MAX_EVENT_LINES = 40      # more events than this (a cycling valve): no lines, they would
+                          # hide the curves; the openings panel shows the switching
 EVENT_LABEL_HEIGHT = 0.6  # event text is cut to this fraction of the panel height
 SUBTITLE_MESSAGE_CHARS = 240  # a longer status message is cut (the summary has it whole)
 EVENT_SHORT = (("stop condition met: ", "stop: "), ("run failed: ", "failed: "))
@@ -102,7 +104,8 @@ def flow_unit(peak: float) -> tuple[str, float]:
 def plot_run(result: Result, folder: Path) -> list[Path]:
     """Write the plots of ``result`` into ``folder`` (created if missing).
 
-    Files: ``overview.png`` (pressure, temperature, mass, mass flow),
+    Files: ``overview.png`` (pressure, temperature, mass, mass flow, and the
+    valve openings across the foot of the page when there are any),
     ``pressure.png``, ``temperature.png``, ``mass.png``, ``flow.png`` and,
     only when the result has ``<link>.opening`` columns, ``opening.png``.
     Returns the paths written, in that order.
@@ -118,10 +121,18 @@ def plot_run(result: Result, folder: Path) -> list[Path]:
 
     path = folder / "overview.png"
     with _figure(OVERVIEW_SIZE, view) as fig:
-        axes = fig.subplots(2, 2, sharex=True).ravel()
-        for ax, (_, draw) in zip(axes, panels[:4]):
+        if view.openings:  # valve states under the four quantities, across the page
+            grid = fig.subplot_mosaic([["pressure", "temperature"], ["mass", "flow"],
+                                       ["opening", "opening"]], sharex=True,
+                                      height_ratios=[1.0, 1.0, 0.7])
+            axes = [grid[name] for name, _ in panels]
+            bottom = [grid["opening"]]
+        else:
+            axes = fig.subplots(2, 2, sharex=True).ravel()
+            bottom = axes[2:]
+        for ax, (_, draw) in zip(axes, panels):
             draw(ax, view, overview=True)
-        for ax in axes[2:]:
+        for ax in bottom:
             ax.set_xlabel(view.time_label)
         fig.savefig(path, dpi=DPI)
     written.append(path)
@@ -343,6 +354,8 @@ def _events(ax, view: _View, labels: bool, size: tuple[float, float]) -> list:
     """Event times as thin dotted lines, with text beside them when there are
     few; returns the boxes the texts take (axes fractions x0, y0, x1, y1)."""
     span = view.t[-1] - view.t[0] if len(view.t) else 0.0
+    if len(view.events) > MAX_EVENT_LINES:
+        return []
     show = labels and len(view.events) <= MAX_EVENT_LABELS
     glyph = 0.56 * EVENT_PT / 72.0  # [in] average character width
     most = int(EVENT_LABEL_HEIGHT * size[1] / glyph)
