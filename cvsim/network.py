@@ -262,8 +262,8 @@ class Sequence:
     sequence moves to the next step when the first of the stated rules is met
     for the active link (``None``: rule not used):
 
-    flow_below                 [kg/s] magnitude of the link's mass flow falls to this
-    pressure_difference_below  [Pa] |p_from - p_to| of the link falls to this
+    flow_below                 [kg/s] the link's mass flow (positive from -> to) falls to this
+    pressure_difference_below  [Pa] p_from - p_to of the link falls to this
     time_in_step               [s] the step has lasted this long
 
     A step whose rule is already met when it comes up is skipped; after the last

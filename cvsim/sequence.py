@@ -5,7 +5,9 @@ time it became active. Only the link of the active step passes flow; the
 model shuts the others (:attr:`cvsim.model.Model.gates`). The step moves on
 when the first of the sequence's rules is met for the active link - its mass
 flow falls to a value, the pressure difference across it falls to a value, or
-the step has lasted a stated time - found exactly by a solver event. A step
+the step has lasted a stated time - found exactly by a solver event. Flow and
+pressure difference count in the link's forward direction (``from`` -> ``to``),
+so a bank below the receiver's pressure meets either rule at once. A step
 whose rule is already met when it comes up is skipped (a bank that is already
 down to the receiver's pressure adds nothing); after the last step all links of
 the sequence are shut.
@@ -44,11 +46,11 @@ class SequenceController:
         name = d.steps[j]
         if d.flow_below is not None:
             f = dev.flow(t, snap.outflow[dev.source], snap.outflow[dev.target], segment)
-            if abs(f.mdot) <= d.flow_below:
-                return (f"flow through '{name}' {abs(f.mdot):.4g} kg/s, at or below "
+            if f.mdot <= d.flow_below:
+                return (f"flow through '{name}' {f.mdot:.4g} kg/s, at or below "
                         f"{d.flow_below:.4g} kg/s")
         if d.pressure_difference_below is not None:
-            dp = abs(snap.states[dev.source].p - snap.states[dev.target].p)
+            dp = snap.states[dev.source].p - snap.states[dev.target].p
             if dp <= d.pressure_difference_below:
                 return (f"pressure difference across '{name}' {dp / 1e5:.4g} bar, at or below "
                         f"{d.pressure_difference_below / 1e5:.4g} bar")
@@ -100,13 +102,13 @@ class SequenceController:
 
             def g_flow(t, snap):
                 f = dev.flow(t, snap.outflow[i_src], snap.outflow[i_tgt], segment)
-                return abs(f.mdot) - thr
+                return f.mdot - thr
             out.append(Switch(self.key, g_flow, -1, advance,
                               f"flow through '{name}' fell to {thr:.4g} kg/s"))
         if d.pressure_difference_below is not None:
             dp = d.pressure_difference_below
             out.append(Switch(self.key,
-                              lambda t, s: abs(s.states[i_src].p - s.states[i_tgt].p) - dp,
+                              lambda t, s: s.states[i_src].p - s.states[i_tgt].p - dp,
                               -1, advance,
                               f"pressure difference across '{name}' fell to "
                               f"{dp / 1e5:.4g} bar"))

@@ -133,6 +133,63 @@ def mass_flow(kv: float, p1: float, rho1: float, p2: float, gamma: float, xt: fl
     return N6_SI * fp * kv * y * math.sqrt(x_eff * p1 * rho1), choked
 
 
+#: N2 and N5 of IEC 60534-2-1:2011 Table 1 for Kv with d in mm
+N2_KV_MM = 1.6e-3
+N5_KV_MM = 1.8e-3
+
+
+def fitting_loss_coefficients(d: float, D1: float, D2: float) -> tuple[float, float]:
+    """Velocity-head loss coefficients of concentric reducers at a valve [-].
+
+        zeta1 = 0.5 (1 - (d/D1)^2)^2        inlet reducer
+        zeta2 = 1.0 (1 - (d/D2)^2)^2        outlet increaser
+        zetaB = 1 - (d/D)^4                 Bernoulli coefficient of each end
+
+    Returns (sum zeta = zeta1 + zeta2 + zetaB1 - zetaB2, zeta_i = zeta1 + zetaB1).
+
+    Parameters
+    ----------
+    d : valve size (nominal bore) [m]
+    D1, D2 : inlet and outlet pipe inside diameters [m] (D = d: no reducer)
+
+    Source: IEC 60534-2-1:2011, clause on the piping geometry factor (reducer
+    coefficients for short concentric reducers).
+    """
+    r1 = (d / D1) ** 2
+    r2 = (d / D2) ** 2
+    zeta1 = 0.5 * (1.0 - r1) ** 2
+    zeta2 = 1.0 * (1.0 - r2) ** 2
+    zb1 = 1.0 - r1 * r1
+    zb2 = 1.0 - r2 * r2
+    return zeta1 + zeta2 + zb1 - zb2, zeta1 + zb1
+
+
+def piping_geometry_factor(kv: float, d: float, D1: float, D2: float) -> float:
+    """Piping geometry factor Fp [-] of a valve between reducers.
+
+        Fp = 1 / sqrt(1 + (sum zeta / N2) (C / d^2)^2),  d in mm, C = Kv [m3/h]
+
+    Source: IEC 60534-2-1:2011, equation of Fp with N2 = 1.6e-3 (Table 1).
+    Fp depends on the flow coefficient, so on the valve's opening.
+    """
+    sum_zeta, _ = fitting_loss_coefficients(d, D1, D2)
+    c_d2 = kv / (d * 1e3) ** 2
+    return 1.0 / math.sqrt(1.0 + sum_zeta / N2_KV_MM * c_d2 * c_d2)
+
+
+def xt_with_fittings(xt: float, kv: float, d: float, D1: float, D2: float) -> float:
+    """Combined pressure differential ratio factor xTP [-] of a valve with reducers.
+
+        xTP = (xT / Fp^2) / (1 + xT zeta_i / N5 (C / d^2)^2),  d in mm
+
+    Source: IEC 60534-2-1:2011, equation of xTP with N5 = 1.8e-3 (Table 1).
+    """
+    _, zeta_i = fitting_loss_coefficients(d, D1, D2)
+    fp = piping_geometry_factor(kv, d, D1, D2)
+    c_d2 = kv / (d * 1e3) ** 2
+    return xt / (fp * fp) / (1.0 + xt * zeta_i / N5_KV_MM * c_d2 * c_d2)
+
+
 def equal_percentage_joint(rangeability: float) -> float:
     """Travel s0 = 1/R [-] below which the equal-percentage curve is replaced by a
     straight line to the origin (see :func:`relative_flow_coefficient`)."""
@@ -231,5 +288,6 @@ class ControlValveDevice(Device):
 
 
 __all__ = ["CHARACTERISTICS", "ControlValveDevice", "KV_PER_CV", "N6_SI", "expansion_factor",
-           "is_choked", "kv_from_cv", "mass_flow", "relative_flow_coefficient",
-           "specific_heat_ratio_factor"]
+           "fitting_loss_coefficients", "is_choked", "kv_from_cv", "mass_flow",
+           "piping_geometry_factor", "relative_flow_coefficient", "specific_heat_ratio_factor",
+           "xt_with_fittings"]

@@ -55,9 +55,11 @@ NEXT_WHEN = Section(
     "e.g. `next_when: {mass_flow_below: 5 g/s, time_in_step: 3 min}`.",
     fields=(
         Field("mass_flow_below", Quantity("mass_flow", above=0.0),
-              "The mass flow through the active link has fallen to this."),
+              "The mass flow through the active link, from its `from` to its `to`, has "
+              "fallen to this."),
         Field("pressure_difference_below", PressureDifference(above=0.0),
-              "The pressure difference across the active link has fallen to this."),
+              "The pressure difference across the active link, p(from) - p(to), has "
+              "fallen to this."),
         Field("time_in_step", Quantity("time", above=0.0),
               "The active step has lasted this long."),
     ),
