@@ -257,3 +257,13 @@ def test_scheduled_valve_passes_nothing_until_it_opens_and_follows_its_travel():
     assert res["valve.mass_flow"][i] == pytest.approx(w, rel=1e-12)
     assert any("opening moves from 0 % to 100 %" in e for _, e in res.events)
     assert isinstance(table, Table)
+
+
+def test_flow_at_the_joint_of_the_linear_piece_for_any_pressure():
+    # p2 = p1 (1 - 1e-4) rounds to a ratio just below or above the joint depending on p1;
+    # either way the flow is finite and matches the square-root law there
+    for p1 in np.geomspace(1e5, 9e7, 300):
+        w, _ = cv.mass_flow(3.0, p1, 10.0, p1 * (1.0 - 1e-4), 1.3, 0.7)
+        exact = cv.N6_SI * 3.0 * cv.expansion_factor(1e-4, 1.3 / 1.4, 0.7) * math.sqrt(
+            1e-4 * p1 * 10.0)
+        assert w == pytest.approx(exact, rel=1e-9)

@@ -225,3 +225,12 @@ def test_relief_valve_never_passes_reverse_flow():
     res = run_network(net)
     assert res["psv.opening"][0] == 1.0  # above set from the start
     assert np.all(res.fine("psv.mass_flow") == 0.0)
+
+
+def test_capacity_at_the_joint_of_the_linear_piece_for_any_pressure():
+    # p2 = p1 (1 - 1e-4) rounds either side of the joint depending on p1: finite, continuous
+    for p1 in np.geomspace(2e5, 9e7, 300):
+        w, _ = relief.api520_mass_flow(1e-4, p1, p1 * (1.0 - 1e-4), 300.0, 1.0, 0.029, 1.4)
+        w_above, _ = relief.api520_mass_flow(1e-4, p1, p1 * (1.0 - 1.0001e-4), 300.0, 1.0,
+                                             0.029, 1.4)
+        assert w == pytest.approx(w_above, rel=2e-4)

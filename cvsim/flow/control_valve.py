@@ -124,8 +124,13 @@ def mass_flow(kv: float, p1: float, rho1: float, p2: float, gamma: float, xt: fl
         return 0.0, False
     x = (p1 - p2) / p1
     if x < LINEAR_BELOW:
-        w_lin, _ = mass_flow(kv, p1, rho1, p1 * (1.0 - LINEAR_BELOW), gamma, xt, fp)
+        w_lin, _ = _mass_flow_at(kv, p1, rho1, LINEAR_BELOW, gamma, xt, fp)
         return w_lin * x / LINEAR_BELOW, False
+    return _mass_flow_at(kv, p1, rho1, x, gamma, xt, fp)
+
+
+def _mass_flow_at(kv, p1, rho1, x, gamma, xt, fp):
+    """W [kg/s] and choked at pressure differential ratio x (see :func:`mass_flow`)."""
     f_gamma = specific_heat_ratio_factor(gamma)
     choked = is_choked(x, f_gamma, xt)
     x_eff = f_gamma * xt if choked else x

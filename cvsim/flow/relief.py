@@ -151,19 +151,22 @@ def api520_mass_flow(area: float, p1: float, p2: float, T: float, Z: float, M: f
         return 0.0, False
     frac = (p1 - p2) / p1
     if frac < LINEAR_BELOW:
-        w_lin, _ = api520_mass_flow(area, p1, p1 * (1.0 - LINEAR_BELOW), T, Z, M, k, kd, kb,
-                                    kc)
+        w_lin, _ = _api520_at(area, p1, 1.0 - LINEAR_BELOW, T, Z, M, k, kd, kb, kc)
         return w_lin * frac / LINEAR_BELOW, False
+    return _api520_at(area, p1, p2 / p1, T, Z, M, k, kd, kb, kc)
+
+
+def _api520_at(area, p1, r, T, Z, M, k, kd, kb, kc):
+    """W [kg/s] and critical at pressure ratio r = P2/P1 (see :func:`api520_mass_flow`)."""
     a_mm2 = area * 1e6
     m_kmol = M * 1e3
     p1_kpa = p1 * 1e-3
-    if is_critical(p1, p2, k):
+    if r <= critical_pressure_ratio(k):
         w_h = a_mm2 * api520_c(k) * kd * p1_kpa * kb * kc * math.sqrt(m_kmol / (T * Z))
         return w_h / 3600.0, True
-    p2_kpa = p2 * 1e-3
-    f2 = api520_f2(k, p2 / p1)
+    f2 = api520_f2(k, r)
     w_h = a_mm2 * f2 * kd * kc / API_SUBCRITICAL_CONSTANT * math.sqrt(
-        m_kmol * p1_kpa * (p1_kpa - p2_kpa) / (T * Z))
+        m_kmol * p1_kpa * p1_kpa * (1.0 - r) / (T * Z))
     return w_h / 3600.0, False
 
 
