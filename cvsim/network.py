@@ -264,17 +264,21 @@ class Sequence:
 
     flow_below                 [kg/s] the link's mass flow (positive from -> to) falls to this
     pressure_difference_below  [Pa] p_from - p_to of the link falls to this
-    time_in_step               [s] the step has lasted this long
+    longest_step               [s] the step has lasted this long
+    shortest_step              [s] the flow and pressure-difference rules are watched
+                               only once the step has lasted this long
 
-    A step whose rule is already met when it comes up is skipped; after the last
-    step every link of the sequence is shut.
+    A step whose rule is already met when it comes up is skipped (with
+    ``shortest_step``: only a step without forward pressure difference); after
+    the last step every link of the sequence is shut.
     """
 
     name: str
     steps: tuple[str, ...]
     flow_below: float | None = None
     pressure_difference_below: float | None = None
-    time_in_step: float | None = None
+    longest_step: float | None = None
+    shortest_step: float | None = None
 
 
 # ------------------------------------------------------------------- the run

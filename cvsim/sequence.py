@@ -7,10 +7,16 @@ when the first of the sequence's rules is met for the active link - its mass
 flow falls to a value, the pressure difference across it falls to a value, or
 the step has lasted a stated time - found exactly by a solver event. Flow and
 pressure difference count in the link's forward direction (``from`` -> ``to``),
-so a bank below the receiver's pressure meets either rule at once. A step
-whose rule is already met when it comes up is skipped (a bank that is already
-down to the receiver's pressure adds nothing); after the last step all links of
-the sequence are shut.
+so a bank below the receiver's pressure meets either rule at once.
+
+A step whose rule is already met when it comes up is skipped (a bank that is
+already down to the receiver's pressure adds nothing); after the last step all
+links of the sequence are shut. With a shortest step time the flow and
+pressure-difference rules are watched only once the step has lasted that long
+(a downstream valve that opens slowly, an intermediate volume filling first);
+a step is then skipped on coming up only if it has no forward pressure
+difference, and at the end of its shortest time it moves on at once if a rule
+is met by then.
 
 The controller only reads node states and link flows; it is built from the
 frozen :class:`cvsim.network.Sequence` by the model, like the devices.
@@ -18,6 +24,9 @@ frozen :class:`cvsim.network.Sequence` by the model, like the devices.
 from __future__ import annotations
 
 from .flow.base import Switch
+
+#: a step is taken as having lasted its shortest time this close to it [s]
+_ARMED_SLACK = 1e-9
 
 
 class SequenceController:
@@ -39,30 +48,36 @@ class SequenceController:
         self.n = len(self.links)
 
     # ----------------------------------------------------------------- rules
-    def _met(self, j: int, t: float, t_active: float, snap, segment) -> str | None:
-        """Why the rule of step ``j`` is met at ``t`` (text), or ``None``."""
+    def _met(self, j: int, t: float, t_active: float, snap, segment,
+             watched: bool = True) -> str | None:
+        """Why the rule of step ``j`` is met at ``t`` (text), or ``None``.
+        ``watched``: the flow and pressure-difference rules count."""
         d = self.d
         dev = self.devices[j]
         name = d.steps[j]
+        dp = snap.states[dev.source].p - snap.states[dev.target].p
+        if not watched:
+            if dp <= 0.0:
+                return f"no forward pressure difference across '{name}' ({dp / 1e5:.4g} bar)"
+            return None
         if d.flow_below is not None:
             f = dev.flow(t, snap.outflow[dev.source], snap.outflow[dev.target], segment)
             if f.mdot <= d.flow_below:
                 return (f"flow through '{name}' {f.mdot:.4g} kg/s, at or below "
                         f"{d.flow_below:.4g} kg/s")
-        if d.pressure_difference_below is not None:
-            dp = snap.states[dev.source].p - snap.states[dev.target].p
-            if dp <= d.pressure_difference_below:
-                return (f"pressure difference across '{name}' {dp / 1e5:.4g} bar, at or below "
-                        f"{d.pressure_difference_below / 1e5:.4g} bar")
-        if d.time_in_step is not None and t - t_active >= d.time_in_step:
-            return f"'{name}' has been open {d.time_in_step:.4g} s"
+        if d.pressure_difference_below is not None and dp <= d.pressure_difference_below:
+            return (f"pressure difference across '{name}' {dp / 1e5:.4g} bar, at or below "
+                    f"{d.pressure_difference_below / 1e5:.4g} bar")
+        if d.longest_step is not None and t - t_active >= d.longest_step:
+            return f"'{name}' has been open {d.longest_step:.4g} s"
         return None
 
     def _next_open(self, j: int, t: float, snap, segment) -> tuple[int, str]:
-        """First step from ``j`` on whose rule is not met at ``t``, and the log text."""
+        """First step from ``j`` on that is not skipped at ``t``, and the log text."""
         notes = []
+        watched = not self.d.shortest_step
         while j < self.n:
-            why = self._met(j, t, t, snap, segment)
+            why = self._met(j, t, t, snap, segment, watched)
             if why is None:
                 notes.append(f"step {j + 1} of {self.n} ('{self.d.steps[j]}') opens")
                 break
@@ -96,6 +111,19 @@ class SequenceController:
             j_new, text = self._next_open(j + 1, t, snap, seg)
             return (j_new, t), "; " + text
 
+        if d.shortest_step and segment.t0 < t_active + d.shortest_step - _ARMED_SLACK:
+            t_armed = t_active + d.shortest_step
+
+            def armed(t, y, seg):
+                why = self._met(j, t, t_active, seg.states(t, y), seg)
+                if why is None:
+                    return (j, t_active), "; its rules are watched from now"
+                new, text = advance(t, y, seg)
+                return new, f"; {why}" + text
+            return [Switch(self.key, lambda t, s: t - t_armed, +1, armed,
+                           f"'{name}' has been open its shortest time, "
+                           f"{d.shortest_step:.4g} s")]
+
         out = []
         if d.flow_below is not None:
             thr = d.flow_below
@@ -112,10 +140,10 @@ class SequenceController:
                               -1, advance,
                               f"pressure difference across '{name}' fell to "
                               f"{dp / 1e5:.4g} bar"))
-        if d.time_in_step is not None:
-            t_next = t_active + d.time_in_step
+        if d.longest_step is not None:
+            t_next = t_active + d.longest_step
             out.append(Switch(self.key, lambda t, s: t - t_next, +1, advance,
-                              f"'{name}' has been open {d.time_in_step:.4g} s"))
+                              f"'{name}' has been open {d.longest_step:.4g} s"))
         return out
 
     def observe(self, discrete) -> float:

@@ -184,14 +184,14 @@ def test_isothermal_equalisation_when_heat_exchange_is_forced_large():
 
 # -------------------------------------------------------------------- cascade
 
-def cascade(flow_below=None, dp_below=None, time_in_step=None, banks=(100e5, 200e5, 300e5),
-            receiver=20e5, end=600.0):
+def cascade(flow_below=None, dp_below=None, longest_step=None, banks=(100e5, 200e5, 300e5),
+            receiver=20e5, end=600.0, shortest_step=None):
     vessels = [vessel(f"bank{i + 1}", 0.5, p) for i, p in enumerate(banks)]
     vessels.append(vessel("receiver", 0.1, receiver))
     links = [nw.Link(f"valve{i + 1}", f"bank{i + 1}", "receiver",
                      nw.Orifice(orifice_area(0.002), 0.8)) for i in range(len(banks))]
     seq = nw.Sequence("cascade", tuple(k.name for k in links), flow_below,
-                      dp_below, time_in_step)
+                      dp_below, longest_step, shortest_step)
     return net(vessels, [], links, end=end, sequences=(seq,), record_every=1.0)
 
 
@@ -226,7 +226,7 @@ def test_cascade_moves_from_bank_to_bank_and_closes_its_balances():
 
 
 def test_cascade_skips_a_bank_already_below_the_receiver_and_moves_on_by_time():
-    res = run_network(cascade(dp_below=2e5, time_in_step=20.0,
+    res = run_network(cascade(dp_below=2e5, longest_step=20.0,
                               banks=(100e5, 15e5, 300e5), end=100.0))
     assert res.ok
     texts = [e for t, e in res.events if e.startswith("cascade:")]
@@ -237,6 +237,29 @@ def test_cascade_skips_a_bank_already_below_the_receiver_and_moves_on_by_time():
     # the first step ended on time (20 s), not on the pressure difference
     first = [t for t, e in res.events if "has been open 20 s" in e]
     assert first and first[0] == pytest.approx(20.0, abs=1e-9)
+
+
+def test_shortest_step_holds_a_step_and_then_moves_on_at_once_if_its_rule_is_met():
+    thr = 0.02
+    plain = run_network(cascade(flow_below=thr, end=200.0))
+    t1 = [t for t, e in plain.events if "flow through 'valve1' fell" in e][0]
+    # shorter than the step takes anyway: the rules are watched from then, same switch
+    early = run_network(cascade(flow_below=thr, shortest_step=0.5 * t1, end=200.0))
+    watched = [t for t, e in early.events if "rules are watched from now" in e]
+    assert watched[0] == pytest.approx(0.5 * t1, abs=1e-9)
+    t1_early = [t for t, e in early.events if "flow through 'valve1' fell" in e][0]
+    assert t1_early == pytest.approx(t1, rel=1e-6)
+    # longer: the step lasts its shortest time, then moves on at once (its rule is met);
+    # the next bank, below the receiver by then, is skipped for want of a forward
+    # pressure difference
+    late = run_network(cascade(flow_below=thr, shortest_step=t1 + 10.0,
+                               banks=(100e5, 30e5, 300e5), end=200.0))
+    (text,) = [e for t, e in late.events if "its shortest time" in e and "valve1" in e]
+    (t_switch,) = [t for t, e in late.events if "its shortest time" in e and "valve1" in e]
+    assert t_switch == pytest.approx(t1 + 10.0, abs=1e-9)
+    assert "flow through 'valve1'" in text and "step 2 ('valve2') skipped: no forward " \
+        "pressure difference" in text and "step 3 of 3 ('valve3') opens" in text
+    assert np.all(late.fine("valve2.mass_flow") == 0.0)
 
 
 # ---------------------------------------------------------------- user errors
@@ -271,7 +294,8 @@ sequences:
   other:
     steps: [cv1, psv1]
     next_when: {mass_flow_below: 1 g/s}
-  third: {steps: [cv3], next_when: {time_in_step: 1 min}}
+  third: {steps: [cv3], next_when: {longest_step: 1 min}}
+  fourth: {steps: [nrv], next_when: {shortest_step: 2 min, longest_step: 1 min}}
 run: {end: 10 s}
 """
 
@@ -287,6 +311,8 @@ EXPECTED = [  # (key, words in the message)
     ("links.nrv.cracking_pressure", "a pressure difference is written in plain pressure"),
     ("links.mod.blowdown", "applies to 'action: pop'"),
     ("sequences.third.steps[0]", "unknown link 'cv3'; did you mean"),
+    ("sequences.fourth.next_when.longest_step", "must be longer than shortest_step"),
+    ("sequences.fourth.next_when.shortest_step", "give one of them"),
     ("sequences.fill.next_when", "give at least one rule"),
     ("sequences.other.steps", "already a step of sequence 'fill'"),
     ("sequences.other.steps", "is a relief-valve, which a sequence cannot open and shut"),

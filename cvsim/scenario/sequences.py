@@ -44,15 +44,23 @@ class LinkNames(Kind):
 
 def _check_rules(values, ctx) -> None:
     if all(values.get(k) is None for k in ("mass_flow_below", "pressure_difference_below",
-                                           "time_in_step")):
+                                           "longest_step")):
         ctx.problem(values.at, "give at least one rule: 'mass_flow_below', "
-                    "'pressure_difference_below' or 'time_in_step'")
+                    "'pressure_difference_below' or 'longest_step'")
+    short, long_ = values.get("shortest_step"), values.get("longest_step")
+    if isinstance(short, float) and isinstance(long_, float) and not long_ > short:
+        ctx.problem(values.where["longest_step"], f"longest_step ({long_:g} s) must be longer "
+                    f"than shortest_step ({short:g} s)")
+    if isinstance(short, float) and values.get("mass_flow_below") is None and \
+            values.get("pressure_difference_below") is None:
+        ctx.problem(values.where["shortest_step"], "'shortest_step' delays the "
+                    "'mass_flow_below' and 'pressure_difference_below' rules; give one of them")
 
 
 NEXT_WHEN = Section(
     "next_when",
     "When a sequence moves on from the link of its active step: the first rule met wins, "
-    "e.g. `next_when: {mass_flow_below: 5 g/s, time_in_step: 3 min}`.",
+    "e.g. `next_when: {mass_flow_below: 5 g/s, longest_step: 3 min}`.",
     fields=(
         Field("mass_flow_below", Quantity("mass_flow", above=0.0),
               "The mass flow through the active link, from its `from` to its `to`, has "
@@ -60,8 +68,13 @@ NEXT_WHEN = Section(
         Field("pressure_difference_below", PressureDifference(above=0.0),
               "The pressure difference across the active link, p(from) - p(to), has "
               "fallen to this."),
-        Field("time_in_step", Quantity("time", above=0.0),
+        Field("longest_step", Quantity("time", above=0.0),
               "The active step has lasted this long."),
+        Field("shortest_step", Quantity("time", above=0.0),
+              "The flow and pressure-difference rules are watched only once the step has "
+              "lasted this long (a valve downstream still opening, a volume filling first); "
+              "a step is then skipped on coming up only if it has no forward pressure "
+              "difference."),
     ),
     checks=(_check_rules,),
 )
@@ -109,4 +122,4 @@ def build_sequence(name: str, values) -> Sequence:
     rules = values["next_when"]
     return Sequence(name=name, steps=values["steps"], flow_below=rules["mass_flow_below"],
                     pressure_difference_below=rules["pressure_difference_below"],
-                    time_in_step=rules["time_in_step"])
+                    longest_step=rules["longest_step"], shortest_step=rules["shortest_step"])
