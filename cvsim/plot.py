@@ -53,6 +53,9 @@ DASHES = ("-", (0, (6, 2)), (0, (1, 1.5)), (0, (6, 2, 1, 2)))
 # [in] size of one panel's plotting area, a little less than it turns out after
 # layout (to place legends and cut event texts before the layout is known)
 PANEL_IN = {True: (4.4, 2.8), False: (8.6, 3.8)}
+# the same for the overview with a row of valve openings: the four quantities in
+# half-width panels, the openings in a wide, low panel below them
+PANEL_WITH_OPENINGS_IN = {False: (4.4, 1.9), True: (9.6, 1.3)}
 
 TITLE_PT = 12.0
 SUBTITLE_PT = 9.0
@@ -282,12 +285,17 @@ def _flow(ax, view: _View, overview: bool):
 
 
 def _opening(ax, view: _View, overview: bool):
-    for k in view.openings:
-        _line(ax, view, 100.0 * view.result[f"{k}.opening"], k, view.colour[k], lw=1.6,
-              ls=view.dash[k])
+    # valves often share a value (shut, fully open): earlier lines are drawn wider so
+    # that the ones on top of them leave them visible
+    n = len(view.openings)
+    step = min(1.2, 3.6 / max(n - 1, 1))  # [pt] the widest line at most 5.2 pt
+    for i, k in enumerate(view.openings):
+        _line(ax, view, 100.0 * view.result[f"{k}.opening"], k, view.colour[k],
+              lw=1.6 + step * (n - 1 - i), ls=view.dash[k])
     ax.set_ylabel("Opening [%]")
     ax.set_ylim(-5.0, 105.0)
-    _finish(ax, view, "Valve opening", floor=None, overview=overview)
+    ax.set_yticks([0.0, 25.0, 50.0, 75.0, 100.0])
+    _finish(ax, view, "Valve opening", floor=None, overview=overview, legend_outside=True)
 
 
 def _line(ax, view: _View, y, label, colour, lw, ls="-"):
@@ -308,7 +316,7 @@ def _note(ax, text: str):
 
 
 def _finish(ax, view: _View, title: str, floor: float | None, overview: bool,
-            event_labels: bool = False):
+            event_labels: bool = False, legend_outside: bool = False):
     """Title, grid, y range, event lines and legend of a panel.
 
     floor  smallest y span shown [plot unit] (with at least 1e-3 of the largest
@@ -319,7 +327,7 @@ def _finish(ax, view: _View, title: str, floor: float | None, overview: bool,
     ax.grid(True, which="major", color="0.85", lw=0.6)
     ax.set_axisbelow(True)
     ax.ticklabel_format(axis="y", useOffset=False)
-    size = PANEL_IN[overview]
+    size = _panel_size(ax, view, overview)
     obstacles = []
     if view.empty:
         ax.set_yticks([])
@@ -329,7 +337,21 @@ def _finish(ax, view: _View, title: str, floor: float | None, overview: bool,
         if floor is not None:
             _least_span(ax, floor)
         obstacles = _events(ax, view, event_labels, size)
-    _legend(ax, size, obstacles)
+    if legend_outside:  # a low panel of fixed range: the legend beside it hides nothing
+        if ax.get_legend_handles_labels()[0]:
+            ax.legend(loc="center left", bbox_to_anchor=(1.005, 0.5), fontsize=LEGEND_PT,
+                      framealpha=0.9)
+    else:
+        _legend(ax, size, obstacles)
+
+
+def _panel_size(ax, view: _View, overview: bool) -> tuple[float, float]:
+    """Estimated plotting area of a panel [in], for placing legends and event texts."""
+    if overview and view.openings:
+        spec = ax.get_subplotspec()
+        wide = spec is not None and len(spec.colspan) > 1
+        return PANEL_WITH_OPENINGS_IN[wide]
+    return PANEL_IN[overview]
 
 
 def _curves(ax) -> list:
