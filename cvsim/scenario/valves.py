@@ -253,8 +253,9 @@ def _build_relief(values, ctx) -> ReliefValve:
     reseat = full = None
     if values["action"] == "pop":
         reseat = p_set - _amount(values["blowdown"], p_gauge)
+        share = values["blowdown"][0] == "fraction"
         ctx.record(at.child("reseat_pressure", None), "(set - blowdown)", reseat, "Pa",
-                   "blowdown as a fraction applies to the gauge set pressure")
+                   "blowdown as a share of the gauge set pressure" if share else "")
     else:
         over = values["full_lift_overpressure"]
         if over is None:
