@@ -285,6 +285,8 @@ links:
          diameter: 50 mm, discharge_coefficient: 0.7}
   nrv: {from: air, to: drum, device: check-valve, cracking_pressure: 0.1 barg,
         diameter: 10 mm, discharge_coefficient: 0.7}
+  disc2: {from: drum, to: air, device: bursting-disc, burst_pressure: 12, area: 1 cm2,
+          discharge_coefficient: 0.7}
   mod: {from: drum, to: air, device: relief-valve, set_pressure: 10 barg, action: modulating,
         blowdown: 5 %, area: 1 cm2}
 sequences:
@@ -309,6 +311,7 @@ EXPECTED = [  # (key, words in the message)
     ("links.psv4.blowdown", "reseat pressure at or above the set pressure"),
     ("links.disc.to", "unknown vessel or reservoir 'flare'"),
     ("links.nrv.cracking_pressure", "a pressure difference is written in plain pressure"),
+    ("links.disc2.burst_pressure", "missing unit"),
     ("links.mod.blowdown", "applies to 'action: pop'"),
     ("sequences.third.steps[0]", "unknown link 'cv3'; did you mean"),
     ("sequences.fourth.next_when.longest_step", "must be longer than shortest_step"),
