@@ -57,7 +57,7 @@ class SequenceController:
         name = d.steps[j]
         dp = snap.states[dev.source].p - snap.states[dev.target].p
         if not watched:
-            if dp <= 0.0:
+            if dp <= 0.0 and dev.kind != "fixed-flow":  # a forced flow needs no difference
                 return f"no forward pressure difference across '{name}' ({dp / 1e5:.4g} bar)"
             return None
         if d.flow_below is not None:

@@ -376,3 +376,20 @@ def test_device_keys_are_read_into_si_definitions():
     names = res.names()
     for link in ("pcv", "psv", "mod", "disc", "nrv"):
         assert f"{link}.opening" in names
+
+
+def test_a_forced_flow_in_a_sequence_is_not_skipped_for_want_of_a_pressure_difference():
+    # a compressor step pushes gas up a pressure difference; the shortest-step skip rule
+    # (no forward pressure difference) does not apply to it
+    comp = nw.FixedFlow(Constant(0.01))
+    seq = nw.Sequence("charge", ("compressor", "topup"), flow_below=1e-3, shortest_step=5.0)
+    res = run_network(net([vessel("rx", 0.2, 20e5)],
+                          [nw.Reservoir("suction", Constant(2e5), Constant(T0)),
+                           nw.Reservoir("header", Constant(30e5), Constant(T0))],
+                          [nw.Link("compressor", "suction", "rx", comp),
+                           nw.Link("topup", "header", "rx", nw.Orifice(orifice_area(0.002),
+                                                                        0.8))],
+                          end=20.0, sequences=(seq,)))
+    assert res.ok
+    assert "step 1 of 2 ('compressor') opens" in res.events[0][1]
+    assert res["compressor.mass_flow"][1] == 0.01
