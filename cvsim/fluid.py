@@ -273,6 +273,16 @@ class RealFluid:
                              "temperature stop) or add heat input.")
         return self._read()
 
+    def ideal_gas_gamma(self, rho: float, T: float) -> float:
+        """Ideal-gas heat-capacity ratio cp0/(cp0 - R) at temperature T [K] [-].
+
+        cp0 depends on T only; ``rho`` [kg/m3] is any density at which (rho, T)
+        is a valid state (the state's own), used only to place CoolProp there.
+        """
+        self._update_dt(rho, T)
+        cp0 = self._as.cp0mass()
+        return cp0 / (cp0 - R_UNIVERSAL / self.molar_mass)
+
     def saturated_vapour_at_p(self, p: float) -> State:
         """Saturated vapour at pressure p [Pa] (below the critical pressure)."""
         return self._saturated(p, 1.0)
@@ -375,6 +385,10 @@ class IdealGas:
         T = math.exp(lnT)
         self.evaluations += 1
         return self._state(rho, T)
+
+    def ideal_gas_gamma(self, rho: float, T: float) -> float:
+        """Heat-capacity ratio [-] (constant for this model)."""
+        return self.gamma
 
     def saturated_vapour_at_p(self, p: float) -> State:  # pragma: no cover - never two-phase
         raise StateError("an ideal gas has no saturation")

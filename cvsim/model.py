@@ -27,6 +27,10 @@ The model is split by time: :meth:`Model.segment` prepares a
 :class:`Segment` for one stretch between breakpoints with the discrete states
 (valves open or shut, flows running or stopped) fixed; the solver integrates
 it, and starts a new segment at every breakpoint and switch.
+
+Controllers (sequences of links opened one after another) own discrete states
+too; a link that belongs to a sequence passes flow only while its step is
+active (:attr:`Model.gates`).
 """
 from __future__ import annotations
 
@@ -36,17 +40,25 @@ import numpy as np
 
 from . import network as nw
 from .errors import StateError
-from .flow.base import Flow
+from .flow.base import NO_FLOW, Flow
+from .flow.control_valve import ControlValveDevice
+from .flow.disc import BurstingDiscDevice, CheckValveDevice
 from .flow.fixed import FixedFlowDevice
 from .flow.orifice import OrificeDevice
+from .flow.relief import ReliefValveDevice
 from .fluid import make_fluid
 from .heat.loads import AmbientExchangeTerm, HeatLoadTerm
+from .sequence import SequenceController
 from .signals import Constant
 
 #: run-time class of each device definition; later devices register here
 DEVICE_TYPES = {
     nw.Orifice: OrificeDevice,
     nw.FixedFlow: FixedFlowDevice,
+    nw.ControlValve: ControlValveDevice,
+    nw.ReliefValve: ReliefValveDevice,
+    nw.BurstingDisc: BurstingDiscDevice,
+    nw.CheckValve: CheckValveDevice,
 }
 
 #: run-time class of each heat-term definition
@@ -103,6 +115,16 @@ class Model:
             cls = DEVICE_TYPES[type(link.device)]
             self.devices.append(cls(link.device, self.fluid, i, self.node_index[link.source],
                                     self.node_index[link.target]))
+
+        # controllers; gates[k] = (discrete key, step) of a link in a sequence, else None
+        self.link_index = {link.name: i for i, link in enumerate(self.links)}
+        self.controllers = [SequenceController(sq, i, self.link_index, self.devices)
+                            for i, sq in enumerate(network.sequences)]
+        self.gates: list[tuple[str, int] | None] = [None] * len(self.links)
+        for c in self.controllers:
+            for j, k in enumerate(c.links):
+                self.gates[k] = (c.key, j)
+        self.initial_events: list[tuple[float, str]] = []
 
         # bookkeeping integrals
         self.i_acc_links = offset
@@ -188,11 +210,23 @@ class Model:
         return sorted(out, key=lambda e: e[0])
 
     def initial_discrete(self, y0: np.ndarray) -> dict:
+        """Discrete states at the start (devices first, then controllers, which
+        may look at the devices' flows); what the controllers decide at the start
+        goes into :attr:`initial_events`."""
         seg = Segment(self, 0.0, 0.0, {})
         snap = seg.states(0.0, y0)
         discrete = {}
         for d in self.devices:
             discrete.update(d.initial_discrete(snap))
+        self.initial_events = []
+        if self.controllers:
+            bps = self.breakpoints()
+            seg = Segment(self, 0.0, bps[0] if bps else self.network.run.end_time, discrete)
+            snap = seg.states(0.0, y0)
+            for c in self.controllers:
+                state, text = c.initial_discrete(seg, snap)
+                discrete.update(state)
+                self.initial_events.append((0.0, f"{c.name}: {text}"))
         return discrete
 
     def segment(self, t0: float, t1: float, discrete: dict) -> "Segment":
@@ -226,9 +260,13 @@ class Model:
         for r in self.reservoirs:
             cols.append((f"{r.name}.pressure", "Pa", "reservoir"))
             cols.append((f"{r.name}.temperature", "K", "reservoir"))
-        for link in self.links:
+        for link, d, gate in zip(self.links, self.devices, self.gates):
             cols.append((f"{link.name}.mass_flow", "kg/s", "link"))
             cols.append((f"{link.name}.choked", "-", "link"))
+            if d.has_opening or gate is not None:
+                cols.append((f"{link.name}.opening", "-", "link"))
+        for c in self.controllers:
+            cols.append((f"{c.name}.step", "-", "sequence"))
         return cols
 
 
@@ -311,7 +349,12 @@ class Segment:
         if self._flows_key is self._key:
             return s, self._flows
         flows = []
+        gates = self.model.gates
         for d in self.model.devices:
+            gate = gates[d.index]
+            if gate is not None and self.discrete[gate[0]][0] != gate[1]:
+                flows.append(NO_FLOW)  # a link of a sequence whose step is not active
+                continue
             try:
                 flows.append(d.flow(t, s.outflow[d.source], s.outflow[d.target], self))
             except StateError as exc:
@@ -404,6 +447,13 @@ class Segment:
                 fn.direction = sw.direction
                 fn.action = ("switch", sw, f"{m.links[d.index].name}: {sw.describe}")
                 evs.append(fn)
+        for c in m.controllers:
+            for sw in c.switches(self):
+                fn = _switch_event(self, sw)
+                fn.terminal = True
+                fn.direction = sw.direction
+                fn.action = ("switch", sw, f"{c.name}: {sw.describe}")
+                evs.append(fn)
         return evs
 
     # ---------------------------------------------------------- output
@@ -422,8 +472,13 @@ class Segment:
         for k, r in enumerate(m.reservoirs):
             st = s.states[nv + k]
             row += [st.p, st.T]
-        for f in flows:
+        for d, f, gate in zip(m.devices, flows, m.gates):
             row += [f.mdot, 1.0 if f.choked else 0.0]
+            if d.has_opening or gate is not None:
+                shut = gate is not None and self.discrete[gate[0]][0] != gate[1]
+                row.append(0.0 if shut else d.opening(t, s, self))
+        for c in m.controllers:
+            row.append(c.observe(self.discrete))
         return row
 
 

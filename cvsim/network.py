@@ -197,7 +197,76 @@ class FixedFlow:
     restart_above: float | None = None
 
 
-Device = Orifice | FixedFlow
+@dataclass(frozen=True)
+class ControlValve:
+    """Control valve, compressible flow by IEC 60534-2-1.
+
+    kv             [m3/h] rated flow coefficient Kv at full opening (a Cv is
+                   converted with Kv = 0.865 Cv before it gets here)
+    xt             [-] pressure differential ratio factor xT (with fittings: xTP)
+    opening        [-] valve travel 0..1, constant or a table in time
+    characteristic ``linear``, ``equal-percentage`` or ``quick-opening``
+    rangeability   [-] R of the equal-percentage characteristic (> 1)
+    piping_factor  [-] piping geometry factor Fp (1: no fittings)
+    """
+
+    kv: float
+    xt: float
+    opening: Signal
+    characteristic: str = "linear"
+    rangeability: float = 50.0
+    piping_factor: float = 1.0
+
+
+@dataclass(frozen=True)
+class ReliefValve:
+    """Spring-loaded pressure relief valve sized by API 520 Part I (gas).
+
+    area          [m2] effective discharge area (API 526 letter or stated)
+    set_pressure  [Pa] absolute pressure of the ``from`` node at which it opens
+    action        ``pop`` (full lift at set, shuts at reseat) or ``modulating``
+                  (lift grows linearly from set to ``full_lift_pressure``)
+    reseat_pressure    [Pa] pop action: the valve shuts when the pressure falls to this
+    full_lift_pressure [Pa] modulating action: full lift from this pressure on
+    kd, kb, kc    [-] effective discharge coefficient, back-pressure correction,
+                  combination correction (rupture disc upstream)
+    """
+
+    area: float
+    set_pressure: float
+    action: str = "pop"
+    reseat_pressure: float | None = None
+    full_lift_pressure: float | None = None
+    kd: float = 0.975
+    kb: float = 1.0
+    kc: float = 1.0
+
+
+@dataclass(frozen=True)
+class BurstingDisc:
+    """Bursting (rupture) disc: shut until the ``from`` node reaches ``burst_pressure``
+    [Pa, absolute], then an open orifice for good (area [m2], discharge coefficient,
+    flow model as :class:`Orifice`)."""
+
+    area: float
+    discharge_coefficient: float
+    burst_pressure: float
+    flow_model: str = "real-gas"
+
+
+@dataclass(frozen=True)
+class CheckValve:
+    """Non-return valve: opens when p_from - p_to reaches ``cracking_pressure`` [Pa],
+    shuts when the difference falls to zero; open, it is an orifice (area [m2],
+    discharge coefficient, flow model) passing flow from ``from`` to ``to`` only."""
+
+    area: float
+    discharge_coefficient: float
+    cracking_pressure: float
+    flow_model: str = "real-gas"
+
+
+Device = Orifice | FixedFlow | ControlValve | ReliefValve | BurstingDisc | CheckValve
 
 
 @dataclass(frozen=True)
@@ -208,6 +277,36 @@ class Link:
     source: str
     target: str
     device: Device
+
+
+# ---------------------------------------------------------------- sequences
+
+
+@dataclass(frozen=True)
+class Sequence:
+    """Links opened one after another (cascade charging from storage banks).
+
+    Only the link of the active step passes flow; the others are shut. The
+    sequence moves to the next step when the first of the stated rules is met
+    for the active link (``None``: rule not used):
+
+    flow_below                 [kg/s] the link's mass flow (positive from -> to) falls to this
+    pressure_difference_below  [Pa] p_from - p_to of the link falls to this
+    longest_step               [s] the step has lasted this long
+    shortest_step              [s] the flow and pressure-difference rules are watched
+                               only once the step has lasted this long
+
+    A step whose rule is already met when it comes up is skipped (with
+    ``shortest_step``: only a step without forward pressure difference); after
+    the last step every link of the sequence is shut.
+    """
+
+    name: str
+    steps: tuple[str, ...]
+    flow_below: float | None = None
+    pressure_difference_below: float | None = None
+    longest_step: float | None = None
+    shortest_step: float | None = None
 
 
 # ------------------------------------------------------------------- the run
@@ -269,13 +368,15 @@ class Network:
     links: tuple[Link, ...] = ()
     run: RunSettings = field(default_factory=lambda: RunSettings(end_time=60.0, record_every=1.0))
     atmosphere: float = 101325.0  # [Pa] the local atmosphere gauge pressures refer to
+    sequences: tuple[Sequence, ...] = ()
 
     def node_names(self) -> tuple[str, ...]:
         return tuple(v.name for v in self.vessels) + tuple(r.name for r in self.reservoirs)
 
 
 __all__ = [
-    "AmbientExchange", "Constant", "Device", "FixedFlow", "FluidSpec", "Geometry",
-    "HeatLoad", "HeatTerm", "InitialState", "Link", "Network", "Orifice", "Reservoir",
-    "RunSettings", "StopCondition", "Vessel", "VesselLimits",
+    "AmbientExchange", "BurstingDisc", "CheckValve", "Constant", "ControlValve", "Device",
+    "FixedFlow", "FluidSpec", "Geometry", "HeatLoad", "HeatTerm", "InitialState", "Link",
+    "Network", "Orifice", "ReliefValve", "Reservoir", "RunSettings", "Sequence",
+    "StopCondition", "Vessel", "VesselLimits",
 ]

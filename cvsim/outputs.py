@@ -112,6 +112,11 @@ def _t(t: float) -> str:
     return f"{t / 3600:.4g} h"
 
 
+#: the text summary lists at most this many events (the first ones and the last EVENTS_TAIL)
+EVENTS_SHOWN = 40
+EVENTS_TAIL = 10
+
+
 def summary_text(result: Result) -> str:
     """The summary as text for the screen and for summary.txt."""
     s = result.summary()
@@ -119,6 +124,10 @@ def summary_text(result: Result) -> str:
     L = [f"{s['title']}", "=" * min(len(s['title']), 78),
          f"Status: {s['status']} - {s['message']}",
          f"Simulated time: {_t(s['end_time_s'])}", ""]
+    if s.get("warnings"):
+        L.append("Warnings:")
+        L += [f"  ! {w}" for w in s["warnings"]]
+        L.append("")
     for name, v in s["vessels"].items():
         L.append(f"Vessel '{name}':")
         L.append(f"  pressure    max {_bar(v['max_pressure_Pa'], atm)} at {_t(v['max_pressure_time_s'])};"
@@ -146,6 +155,7 @@ def summary_text(result: Result) -> str:
                      f"peak {k['max_mass_flow_kg_s']:.4g} kg/s at {_t(k['max_mass_flow_time_s'])}")
             if abs(k["energy_added_by_device_J"]) > 0:
                 L.append(f"    energy added by the device: {k['energy_added_by_device_J'] / 1e3:.5g} kJ")
+            L += [f"    {note}" for note in k.get("notes", [])]
     if s["heat"]:
         L.append("")
         L.append("Heat into the gas:")
@@ -154,8 +164,15 @@ def summary_text(result: Result) -> str:
     if s["events"]:
         L.append("")
         L.append("Events:")
-        for e in s["events"]:
-            L.append(f"  {_t(e['time_s'])}: {e['event']}")
+        events = s["events"]
+        if len(events) > EVENTS_SHOWN:  # a cycling valve: the first and the last ones
+            head, tail = events[:EVENTS_SHOWN - EVENTS_TAIL], events[-EVENTS_TAIL:]
+            hidden = len(events) - len(head) - len(tail)
+            events = head + [{"time_s": math.nan,
+                              "event": f"... {hidden} more (all in summary.json) ..."}] + tail
+        for e in events:
+            when = f"{_t(e['time_s'])}: " if math.isfinite(e["time_s"]) else ""
+            L.append(f"  {when}{e['event']}")
     if result.limits:
         L.append("")
         L.append(limits_text(result))

@@ -39,6 +39,8 @@ DPI = 150
 OVERVIEW_SIZE = (11.0, 8.0)   # [in] fits a landscape A4 page inside its margins
 SINGLE_SIZE = (10.0, 6.0)     # [in]
 MAX_EVENT_LABELS = 8      # more events than this: lines only, no text
+MAX_EVENT_LINES = 40      # more events than this (a cycling valve): no lines, they would
+                          # hide the curves; the openings panel shows the switching
 EVENT_LABEL_HEIGHT = 0.6  # event text is cut to this fraction of the panel height
 SUBTITLE_MESSAGE_CHARS = 240  # a longer status message is cut (the summary has it whole)
 EVENT_SHORT = (("stop condition met: ", "stop: "), ("run failed: ", "failed: "))
@@ -51,6 +53,9 @@ DASHES = ("-", (0, (6, 2)), (0, (1, 1.5)), (0, (6, 2, 1, 2)))
 # [in] size of one panel's plotting area, a little less than it turns out after
 # layout (to place legends and cut event texts before the layout is known)
 PANEL_IN = {True: (4.4, 2.8), False: (8.6, 3.8)}
+# the same for the overview with a row of valve openings: the four quantities in
+# half-width panels, the openings in a wide, low panel below them
+PANEL_WITH_OPENINGS_IN = {False: (4.4, 1.9), True: (9.6, 1.3)}
 
 TITLE_PT = 12.0
 SUBTITLE_PT = 9.0
@@ -102,7 +107,8 @@ def flow_unit(peak: float) -> tuple[str, float]:
 def plot_run(result: Result, folder: Path) -> list[Path]:
     """Write the plots of ``result`` into ``folder`` (created if missing).
 
-    Files: ``overview.png`` (pressure, temperature, mass, mass flow),
+    Files: ``overview.png`` (pressure, temperature, mass, mass flow, and the
+    valve openings across the foot of the page when there are any),
     ``pressure.png``, ``temperature.png``, ``mass.png``, ``flow.png`` and,
     only when the result has ``<link>.opening`` columns, ``opening.png``.
     Returns the paths written, in that order.
@@ -118,10 +124,18 @@ def plot_run(result: Result, folder: Path) -> list[Path]:
 
     path = folder / "overview.png"
     with _figure(OVERVIEW_SIZE, view) as fig:
-        axes = fig.subplots(2, 2, sharex=True).ravel()
-        for ax, (_, draw) in zip(axes, panels[:4]):
+        if view.openings:  # valve states under the four quantities, across the page
+            grid = fig.subplot_mosaic([["pressure", "temperature"], ["mass", "flow"],
+                                       ["opening", "opening"]], sharex=True,
+                                      height_ratios=[1.0, 1.0, 0.7])
+            axes = [grid[name] for name, _ in panels]
+            bottom = [grid["opening"]]
+        else:
+            axes = fig.subplots(2, 2, sharex=True).ravel()
+            bottom = axes[2:]
+        for ax, (_, draw) in zip(axes, panels):
             draw(ax, view, overview=True)
-        for ax in axes[2:]:
+        for ax in bottom:
             ax.set_xlabel(view.time_label)
         fig.savefig(path, dpi=DPI)
     written.append(path)
@@ -271,12 +285,17 @@ def _flow(ax, view: _View, overview: bool):
 
 
 def _opening(ax, view: _View, overview: bool):
-    for k in view.openings:
-        _line(ax, view, 100.0 * view.result[f"{k}.opening"], k, view.colour[k], lw=1.6,
-              ls=view.dash[k])
+    # valves often share a value (shut, fully open): earlier lines are drawn wider so
+    # that the ones on top of them leave them visible
+    n = len(view.openings)
+    step = min(1.2, 3.6 / max(n - 1, 1))  # [pt] the widest line at most 5.2 pt
+    for i, k in enumerate(view.openings):
+        _line(ax, view, 100.0 * view.result[f"{k}.opening"], k, view.colour[k],
+              lw=1.6 + step * (n - 1 - i), ls=view.dash[k])
     ax.set_ylabel("Opening [%]")
     ax.set_ylim(-5.0, 105.0)
-    _finish(ax, view, "Valve opening", floor=None, overview=overview)
+    ax.set_yticks([0.0, 25.0, 50.0, 75.0, 100.0])
+    _finish(ax, view, "Valve opening", floor=None, overview=overview, legend_outside=True)
 
 
 def _line(ax, view: _View, y, label, colour, lw, ls="-"):
@@ -297,7 +316,7 @@ def _note(ax, text: str):
 
 
 def _finish(ax, view: _View, title: str, floor: float | None, overview: bool,
-            event_labels: bool = False):
+            event_labels: bool = False, legend_outside: bool = False):
     """Title, grid, y range, event lines and legend of a panel.
 
     floor  smallest y span shown [plot unit] (with at least 1e-3 of the largest
@@ -308,7 +327,7 @@ def _finish(ax, view: _View, title: str, floor: float | None, overview: bool,
     ax.grid(True, which="major", color="0.85", lw=0.6)
     ax.set_axisbelow(True)
     ax.ticklabel_format(axis="y", useOffset=False)
-    size = PANEL_IN[overview]
+    size = _panel_size(ax, view, overview)
     obstacles = []
     if view.empty:
         ax.set_yticks([])
@@ -318,7 +337,21 @@ def _finish(ax, view: _View, title: str, floor: float | None, overview: bool,
         if floor is not None:
             _least_span(ax, floor)
         obstacles = _events(ax, view, event_labels, size)
-    _legend(ax, size, obstacles)
+    if legend_outside:  # a low panel of fixed range: the legend beside it hides nothing
+        if ax.get_legend_handles_labels()[0]:
+            ax.legend(loc="center left", bbox_to_anchor=(1.005, 0.5), fontsize=LEGEND_PT,
+                      framealpha=0.9)
+    else:
+        _legend(ax, size, obstacles)
+
+
+def _panel_size(ax, view: _View, overview: bool) -> tuple[float, float]:
+    """Estimated plotting area of a panel [in], for placing legends and event texts."""
+    if overview and view.openings:
+        spec = ax.get_subplotspec()
+        wide = spec is not None and len(spec.colspan) > 1
+        return PANEL_WITH_OPENINGS_IN[wide]
+    return PANEL_IN[overview]
 
 
 def _curves(ax) -> list:
@@ -343,6 +376,8 @@ def _events(ax, view: _View, labels: bool, size: tuple[float, float]) -> list:
     """Event times as thin dotted lines, with text beside them when there are
     few; returns the boxes the texts take (axes fractions x0, y0, x1, y1)."""
     span = view.t[-1] - view.t[0] if len(view.t) else 0.0
+    if len(view.events) > MAX_EVENT_LINES:
+        return []
     show = labels and len(view.events) <= MAX_EVENT_LABELS
     glyph = 0.56 * EVENT_PT / 72.0  # [in] average character width
     most = int(EVENT_LABEL_HEIGHT * size[1] / glyph)

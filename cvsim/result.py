@@ -38,6 +38,8 @@ class Result:
     assumptions: list        # model choices, in words
     provenance: dict = field(default_factory=dict)  # versions, scenario hash
     limits: list = field(default_factory=list)      # LimitCheck per vessel limit
+    warnings: list = field(default_factory=list)    # sentences: what to look at (chatter, ...)
+    device_figures: dict = field(default_factory=dict)  # per link: figures of its device
 
     @property
     def limits_crossed(self) -> list:
@@ -127,6 +129,7 @@ class Result:
             "vessels": {},
             "links": {},
             "heat": {},
+            "warnings": list(self.warnings),
             "events": [{"time_s": float(t), "event": e} for t, e in self.events],
             "targets": self.targets(),
             "limits": [c.as_dict() for c in self.limits],
@@ -175,6 +178,7 @@ class Result:
                 "final_mass_flow_kg_s": float(flow[-1]),
                 "energy_added_by_device_J": tot["energy_in_J"] - tot["energy_out_J"],
             }
+            out["links"][n].update(self.device_figures.get(n, {}))
         for name, q in self.totals["heat"].items():
             out["heat"][name] = {"heat_into_gas_J": q}
         return out
@@ -186,10 +190,12 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
     data = np.array(raw.rows, dtype=float) if raw.rows else np.zeros((0, len(cols)))
     fine = np.array(raw.fine_rows, dtype=float) if raw.fine_rows else np.zeros((0, len(cols)))
     totals, balance = _balances(model, raw)
+    figures, warnings = _device_reports(model, raw)
     result = Result(network=model.network, status=raw.status, message=raw.message,
                     columns=cols, data=data, fine_data=fine, events=list(raw.events),
                     stats=dict(raw.stats), totals=totals, balance=balance,
-                    assumptions=assumptions(model), provenance=dict(provenance or {}))
+                    assumptions=assumptions(model), provenance=dict(provenance or {}),
+                    warnings=warnings, device_figures=figures)
     result.limits = check_limits(result)
     return result
 
@@ -210,6 +216,20 @@ def check_limits(result: Result) -> list:
                             rows[:, result._col(f"{v.name}.pressure")],
                             rows[:, result._col(f"{v.name}.temperature")], walls)
     return out
+
+
+def _device_reports(model: Model, raw: RawRun) -> tuple[dict, list[str]]:
+    """Each device's figures and warnings from its switches over the run."""
+    figures, warnings = {}, []
+    for link, d in zip(model.links, model.devices):
+        prefix = d.key("")
+        initial = {k: v for k, v in raw.initial_discrete.items() if k.startswith(prefix)}
+        log = [sw for sw in raw.switches if sw[1].startswith(prefix)]
+        f, w = d.report(initial, log, raw.t_final)
+        if f:
+            figures[link.name] = f
+        warnings += [f"link '{link.name}': {text}" for text in w]
+    return figures, warnings
 
 
 def _balances(model: Model, raw: RawRun):
@@ -301,6 +321,14 @@ def assumptions(model: Model) -> list[str]:
     if "FixedFlow" in kinds:
         out.append("Fixed flows are imposed whatever the pressures; with a delivery temperature "
                    "the stream enters at that temperature and the receiving vessel's pressure.")
+    by_class: dict = {}
+    for link, d in zip(net.links, model.devices):
+        if type(link.device).__name__ not in ("Orifice", "FixedFlow"):
+            by_class.setdefault(type(d), []).append(link.device)
+    for cls, defs in by_class.items():
+        out += cls.assumptions(defs)
+    if model.controllers:
+        out += type(model.controllers[0]).assumptions()
     if not any(v.heat for v in net.vessels):
         out.append("No heat exchange with the vessel walls or surroundings (adiabatic vessels): "
                    "walls would damp the temperature swings.")

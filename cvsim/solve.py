@@ -60,6 +60,8 @@ class RawRun:
     rows: list = field(default_factory=list)          # recorded rows (grid, segment ends, events)
     fine_rows: list = field(default_factory=list)     # every accepted step
     events: list = field(default_factory=list)        # (time [s], text)
+    initial_discrete: dict = field(default_factory=dict)  # discrete states at the start
+    switches: list = field(default_factory=list)      # (time [s], key, new value)
     status: str = "completed"                         # completed | stopped | failed
     message: str = ""
     y_final: np.ndarray | None = None
@@ -89,6 +91,8 @@ def integrate(model: Model, progress=None) -> RawRun:
         y = model.y0()
         raw.y_initial = y.copy()
         discrete = model.initial_discrete(y)
+        raw.initial_discrete = dict(discrete)
+        raw.events += model.initial_events
         seg = model.segment(0.0, t_end, discrete)
         met = _met_at_start(seg, settings.stop, y)
     except StateError as exc:
@@ -135,8 +139,16 @@ def integrate(model: Model, progress=None) -> RawRun:
             msg = f"stop condition met: {text}"
             raw.events.append((t, msg))
             return _finish(raw, "stopped", msg, y, t, model, evals0, wall0)
+        value = what.new_value
+        if callable(value):  # decided at the event from the state there (a sequence's step)
+            try:
+                value, note = value(t, y, seg)
+            except StateError as exc:
+                return _finish(raw, "failed", str(exc), y, t, model, evals0, wall0)
+            text += note
         discrete = dict(discrete)
-        discrete[what.key] = what.new_value
+        discrete[what.key] = value
+        raw.switches.append((t, what.key, value))
         raw.events.append((t, text))
         switch_times.append(t)
         span = CHATTER_SPAN * max(t_end, 1.0)

@@ -17,6 +17,12 @@ Devices are smooth within an integration segment. Anything that jumps (a valve
 opening at a time, a flow that stops at a pressure) is either a breakpoint in
 time (:meth:`Device.breakpoints`) or a discrete switch handled by solver events
 (:meth:`Device.switches`), so that no step straddles a jump.
+
+A device that moves (a valve with a travel, a relief valve's lift, a disc or
+check valve open or shut) sets ``has_opening`` and returns its opening, 0..1,
+from :meth:`Device.opening`; the histories then hold a ``<link>.opening``
+column. :meth:`Device.report` turns the device's switches of a whole run into
+summary figures and warnings (a relief valve counts its cycles).
 """
 from __future__ import annotations
 
@@ -41,8 +47,10 @@ class Switch:
     ``key`` names the discrete state it changes; ``function(t, snapshot)``
     crosses zero where the change happens; ``direction`` is that of scipy's
     events (-1: falling through zero, +1: rising); ``new_value`` is the value
-    of the discrete state after the crossing; ``describe`` says what happened,
-    in words, for the event log.
+    of the discrete state after the crossing, or a function ``(t, y, segment)
+    -> (value, text)`` that decides it from the state at the event (the text is
+    appended to the log entry); ``describe`` says what happened, in words, for
+    the event log.
     """
 
     key: str
@@ -61,6 +69,8 @@ class Device:
 
     #: kind name shown in outputs
     kind = "device"
+    #: True if the device has an opening worth recording (``<link>.opening``)
+    has_opening = False
 
     def __init__(self, definition, fluid, index: int, source: int, target: int):
         self.d = definition
@@ -86,6 +96,22 @@ class Device:
 
     def switches(self, discrete: dict) -> list[Switch]:
         """Events that may change this device's discrete states from ``discrete``."""
+        return []
+
+    def opening(self, t: float, snapshot, segment) -> float:
+        """Opening of the device, 0 (shut) to 1 (fully open), at ``t``."""
+        return 1.0
+
+    def report(self, initial: dict, switches: list, t_end: float) -> tuple[dict, list[str]]:
+        """Summary figures (plain data; ``notes``: sentences for the text summary)
+        and warnings, from this device's discrete states at the start
+        (``initial``, name -> value) and its switches over the whole run, each
+        ``(time [s], key, new value)``."""
+        return {}, []
+
+    @classmethod
+    def assumptions(cls, definitions: list) -> list[str]:
+        """Model choices of this device kind in words, for the assumption register."""
         return []
 
     def flow(self, t: float, a, b, segment) -> Flow:  # pragma: no cover - abstract

@@ -41,6 +41,14 @@ class OrificeDevice(Device):
         mid = segment.midpoint
         return self.d.open_from <= mid < self.d.open_until
 
+    @property
+    def has_opening(self) -> bool:
+        """An orifice with an open time window records its state (0 or 1)."""
+        return self.d.open_from > 0.0 or math.isfinite(self.d.open_until)
+
+    def opening(self, t, snapshot, segment) -> float:
+        return 1.0 if self.is_open(segment) else 0.0
+
     def flow(self, t, a, b, segment) -> Flow:
         if not self.is_open(segment) or a.p == b.p:
             return NO_FLOW

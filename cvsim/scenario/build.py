@@ -15,6 +15,7 @@ from ..errors import Problem, ScenarioError
 from ..network import FluidSpec, Link, Network, RunSettings, StopCondition
 from . import properties, schema, tree
 from . import vessels as vessels_
+from .sequences import build_sequence
 from .spec import BAD, At, Context, EchoRow
 
 
@@ -152,9 +153,10 @@ def build_network(values, ctx: Context) -> Network | None:
         if vessel.name not in linked:
             ctx.record(At(f"vessels.{vessel.name}", values["vessels"][vessel.name].at.line),
                        "", None, "", "warning: no link; only heat terms change its contents")
+    sequences = tuple(build_sequence(name, v) for name, v in (values["sequences"] or {}).items())
     network = Network(title=values["title"], fluid=fluid, vessels=vessels,
                       reservoirs=reservoirs, links=tuple(links), run=_run(values["run"]),
-                      atmosphere=ctx.atmosphere)
+                      atmosphere=ctx.atmosphere, sequences=sequences)
     return network if not ctx.problems else None
 
 

@@ -137,4 +137,16 @@ Where practice differs, the reader takes these choices; each is visible in the e
    advance).
 9. **Keys given twice** in one mapping and **unknown keys** are problems, with the
    closest known key suggested.
+10. **Set, reseat, full-lift and burst pressures** are compared with the absolute
+    pressure of the link's `from` node; gauge values refer to `atmosphere`. A blowdown or
+    overpressure written as a share (`7 %`) is a share of the gauge set pressure; the
+    echo shows the absolute reseat and full-lift pressures used.
+11. **Pressure differences** (blowdown or overpressure as a pressure, cracking pressure,
+    `pressure_difference_below`) are written in plain pressure units without a gauge or
+    absolute mark: `0.7 bar`, `50 kPa`, `7 psi`, `50 mbar`.
+12. **Flow coefficients are plain numbers**: `Cv` in US gal/min of water at 1 psi, `Kv`
+    in m3/h of water at 1 bar, Kv = 0.865 Cv (IEC 60534-2-1). Terms of the trade keep
+    their usual spelling as keys (`Cv`, `Kv`, `xT`).
+13. **A valve opening** is a fraction (`60 %` or `0.6`), constant or a table in time, or a
+    `stroke` that the reader turns into a table of ramps (shown in the echo).
 """

@@ -13,8 +13,10 @@ from .. import units
 from ..errors import FluidError
 from . import devices as _devices  # noqa: F401  (registers the flow devices)
 from . import properties
+from . import valves as _valves  # noqa: F401  (registers the valves)
 from .reference import DECISIONS, EXAMPLE, INTRO, WRITING_VALUES
 from .registry import DEVICES
+from .sequences import SEQUENCE, check_sequences
 from .spec import (BAD, At, Choice, Entries, Field, Kind, Node, OneOrMore, Quantity, Section,
                    Sub, Text, as_text, read_section)
 from .vessels import RESERVOIR, VESSEL
@@ -211,6 +213,7 @@ def _check_top(values, ctx) -> None:
                 at = entry.at if entry is not BAD else values.where["reservoirs"]
                 ctx.problem(at, f"'{name}' names both a vessel and a reservoir; node names "
                             "must be unique")
+    check_sequences(values, ctx)
 
 
 TOP = Section(
@@ -233,6 +236,8 @@ TOP = Section(
               required=True),
         Field("reservoirs", Entries(RESERVOIR), "The reservoirs, by name."),
         Field("links", Entries(LINK), "The links, by name."),
+        Field("sequences", Entries(SEQUENCE),
+              "Links opened one after another (cascade charging), by name."),
         Field("run", Sub(RUN), "Run settings.", required=True),
     ),
     checks=(_check_top,),
@@ -241,7 +246,7 @@ TOP = Section(
 
 def read(tree, ctx):
     """Read a whole scenario tree against :data:`TOP`; returns the values or BAD."""
-    for role, key in (("vessel", "vessels"), ("reservoir", "reservoirs")):
+    for role, key in (("vessel", "vessels"), ("reservoir", "reservoirs"), ("link", "links")):
         entries = tree.get(key) if isinstance(tree, dict) else None
         ctx.names[role] = [n for n in entries if isinstance(n, str)] \
             if isinstance(entries, dict) else []

@@ -1,0 +1,344 @@
+"""Pressure relief valve: API 520 Part I gas capacity, pop or modulating lift, reseat.
+
+Capacity (API 520 Part I, *Sizing, Selection, and Installation of Pressure-relieving
+Devices - Sizing and Selection*, 9th/10th ed., sec. 5.6 "Sizing for gas or vapor
+relief", equations as printed in the SI form: A [mm2], W [kg/h], P [kPa a],
+T [K], M [kg/kmol]):
+
+    critical flow (P2/P1 <= (2/(k+1))^(k/(k-1))):
+        W = A C Kd P1 Kb Kc sqrt(M / (T Z)),
+        C = 0.03948 sqrt(k (2/(k+1))^((k+1)/(k-1)))
+    subcritical flow:
+        W = A F2 Kd Kc sqrt(M P1 (P1 - P2) / (T Z)) / 17.9,
+        F2 = sqrt( k/(k-1) r^(2/k) (1 - r^((k-1)/k)) / (1 - r) ),  r = P2/P1
+
+The functions here take and return SI base units (A [m2], P [Pa], M [kg/mol],
+W [kg/s]) and convert to the standard's units inside, so the printed constants
+0.03948 and 17.9 are used as printed. (0.03948 is the perfect-gas critical
+mass flux with R = 8314.46 J/(kmol K) in the standard's units; 17.9 is the
+subcritical counterpart rounded to three digits, 0.05 % off the exact value,
+so the two forms differ by that much at the critical pressure ratio.)
+
+Z is the compressibility factor at relieving conditions, Z = p M / (rho R T),
+from the real fluid; k is the ideal-gas heat-capacity ratio at the relieving
+temperature (:meth:`cvsim.fluid.RealFluid.ideal_gas_gamma`), as API 520 Part I
+asks for these equations (the equations are the perfect-gas nozzle corrected
+by Z; the real cp/cv near the critical point would mix two models).
+
+API 526 (*Flanged Steel Pressure-relief Valves*) lettered effective orifice
+areas are in :data:`API526_AREAS_IN2`.
+"""
+from __future__ import annotations
+
+import math
+
+from ..fluid import R_UNIVERSAL
+from .base import NO_FLOW, Device, Flow, Switch
+from .nozzle import LINEAR_BELOW, critical_pressure_ratio
+
+#: constant of the API 520 Part I SI-form critical-flow coefficient C
+API_C_CONSTANT = 0.03948
+#: constant of the API 520 Part I SI-form subcritical equation
+API_SUBCRITICAL_CONSTANT = 17.9
+#: effective discharge coefficient for preliminary gas sizing (API 520 Part I)
+KD_GAS = 0.975
+#: combination correction with an uncertified rupture disc upstream (API 520 Part I)
+KC_RUPTURE_DISC = 0.9
+
+INCH = 0.0254  # [m] exact by definition
+
+#: API Std 526 effective orifice areas [in2], letters D to T
+API526_AREAS_IN2 = {
+    "D": 0.110, "E": 0.196, "F": 0.307, "G": 0.503, "H": 0.785, "J": 1.287, "K": 1.838,
+    "L": 2.853, "M": 3.60, "N": 4.34, "P": 6.38, "Q": 11.05, "R": 16.00, "T": 26.00,
+}
+API526_LETTERS = tuple(API526_AREAS_IN2)
+
+#: a relief valve that opens this many times within CHATTER_WINDOW [s] is
+#: reported as cycling rapidly (chatter risk); common practice, no source
+CHATTER_OPENINGS = 5
+CHATTER_WINDOW = 60.0
+
+
+# ----------------------------------------------------------------- API 520
+
+def api526_area(letter: str) -> float:
+    """Effective orifice area [m2] of an API 526 orifice letter (D ... T).
+
+    >>> round(api526_area("J") / 1e-6, 1)   # 1.287 in2
+    830.3
+    """
+    try:
+        return API526_AREAS_IN2[letter] * INCH * INCH
+    except KeyError:
+        raise ValueError(f"'{letter}' is not an API 526 orifice letter; use one of "
+                         f"{', '.join(API526_LETTERS)}") from None
+
+
+def flow_function(k: float) -> float:
+    """sqrt(k (2/(k+1))^((k+1)/(k-1))) [-], the perfect-gas critical flow function.
+
+    At k = 1 the limit sqrt(1/e) is taken.
+    """
+    if abs(k - 1.0) < 1e-9:
+        return math.sqrt(math.exp(-1.0))
+    return math.sqrt(k * (2.0 / (k + 1.0)) ** ((k + 1.0) / (k - 1.0)))
+
+
+def api520_c(k: float) -> float:
+    """API 520 Part I coefficient C in the SI form [as printed, units of the SI form].
+
+        C = 0.03948 sqrt(k (2/(k+1))^((k+1)/(k-1)))
+
+    Parameters
+    ----------
+    k : ideal-gas heat-capacity ratio at relieving temperature [-]
+
+    >>> round(api520_c(1.40), 6)   # API 520 Part I; 356 in US units
+    0.027033
+    """
+    return API_C_CONSTANT * flow_function(k)
+
+
+def api520_f2(k: float, r: float) -> float:
+    """API 520 Part I subcritical coefficient F2 [-] at pressure ratio r = P2/P1.
+
+        F2 = sqrt( k/(k-1) r^(2/k) (1 - r^((k-1)/k)) / (1 - r) )
+
+    The limit r -> 1 is 1.
+    """
+    if r >= 1.0 - 1e-12:
+        return 1.0
+    return math.sqrt(k / (k - 1.0) * r ** (2.0 / k) * (1.0 - r ** ((k - 1.0) / k)) / (1.0 - r))
+
+
+def is_critical(p1: float, p2: float, k: float) -> bool:
+    """Critical (choked) flow through the valve: P2/P1 <= (2/(k+1))^(k/(k-1))."""
+    return p2 / p1 <= critical_pressure_ratio(k)
+
+
+def compressibility_factor(p: float, rho: float, T: float, molar_mass: float) -> float:
+    """Z = p M / (rho R T) [-] of a state: p [Pa], rho [kg/m3], T [K], M [kg/mol]."""
+    return p * molar_mass / (rho * R_UNIVERSAL * T)
+
+
+def api520_mass_flow(area: float, p1: float, p2: float, T: float, Z: float, M: float,
+                     k: float, kd: float = KD_GAS, kb: float = 1.0, kc: float = 1.0
+                     ) -> tuple[float, bool]:
+    """Gas capacity of a relief valve by API 520 Part I (critical or subcritical).
+
+    Parameters
+    ----------
+    area : effective discharge area [m2]
+    p1 : upstream relieving pressure [Pa] (absolute)
+    p2 : back pressure [Pa] (absolute)
+    T : relieving temperature [K]
+    Z : compressibility factor at relieving conditions [-]
+    M : molar mass [kg/mol]
+    k : ideal-gas heat-capacity ratio at relieving temperature [-]
+    kd : effective coefficient of discharge [-] (0.975 for preliminary gas sizing)
+    kb : back-pressure correction factor [-] (critical flow only, as in API 520)
+    kc : combination correction factor [-] (0.9 with an uncertified rupture disc)
+
+    Returns
+    -------
+    (W [kg/s], critical). W = 0 for p2 >= p1; below a relative pressure
+    difference of 1e-4 W is linear in the difference (regularisation).
+
+    Source: API 520 Part I, sec. 5.6, SI-form equations (see module docstring).
+    """
+    if p2 >= p1:
+        return 0.0, False
+    frac = (p1 - p2) / p1
+    if frac < LINEAR_BELOW:
+        w_lin, _ = _api520_at(area, p1, 1.0 - LINEAR_BELOW, T, Z, M, k, kd, kb, kc)
+        return w_lin * frac / LINEAR_BELOW, False
+    return _api520_at(area, p1, p2 / p1, T, Z, M, k, kd, kb, kc)
+
+
+def _api520_at(area, p1, r, T, Z, M, k, kd, kb, kc):
+    """W [kg/s] and critical at pressure ratio r = P2/P1 (see :func:`api520_mass_flow`)."""
+    a_mm2 = area * 1e6
+    m_kmol = M * 1e3
+    p1_kpa = p1 * 1e-3
+    if r <= critical_pressure_ratio(k):
+        w_h = a_mm2 * api520_c(k) * kd * p1_kpa * kb * kc * math.sqrt(m_kmol / (T * Z))
+        return w_h / 3600.0, True
+    f2 = api520_f2(k, r)
+    w_h = a_mm2 * f2 * kd * kc / API_SUBCRITICAL_CONSTANT * math.sqrt(
+        m_kmol * p1_kpa * p1_kpa * (1.0 - r) / (T * Z))
+    return w_h / 3600.0, False
+
+
+def api520_area(mass_flow: float, p1: float, p2: float, T: float, Z: float, M: float,
+                k: float, kd: float = KD_GAS, kb: float = 1.0, kc: float = 1.0) -> float:
+    """Required effective discharge area [m2] for a gas relief load ``mass_flow`` [kg/s]
+    (API 520 Part I sizing equations; arguments as :func:`api520_mass_flow`).
+
+    >>> round(api520_area(24270 / 3600, 670e3, 101.325e3, 348.0, 0.90, 0.051, 1.11) * 1e6)
+    3699
+    """
+    w_unit, _ = api520_mass_flow(1.0, p1, p2, T, Z, M, k, kd, kb, kc)
+    return mass_flow / w_unit
+
+
+def modulating_lift(p: float, p_set: float, p_full: float) -> float:
+    """Lift [-] of a modulating valve: 0 below set, rising linearly to 1 at full-lift
+    pressure: clip((p - p_set)/(p_full - p_set), 0, 1). Capacity is taken
+    proportional to lift (a simplification; common practice, no source)."""
+    if p <= p_set:
+        return 0.0
+    if p >= p_full:
+        return 1.0
+    return (p - p_set) / (p_full - p_set)
+
+
+# ------------------------------------------------------------------- device
+
+class ReliefValveDevice(Device):
+    """A relief valve on a link: protects the ``from`` node, discharges to the ``to`` node.
+
+    ``pop``: shut until the ``from`` pressure rises to the set pressure, then at
+    full lift (full rated capacity at the present pressures) until it falls to
+    the reseat pressure (set minus blowdown): a discrete state switched by
+    solver events, with the blowdown as deadband. ``modulating``: lift
+    proportional to overpressure, 0 at set and 1 at the full-lift pressure;
+    the two kinks are solver events too, so that no step straddles them.
+    Flow never goes backwards through a relief valve.
+    """
+
+    kind = "relief-valve"
+    has_opening = True
+
+    def __init__(self, definition, fluid, index, source, target):
+        super().__init__(definition, fluid, index, source, target)
+        self.molar_mass = fluid.molar_mass
+        self.pop = definition.action == "pop"
+
+    # ---------------------------------------------------------- discrete state
+    def _regime(self, p: float) -> int:
+        d = self.d
+        return 0 if p < d.set_pressure else (1 if p < d.full_lift_pressure else 2)
+
+    def initial_discrete(self, snapshot):
+        p = snapshot.states[self.source].p
+        if self.pop:
+            return {self.key("open"): p >= self.d.set_pressure}
+        return {self.key("regime"): self._regime(p)}
+
+    def switches(self, discrete):
+        i = self.source
+        d = self.d
+        ps, pr, pf = d.set_pressure, d.reseat_pressure, d.full_lift_pressure
+        if self.pop:
+            key = self.key("open")
+            if discrete[key]:
+                return [Switch(key, lambda t, s: s.states[i].p - pr, -1, False,
+                               f"relief valve reseats at {pr / 1e5:.6g} bar a")]
+            return [Switch(key, lambda t, s: s.states[i].p - ps, +1, True,
+                           f"relief valve pops open at {ps / 1e5:.6g} bar a")]
+        key = self.key("regime")
+        regime = discrete[key]
+        out = []
+        if regime == 0:
+            out.append(Switch(key, lambda t, s: s.states[i].p - ps, +1, 1,
+                              f"relief valve starts to open at {ps / 1e5:.6g} bar a"))
+        if regime == 1:
+            out.append(Switch(key, lambda t, s: s.states[i].p - ps, -1, 0,
+                              f"relief valve shuts at {ps / 1e5:.6g} bar a"))
+            out.append(Switch(key, lambda t, s: s.states[i].p - pf, +1, 2,
+                              f"relief valve at full lift at {pf / 1e5:.6g} bar a"))
+        if regime == 2:
+            out.append(Switch(key, lambda t, s: s.states[i].p - pf, -1, 1,
+                              f"relief valve leaves full lift at {pf / 1e5:.6g} bar a"))
+        return out
+
+    # ------------------------------------------------------------------ flow
+    def _lift(self, p: float, discrete) -> float:
+        if self.pop:
+            return 1.0 if discrete[self.key("open")] else 0.0
+        d = self.d
+        return modulating_lift(p, d.set_pressure, d.full_lift_pressure)
+
+    def opening(self, t, snapshot, segment) -> float:
+        return self._lift(snapshot.states[self.source].p, segment.discrete)
+
+    def flow(self, t, a, b, segment) -> Flow:
+        lift = self._lift(a.p, segment.discrete)
+        if lift <= 0.0 or a.p <= b.p:
+            return NO_FLOW
+        d = self.d
+        M = self.molar_mass
+        Z = compressibility_factor(a.p, a.rho, a.T, M)
+        k = self.fluid.ideal_gas_gamma(a.rho, a.T)
+        w, critical = api520_mass_flow(d.area, a.p, b.p, a.T, Z, M, k, d.kd, d.kb, d.kc)
+        return Flow(lift * w, a.h, a.h, critical)
+
+    # --------------------------------------------------------------- summary
+    def report(self, initial, switches, t_end):
+        # an opening is a change from shut (False / regime 0) to open
+        prev = initial.get(self.key("open" if self.pop else "regime"))
+        opens = []
+        for t, key, v in switches:
+            if v == 1 and prev == 0:  # True == 1 and False == 0 for the pop state
+                opens.append(t)
+            prev = v
+        figures = {"openings": len(opens)}
+        notes = []
+        warnings = []
+        if opens:
+            figures["first_opening_s"] = opens[0]
+            gaps = [b - a for a, b in zip(opens, opens[1:])]
+            if gaps:
+                figures["shortest_cycle_s"] = min(gaps)
+                figures["mean_cycle_s"] = sum(gaps) / len(gaps)
+            text = f"opened {len(opens)} time{'s' if len(opens) != 1 else ''}, first at " \
+                   f"{opens[0]:.4g} s"
+            if gaps:
+                text += (f"; cycle {min(gaps):.4g} s shortest, {sum(gaps) / len(gaps):.4g} s "
+                         "mean")
+            notes.append(text)
+            busiest, start = _most_within(opens, CHATTER_WINDOW)
+            if busiest >= CHATTER_OPENINGS:
+                warnings.append(
+                    f"relief valve opened {busiest} times within {CHATTER_WINDOW:g} s (from "
+                    f"t = {start:.4g} s): rapid cycling, a risk of chatter and seat damage. "
+                    "The valve may be oversized for this relief load, or the blowdown too "
+                    "small; review against API 520 Part II (installation, inlet pressure loss) "
+                    "and API 521.")
+        figures["notes"] = notes
+        return figures, warnings
+
+    @classmethod
+    def assumptions(cls, definitions):
+        out = ["Relief valves: API 520 Part I gas capacity (critical or subcritical) at the "
+               "present upstream state and back pressure, with Z from the real fluid and the "
+               "ideal-gas k at the relieving temperature; set, reseat and full-lift pressures "
+               "compare the absolute pressure of the protected node (back pressure does not "
+               "shift them)."]
+        actions = {d.action for d in definitions}
+        if "pop" in actions:
+            out.append("Pop-action relief valves reach full lift (full rated capacity) at set "
+                       "pressure and stay open until the pressure falls to set minus blowdown.")
+        if "modulating" in actions:
+            out.append("Modulating relief valves: lift and capacity proportional to "
+                       "overpressure, full lift at the stated overpressure.")
+        return out
+
+
+def _most_within(times: list[float], window: float) -> tuple[int, float]:
+    """Largest number of ``times`` inside any interval of length ``window``, and where it starts."""
+    best, start = 0, times[0] if times else 0.0
+    j = 0
+    for i, t in enumerate(times):
+        while times[j] < t - window:
+            j += 1
+        if i - j + 1 > best:
+            best, start = i - j + 1, times[j]
+    return best, start
+
+
+__all__ = ["API526_AREAS_IN2", "API526_LETTERS", "KC_RUPTURE_DISC", "KD_GAS",
+           "ReliefValveDevice", "api520_area", "api520_c", "api520_f2", "api520_mass_flow",
+           "api526_area", "compressibility_factor", "flow_function", "is_critical",
+           "modulating_lift"]
