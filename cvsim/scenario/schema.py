@@ -18,6 +18,7 @@ from .registry import DEVICES
 from .spec import (BAD, At, Choice, Entries, Field, Kind, Node, OneOrMore, Quantity, Section,
                    Sub, Text, as_text, read_section)
 from .vessels import RESERVOIR, VESSEL
+from . import walls as _walls  # noqa: E402,F401  (registers walls and fire exposure)
 
 # ------------------------------------------------------------ special kinds
 
