@@ -122,3 +122,50 @@ def test_gas_properties_of_a_two_phase_vessel_are_the_saturated_vapours():
     rho, cp, mu, k, beta = GasProperties(fluid).at(st)
     assert rho == pytest.approx(rho_v, rel=1e-6)
     assert mu == pytest.approx(CP.PropsSI("viscosity", "T", T, "Q", 1, "Nitrogen"), rel=1e-6)
+
+
+# ----------------------------------------------------------------- in a run
+
+def test_inside_coefficient_of_a_fill_is_natural_and_jet_combined():
+    """The coefficient a run records is the documented combination, recomputed here from
+    the recorded state with CoolProp's properties (a cross-check of the wiring: lengths,
+    properties, jet Reynolds number and the cube blend)."""
+    import CoolProp.CoolProp as CP
+
+    from cvsim import load_scenario_text, run
+
+    sc = load_scenario_text("""
+title: fill
+fluid: Hydrogen
+vessels:
+  c:
+    shape: {kind: cylinder, inner_diameter: 360 mm, length: 1 m, orientation: horizontal,
+            heads: hemispherical}
+    initial: {pressure: 20 barg, temperature: 20 degC}
+    heat:
+      wall:
+        model: layered
+        layers: {material: hdpe, thickness: 5 mm, divisions: 3}
+        inside: {model: natural+jet}
+        outside: {model: natural, ambient: 20 degC}
+reservoirs:
+  supply: {pressure: 300 barg, temperature: -20 degC}
+links:
+  nozzle: {from: supply, to: c, device: orifice, diameter: 2 mm, discharge_coefficient: 0.9}
+run: {end: 20 s, record_every: 5 s}
+""")
+    res = run(sc)
+    assert res.ok
+    D, d = 0.36, 0.002  # the jet diameter defaults to the orifice's bore
+    for i in range(1, len(res.time)):
+        rho, T = res["c.density"][i], res["c.temperature"][i]
+        Tw, mdot = res["c.wall.inner_temperature"][i], res["nozzle.mass_flow"][i]
+        props = {q: CP.PropsSI(q, "D", rho, "T", T, "Hydrogen") for q in
+                 ("Cpmass", "viscosity", "conductivity", "isobaric_expansion_coefficient")}
+        mu, k, cp = props["viscosity"], props["conductivity"], props["Cpmass"]
+        Ra = cv.rayleigh(props["isobaric_expansion_coefficient"], T - Tw, D, rho, mu, k, cp)
+        h_n = cv.nu_horizontal_cylinder(Ra, cv.prandtl(mu, k, cp)) * k / D
+        h_f = cv.nu_fill_jet(cv.jet_reynolds(mdot, d, mu)) * k / D
+        assert res["c.wall.inside_coefficient"][i] == pytest.approx(cv.mixed(h_f, h_n),
+                                                                    rel=1e-9)
+        assert h_f > h_n  # the jet dominates while filling fast
