@@ -98,6 +98,9 @@ class Model:
                 offset += term.n_states
                 vrt.heat.append(term)
                 self.heat_terms.append((vrt.index, term))
+        #: the heat terms' own states (wall temperatures): nothing else depends on them
+        #: but the heat terms, so the cache of vessel states and flows ignores them
+        self.heat_states = (2 * self.n_vessels, offset)
         self.n_dynamic = offset
 
         # links
@@ -310,7 +313,7 @@ class Segment:
         self.jac_calls = 0
         n = model.n_states
         self._dydt = np.zeros(n)
-        self._own_heat = (2 * model.n_vessels, model.n_dynamic)
+        self._own_heat = model.heat_states
 
     # ---------------------------------------------------------- signals
     def signal(self, sig, t: float) -> float:
