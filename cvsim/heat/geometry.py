@@ -177,8 +177,10 @@ def sphere(D: float) -> tuple[float, float, float]:
 #
 # with k1, k2 the principal curvatures. A head joined tangentially to a cylindrical
 # shell has K = 2 pi (Gauss-Bonnet: its rim is a geodesic), a cylindrical shell has
-# K = 0, a sphere K = 4 pi. This is exact while x is below the smallest radius of
-# curvature (the knuckle radius of a torispherical head).
+# K = 0, a sphere K = 4 pi. The formula fails only where parallel surfaces fold, at a
+# distance of a radius of curvature towards its centre; a wall grows outwards, away
+# from the centres of curvature of these convex surfaces, so it is exact for any
+# thickness.
 
 
 @dataclass(frozen=True)
