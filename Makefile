@@ -24,6 +24,7 @@ test: $(STAMP)
 
 bench: $(STAMP)
 	$(BIN)/python benchmarks/bench_blowdown.py
+	$(BIN)/python benchmarks/bench_walls.py
 
 clean:
 	rm -rf $(VENV) results .pytest_cache

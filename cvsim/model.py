@@ -47,7 +47,9 @@ from .flow.fixed import FixedFlowDevice
 from .flow.orifice import OrificeDevice
 from .flow.relief import ReliefValveDevice
 from .fluid import make_fluid
+from .heat.definitions import GasFire, Wall
 from .heat.loads import AmbientExchangeTerm, HeatLoadTerm
+from .heat.walls import GasFireTerm, WallTerm
 from .sequence import SequenceController
 from .signals import Constant
 
@@ -65,6 +67,8 @@ DEVICE_TYPES = {
 HEAT_TYPES = {
     nw.HeatLoad: HeatLoadTerm,
     nw.AmbientExchange: AmbientExchangeTerm,
+    Wall: WallTerm,
+    GasFire: GasFireTerm,
 }
 
 ACC_PER_LINK = 3  # mass, energy out of the node left, energy into the node entered
@@ -106,6 +110,9 @@ class Model:
                 offset += term.n_states
                 vrt.heat.append(term)
                 self.heat_terms.append((vrt.index, term))
+        #: the heat terms' own states (wall temperatures): nothing else depends on them
+        #: but the heat terms, so the cache of vessel states and flows ignores them
+        self.heat_states = (2 * self.n_vessels, offset)
         self.n_dynamic = offset
 
         # links
@@ -115,6 +122,8 @@ class Model:
             cls = DEVICE_TYPES[type(link.device)]
             self.devices.append(cls(link.device, self.fluid, i, self.node_index[link.source],
                                     self.node_index[link.target]))
+        for _, term in self.heat_terms:
+            term.bind(self)
 
         # controllers; gates[k] = (discrete key, step) of a link in a sequence, else None
         self.link_index = {link.name: i for i, link in enumerate(self.links)}
@@ -133,6 +142,7 @@ class Model:
         offset += len(self.heat_terms)
         self.n_states = offset
         self._reservoir_cache: dict[tuple[float, float], object] = {}
+        self.jacobian_groups = self._jacobian_groups()
 
     # ------------------------------------------------------------ set-up
     def initial_states(self):
@@ -148,13 +158,14 @@ class Model:
 
     def y0(self) -> np.ndarray:
         y = np.zeros(self.n_states)
-        for vrt, st in zip(self.vessels, self.initial_states()):
+        states = self.initial_states()
+        for vrt, st in zip(self.vessels, states):
             m = st.rho * vrt.volume
             y[vrt.i_m] = m
             y[vrt.i_U] = m * st.u
             vrt.T_hint = st.T
         for vi, term in self.heat_terms:
-            init = term.initial_states(None)
+            init = term.initial_states(states[vi])
             y[term.offset:term.offset + term.n_states] = init
         return y
 
@@ -182,7 +193,7 @@ class Model:
             m_total += m
             e_total += e
         for vi, term in self.heat_terms:
-            sc[term.offset:term.offset + term.n_states] = 300.0
+            sc[term.offset:term.offset + term.n_states] = term.scales()
         sc[self.i_acc_links:] = m_total
         for k in range(len(self.links)):
             j = self.i_acc_links + ACC_PER_LINK * k
@@ -257,6 +268,7 @@ class Model:
                 cols.append((f"{v.name}.{q}", u, "vessel"))
             for term in v.heat:
                 cols.append((f"{v.name}.heat.{term.name}", "W", "heat"))
+                cols += term.columns(v.name)
         for r in self.reservoirs:
             cols.append((f"{r.name}.pressure", "Pa", "reservoir"))
             cols.append((f"{r.name}.temperature", "K", "reservoir"))
@@ -268,6 +280,44 @@ class Model:
         for c in self.controllers:
             cols.append((f"{c.name}.step", "-", "sequence"))
         return cols
+
+    def _jacobian_groups(self) -> list[tuple[list[int], list[list[int]] | None]]:
+        """Columns of the dynamic states that the Jacobian perturbs together.
+
+        Each group is (columns, rows of each column or ``None``). A vessel state, or
+        a heat-term state whose rows are not declared, is perturbed alone and fills
+        its whole column. Heat-term states that declare the rows they can change
+        (:meth:`~cvsim.heat.loads.HeatComponent.jacobian_rows`: a wall node changes
+        its neighbours, and the gas at the surface) are grouped greedily so that no
+        two columns of a group share a row, as scipy's ``group_columns`` does for
+        sparse finite differences (Curtis, Powell & Reid, J. Inst. Maths Applics 13
+        (1974) 117): a wall of any number of nodes then costs three right-hand sides
+        per Jacobian. Columns that change nothing (bookkeeping integrals) are left out.
+        """
+        groups = [([j], None) for j in range(2 * self.n_vessels)]
+        declared = []
+        for k, (vi, term) in enumerate(self.heat_terms):
+            rows = term.jacobian_rows(2 * vi + 1, self.i_acc_heat + k)
+            for j in range(term.n_states):
+                col = term.offset + j
+                if rows is None:
+                    groups.append(([col], None))
+                elif rows[j]:
+                    declared.append((col, set(rows[j])))
+        packed: list[tuple[list[int], list[list[int]], set]] = []
+        for col, rows in declared:
+            for cols, col_rows, used in packed:
+                if not used & rows:
+                    cols.append(col)
+                    col_rows.append(sorted(rows))
+                    used |= rows
+                    break
+            else:
+                packed.append(([col], [sorted(rows)], set(rows)))
+        # the grouped columns first: they leave the vessel states as they are, so the
+        # states cached for the unperturbed point serve them all (and their differences
+        # carry no noise from re-solving the gas state)
+        return [(cols, col_rows) for cols, col_rows, _ in packed] + groups
 
 
 class States:
@@ -301,6 +351,7 @@ class Segment:
         self.jac_calls = 0
         n = model.n_states
         self._dydt = np.zeros(n)
+        self._own_heat = model.heat_states
 
     # ---------------------------------------------------------- signals
     def signal(self, sig, t: float) -> float:
@@ -314,7 +365,11 @@ class Segment:
 
     # ---------------------------------------------------------- states
     def states(self, t: float, y: np.ndarray) -> States:
-        key = (t, y.tobytes())
+        # node states (and the flows) do not depend on the heat terms' own states
+        # (wall temperatures): leave those out of the key, so that perturbing them
+        # for the Jacobian reuses the vessel states and link flows
+        h0, h1 = self._own_heat
+        key = (t, y[:h0].tobytes(), y[h1:].tobytes())
         if key == self._key:
             return self._states
         m = self.model
@@ -343,6 +398,11 @@ class Segment:
         s = States(t, states, outflow)
         self._key, self._states = key, s
         return s
+
+    @property
+    def current_flows(self) -> list[Flow]:
+        """The link flows of the state last evaluated (heat terms read filling jets here)."""
+        return self._flows
 
     def flows(self, t: float, y: np.ndarray) -> tuple[States, list[Flow]]:
         s = self.states(t, y)
@@ -409,7 +469,8 @@ class Segment:
 
     def jac(self, t: float, y: np.ndarray) -> np.ndarray:
         """Finite-difference Jacobian over the dynamic states only (the
-        bookkeeping integrals never feed back, so their columns are zero)."""
+        bookkeeping integrals never feed back, so their columns are zero).
+        Columns with disjoint rows are perturbed together (:meth:`Model._jacobian_groups`)."""
         self.jac_calls += 1
         m = self.model
         n = m.n_states
@@ -417,11 +478,20 @@ class Segment:
         J = np.zeros((n, n))
         eps = 1.4901161193847656e-08  # sqrt(machine epsilon)
         yp = y.copy()
-        for j in range(m.n_dynamic):
-            h = eps * max(abs(y[j]), self.scale[j] if self.scale is not None else 1.0)
-            yp[j] = y[j] + h
-            J[:, j] = (self.rhs(t, yp) - f0) / h
-            yp[j] = y[j]
+        for cols, rows in m.jacobian_groups:
+            steps = []
+            for j in cols:
+                h = eps * max(abs(y[j]), self.scale[j] if self.scale is not None else 1.0)
+                yp[j] = y[j] + h
+                steps.append(yp[j] - y[j])
+            df = self.rhs(t, yp) - f0
+            if rows is None:
+                J[:, cols[0]] = df / steps[0]
+            else:
+                for j, r, h in zip(cols, rows, steps):
+                    J[r, j] = df[r] / h
+            for j in cols:
+                yp[j] = y[j]
         return J
 
     scale = None
@@ -469,6 +539,7 @@ class Segment:
             for term in v.heat:
                 own = y[term.offset:term.offset + term.n_states]
                 row.append(term.evaluate(t, st, own, self, np.zeros(m.n_states)))
+                row += term.values(t, st, own, self)
         for k, r in enumerate(m.reservoirs):
             st = s.states[nv + k]
             row += [st.p, st.T]

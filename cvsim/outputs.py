@@ -135,6 +135,11 @@ def summary_text(result: Result) -> str:
         L.append(f"  gas temp.   max {_degc(v['max_temperature_K'])} at "
                  f"{_t(v['max_temperature_time_s'])}; min {_degc(v['min_temperature_K'])} at "
                  f"{_t(v['min_temperature_time_s'])}")
+        if "min_wall_temperature_K" in v:
+            L.append(f"  wall temp.  max {_degc(v['max_wall_temperature_K'])} at "
+                     f"{_t(v['max_wall_temperature_time_s'])} ({v['max_wall_temperature_where']});"
+                     f" min {_degc(v['min_wall_temperature_K'])} at "
+                     f"{_t(v['min_wall_temperature_time_s'])} ({v['min_wall_temperature_where']})")
         L.append(f"  mass        {v['initial_mass_kg']:.5g} kg -> {v['final_mass_kg']:.5g} kg")
         L.append(f"  final state {_bar(v['final_pressure_Pa'], atm)}, "
                  f"{_degc(v['final_temperature_K'])}")
@@ -160,7 +165,11 @@ def summary_text(result: Result) -> str:
         L.append("")
         L.append("Heat into the gas:")
         for name, h in s["heat"].items():
-            L.append(f"  {name}: {h['heat_into_gas_J'] / 1e3:.5g} kJ")
+            line = f"  {name}: {h['heat_into_gas_J'] / 1e3:.5g} kJ"
+            if "heat_from_outside_J" in h:
+                line += (f" (wall: {h['heat_from_outside_J'] / 1e3:.5g} kJ from outside, "
+                         f"its energy changed by {h['energy_change_J'] / 1e3:.5g} kJ)")
+            L.append(line)
     if s["events"]:
         L.append("")
         L.append("Events:")
@@ -185,6 +194,10 @@ def summary_text(result: Result) -> str:
     if st:
         L.append(f"Solver: {st.get('steps', 0)} steps, {st.get('rhs_calls', 0)} right-hand-side "
                  f"calls, {st.get('events', 0)} events, {st.get('wall_time_s', 0):.3g} s")
+    if s.get("warnings"):
+        L.append("")
+        L.append("Warnings (correlations or data used outside their range):")
+        L += [f"  - {w}" for w in s["warnings"]]
     L.append("")
     L.append("Assumptions:")
     L += [f"  - {a}" for a in s["assumptions"]]

@@ -13,7 +13,9 @@ or h by the length of the run (:func:`time_unit`), openings in %.
 Columns added later are picked up by name: every column in K whose name
 starts with a vessel's name is drawn with that vessel's gas temperature
 (walls, for instance), and ``<link>.opening`` columns get a figure of their
-own when there are any.
+own when there are any. The temperatures through a layered wall
+(``<vessel>.wall.node<i>_temperature``) get a figure of their own (``wall.png``);
+the temperature panel keeps only the wall's surfaces.
 
 matplotlib (and the rest of cvsim) is imported only inside the functions
 (the command line starts faster) and only through its object interface with the Agg canvas: no
@@ -110,8 +112,8 @@ def plot_run(result: Result, folder: Path) -> list[Path]:
     Files: ``overview.png`` (pressure, temperature, mass, mass flow, and the
     valve openings across the foot of the page when there are any),
     ``pressure.png``, ``temperature.png``, ``mass.png``, ``flow.png`` and,
-    only when the result has ``<link>.opening`` columns, ``opening.png``.
-    Returns the paths written, in that order.
+    only when the result has ``<link>.opening`` columns, ``opening.png``; only
+    with layered walls, ``wall.png``. Returns the paths written, in that order.
     """
     folder = Path(folder)
     folder.mkdir(parents=True, exist_ok=True)
@@ -120,20 +122,24 @@ def plot_run(result: Result, folder: Path) -> list[Path]:
               ("flow", _flow)]
     if view.openings:
         panels.append(("opening", _opening))
+    if view.wall_nodes:
+        panels.append(("wall", _wall))
     written = []
 
+    # the overview holds the four quantities and the openings; walls have their own page
+    overview = [p for p in panels if p[0] != "wall"]
     path = folder / "overview.png"
     with _figure(OVERVIEW_SIZE, view) as fig:
         if view.openings:  # valve states under the four quantities, across the page
             grid = fig.subplot_mosaic([["pressure", "temperature"], ["mass", "flow"],
                                        ["opening", "opening"]], sharex=True,
                                       height_ratios=[1.0, 1.0, 0.7])
-            axes = [grid[name] for name, _ in panels]
+            axes = [grid[name] for name, _ in overview]
             bottom = [grid["opening"]]
         else:
             axes = fig.subplots(2, 2, sharex=True).ravel()
             bottom = axes[2:]
-        for ax, (_, draw) in zip(axes, panels):
+        for ax, (_, draw) in zip(axes, overview):
             draw(ax, view, overview=True)
         for ax in bottom:
             ax.set_xlabel(view.time_label)
@@ -173,6 +179,7 @@ class _View:
         order = self.vessels + self.reservoirs + self.links
         self.colour = {o: COLOURS[i % len(COLOURS)] for i, o in enumerate(order)}
         self.dash = {o: DASHES[(i // len(COLOURS)) % len(DASHES)] for i, o in enumerate(order)}
+        self.wall_nodes = self._wall_nodes(names)
         self.extra_temperatures = self._extra_temperatures(names)
         self.atmosphere_bar = net.atmosphere / BAR
         self.events = [(float(t) / self.time_size, str(text)) for t, text in result.events]
@@ -186,8 +193,19 @@ class _View:
             if self.result.unit(name) != "K":
                 continue
             owner = next((v for v in by_length if name.startswith(v + ".")), None)
-            if owner is not None and name != f"{owner}.temperature":
+            if (owner is not None and name != f"{owner}.temperature"
+                    and name not in self.wall_nodes.get(owner, ())):
                 out[owner].append(name)
+        return out
+
+    def _wall_nodes(self, names: list[str]) -> dict[str, list[str]]:
+        """Temperatures through each vessel's layered wall, inside to outside."""
+        out = {}
+        for v in self.vessels:
+            nodes = [n for n in names if n.startswith(f"{v}.wall.node")
+                     and n.endswith("_temperature") and self.result.unit(n) == "K"]
+            if nodes:
+                out[v] = sorted(nodes, key=lambda n: int(n[len(f"{v}.wall.node"):-12]))
         return out
 
     def subtitle(self) -> str:
@@ -246,10 +264,19 @@ def _temperature(ax, view: _View, overview: bool):
         colour = view.colour[v]
         _line(ax, view, r[f"{v}.temperature"] - ZERO_CELSIUS, f"{v} gas", colour, lw=1.6,
               ls=view.dash[v])
-        for k, name in enumerate(view.extra_temperatures[v]):
-            label = f"{v} {name[len(v) + 1:]}"
-            _line(ax, view, r[name] - ZERO_CELSIUS, label, colour, lw=1.1,
-                  ls=DASHES[1 + k % (len(DASHES) - 1)])
+        drawn = []  # (values, line): a column equal to one drawn joins its label
+        for name in view.extra_temperatures[v]:
+            values = r[name]
+            same = next((ln for vals, ln in drawn if np.array_equal(vals, values,
+                                                                    equal_nan=True)), None)
+            if same is not None:
+                same.set_label(f"{same.get_label()} = {name[len(v) + 1:]}")
+                continue
+            k = len(drawn)
+            _line(ax, view, values - ZERO_CELSIUS, f"{v} {name[len(v) + 1:]}", colour,
+                  lw=1.1, ls=DASHES[1 + k % (len(DASHES) - 1)])
+            if not view.empty:
+                drawn.append((values, ax.get_lines()[-1]))
     ax.set_ylabel("Temperature [°C]")
     walls = any(view.extra_temperatures.values())
     title = "Gas and wall temperatures" if walls else "Gas temperature"
@@ -296,6 +323,30 @@ def _opening(ax, view: _View, overview: bool):
     ax.set_ylim(-5.0, 105.0)
     ax.set_yticks([0.0, 25.0, 50.0, 75.0, 100.0])
     _finish(ax, view, "Valve opening", floor=None, overview=overview, legend_outside=True)
+
+
+WALL_LABELS = 7  # most node labels in the wall figure's legend
+
+
+def _wall(ax, view: _View, overview: bool):
+    """Temperatures through each layered wall: one line per node, inside (dark) to
+    outside (light); the gas is left out so that the scale shows the wall."""
+    from matplotlib import colormaps
+
+    r = view.result
+    cmap = colormaps["viridis"]
+    for v, nodes in view.wall_nodes.items():
+        n = len(nodes)
+        every = max(1, math.ceil((n - 1) / (WALL_LABELS - 1)))
+        for i, name in enumerate(nodes):
+            where = " (inside surface)" if i == 0 else " (outside surface)" if i == n - 1 else ""
+            labelled = i % every == 0 or i == n - 1
+            label = f"{v} wall node {i}{where}" if labelled else "_node"
+            _line(ax, view, r[name] - ZERO_CELSIUS, label, cmap(0.85 * i / max(n - 1, 1)),
+                  lw=1.1)
+    ax.set_ylabel("Temperature [°C]")
+    _finish(ax, view, "Temperatures through the wall (node 0: inside surface)", floor=1e-2,
+            overview=overview)
 
 
 def _line(ax, view: _View, y, label, colour, lw, ls="-"):

@@ -137,6 +137,7 @@ class Result:
             "balance": self.balance,
             "solver": self.stats,
             "assumptions": self.assumptions,
+            "warnings": self.warnings,
             "provenance": self.provenance,
             "caution": CAUTION,
         }
@@ -157,6 +158,7 @@ class Result:
             d["final_mass_kg"] = float(m[-1])
             d["final_pressure_Pa"] = float(self[f"{n}.pressure"][-1])
             d["final_temperature_K"] = float(self[f"{n}.temperature"][-1])
+            d.update(self._wall_extremes(n))
             q = self.fine(f"{n}.vapour_quality")
             if np.any(~np.isnan(q)):
                 t_all = self._all()[:, 0]
@@ -181,6 +183,27 @@ class Result:
             out["links"][n].update(self.device_figures.get(n, {}))
         for name, q in self.totals["heat"].items():
             out["heat"][name] = {"heat_into_gas_J": q}
+            out["heat"][name].update(self.totals.get("walls", {}).get(name, {}))
+        return out
+
+    def _wall_extremes(self, vessel: str) -> dict:
+        """Lowest and highest metal temperature of a vessel's wall (any node), with
+        the time and the column where each occurs; empty without a wall."""
+        prefix = f"{vessel}.wall."
+        names = [c[0] for c in self.columns if c[0].startswith(prefix)
+                 and c[0].endswith("_temperature") and c[1] == "K"]
+        if not names:
+            return {}
+        out = {}
+        for kind in ("min", "max"):
+            found = [(*self.extreme(c, kind), c) for c in names]
+            found = [f for f in found if f[0] == f[0]]
+            if not found:
+                continue
+            value, t, column = (min if kind == "min" else max)(found, key=lambda f: f[0])
+            out[f"{kind}_wall_temperature_K"] = value
+            out[f"{kind}_wall_temperature_time_s"] = t
+            out[f"{kind}_wall_temperature_where"] = column[len(prefix):-len("_temperature")]
         return out
 
 
@@ -191,6 +214,7 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
     fine = np.array(raw.fine_rows, dtype=float) if raw.fine_rows else np.zeros((0, len(cols)))
     totals, balance = _balances(model, raw)
     figures, warnings = _device_reports(model, raw)
+    warnings = [w for _, term in model.heat_terms for w in term.warnings()] + warnings
     result = Result(network=model.network, status=raw.status, message=raw.message,
                     columns=cols, data=data, fine_data=fine, events=list(raw.events),
                     stats=dict(raw.stats), totals=totals, balance=balance,
@@ -239,7 +263,9 @@ def _balances(model: Model, raw: RawRun):
     relative to the largest of the initial content, final content and the
     throughput. Links between two vessels cancel; links to reservoirs cross the
     boundary. The energy a device adds (compressor work less aftercooling) is
-    part of what it delivers.
+    part of what it delivers. Heat terms with states of their own (walls) are
+    inside the boundary: their stored energy counts with the content, and only
+    the heat from outside crosses it.
     """
     links = {}
     heat = {}
@@ -268,11 +294,21 @@ def _balances(model: Model, raw: RawRun):
             net_e -= Eout
         through_m += abs(M)
         through_e += abs(Ein) + abs(Eout)
+    walls = {}
+    stored = 0.0
     for k, (vi, term) in enumerate(model.heat_terms):
         q = float(y1[model.i_acc_heat + k])
-        heat[f"{term.vessel}.{term.name}"] = q
-        net_e += q
-        through_e += abs(q)
+        name = f"{term.vessel}.{term.name}"
+        heat[name] = q
+        own0 = y0[term.offset:term.offset + term.n_states]
+        own1 = y1[term.offset:term.offset + term.n_states]
+        q_out = term.heat_from_outside(own1, q)
+        dE = term.stored_energy(own1) - term.stored_energy(own0)
+        net_e += q_out - dE
+        through_e += abs(q_out) + abs(dE)
+        stored += dE
+        if term.n_states:
+            walls[name] = {"heat_from_outside_J": q_out, "energy_change_J": dE}
     res_m = (m1 - m0) - net_m
     res_e = (U1 - U0) - net_e
     ref_m = max(m0, m1, through_m, 1e-300)
@@ -284,7 +320,9 @@ def _balances(model: Model, raw: RawRun):
         "net_energy_in_J": net_e, "energy_residual_J": res_e,
         "energy_closure_relative": abs(res_e) / ref_e,
     }
-    return {"links": links, "heat": heat}, balance
+    if walls:
+        balance["wall_energy_change_J"] = stored
+    return {"links": links, "heat": heat, "walls": walls}, balance
 
 
 def assumptions(model: Model) -> list[str]:
@@ -333,6 +371,9 @@ def assumptions(model: Model) -> list[str]:
         out.append("No heat exchange with the vessel walls or surroundings (adiabatic vessels): "
                    "walls would damp the temperature swings.")
     else:
-        out.append("Heat terms as stated per vessel; no wall heat capacity unless a wall is "
-                   "modelled.")
+        terms = [term for _, term in model.heat_terms]
+        if not all(term.n_states for term in terms):
+            out.append("Heat terms as stated per vessel; no wall heat capacity unless a wall "
+                       "is modelled.")
+        out += [a for term in terms for a in term.assumptions()]
     return out

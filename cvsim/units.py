@@ -86,6 +86,8 @@ DIMENSIONS: dict[str, Dimension] = {d.name: d for d in (
     Dimension("thermal_conductance", "a thermal conductance (UA)", "W/K", "W/K",
               "W/K", "W/K, kW/K"),
     Dimension("energy", "an energy", "J", "J", "kJ", "J, kJ, MJ, kWh, BTU"),
+    Dimension("thermal_conductivity", "a thermal conductivity", "W/m/K", "W/(m K)",
+              "W/m/K", "W/m/K, W/(m K), BTU/h/ft/degF"),
     Dimension("specific_heat", "a specific heat capacity", "J/kg/K", "J/(kg K)",
               "J/kg/K", "J/kg/K, kJ/kg/K, BTU/lb/degF"),
     Dimension("molar_mass", "a molar mass", "kg/mol", "kg/mol", "g/mol", "g/mol, kg/mol"),

@@ -166,7 +166,285 @@ def sphere(D: float) -> tuple[float, float, float]:
     return math.pi * D**3 / 6.0, math.pi * D**2, D
 
 
+# ------------------------------------------------------- the wall as an offset surface
+#
+# A wall of uniform thickness is the set of surfaces parallel to the inside surface.
+# For a smooth surface the area of the parallel surface at distance x outward is
+# (Steiner's formula for parallel surfaces; do Carmo, *Differential Geometry of Curves
+# and Surfaces*, sec. 3-5, exercise on parallel surfaces)
+#
+#     A(x) = A + M x + K x^2,   M = integral of (k1 + k2) dA,   K = integral of k1 k2 dA
+#
+# with k1, k2 the principal curvatures. A head joined tangentially to a cylindrical
+# shell has K = 2 pi (Gauss-Bonnet: its rim is a geodesic), a cylindrical shell has
+# K = 0, a sphere K = 4 pi. The formula fails only where parallel surfaces fold, at a
+# distance of a radius of curvature towards its centre; a wall grows outwards, away
+# from the centres of curvature of these convex surfaces, so it is exact for any
+# thickness.
+
+
+@dataclass(frozen=True)
+class Surface:
+    """Area of a wall at depth ``x`` [m] from its inside surface: A(x) = a0 + a1 x + a2 x^2.
+
+    a0 [m2] inside area; a1 [m] integral of the mean-curvature sum; a2 [-] integral of
+    the Gaussian curvature (see the notes above :class:`Surface`).
+    """
+
+    a0: float
+    a1: float
+    a2: float
+
+    def __add__(self, other: "Surface") -> "Surface":
+        return Surface(self.a0 + other.a0, self.a1 + other.a1, self.a2 + other.a2)
+
+    def scaled(self, n: float) -> "Surface":
+        return Surface(n * self.a0, n * self.a1, n * self.a2)
+
+    def area(self, x: float) -> float:
+        """A(x) [m2] at depth x [m]."""
+        return self.a0 + self.a1 * x + self.a2 * x * x
+
+    def volume(self, x0: float, x1: float) -> float:
+        """Volume [m3] of the wall between depths x0 and x1 [m]: the integral of A dx."""
+        def prim(x):
+            return self.a0 * x + self.a1 * x * x / 2.0 + self.a2 * x**3 / 3.0
+        return prim(x1) - prim(x0)
+
+    def resistance_factor(self, x0: float, x1: float) -> float:
+        """Integral of dx / A(x) [1/m] from x0 to x1 [m].
+
+        The steady conduction resistance of a slice of conductivity k is this factor
+        divided by k (for a cylinder it gives ln(r1/r0)/(2 pi L), for a sphere
+        (1/r0 - 1/r1)/(4 pi); Incropera et al., *Fundamentals of Heat and Mass
+        Transfer*, 7th ed., Table 3.3). Ten-point Gauss-Legendre quadrature: 1/A is
+        smooth and positive over a slice, the error is far below round-off of the
+        slices used.
+        """
+        half = 0.5 * (x1 - x0)
+        mid = 0.5 * (x1 + x0)
+        return half * sum(w / self.area(mid + half * u) for u, w in _GAUSS10)
+
+
+def _gauss_legendre(n: int) -> tuple[tuple[float, float], ...]:
+    import numpy as np
+    u, w = np.polynomial.legendre.leggauss(n)
+    return tuple(zip(u.tolist(), w.tolist()))
+
+
+_GAUSS10 = _gauss_legendre(10)
+
+
+def head_surface(D: float, kind: str) -> Surface:
+    """Area of one head's wall at depth x [m] from its inside, A(x) = A + M x + K x^2.
+
+    * flat: a plate covering the shell's end, A(x) = pi (D/2 + x)^2 (the area of the
+      plate at depth x grows with the shell's thickness; conduction near the corner
+      is taken 1-D by this area);
+    * hemispherical: a half sphere, A(x) = 2 pi (D/2 + x)^2;
+    * 2:1 ellipsoidal, semi-axes a = D/2, b = D/4:
+      M = 2 pi b + 2 pi a^2 atan(sqrt(a^2 - b^2)/b) / sqrt(a^2 - b^2), K = 2 pi
+      (integral of the principal curvatures of the spheroid, in closed form);
+    * torispherical, crown radius R, knuckle radius r, knuckle angle theta_j:
+      M = 2 pi (c theta_j + 2 r sin theta_j) + 4 pi h_c, K = 2 pi; the parallel surface
+      at depth x is again torispherical with radii R + x, r + x.
+
+    Parameters
+    ----------
+    D : float
+        [m] inside diameter of the shell.
+    kind : str
+        one of :data:`HEADS`.
+
+    >>> s = head_surface(2.0, "hemispherical")
+    >>> round(s.area(0.1) / (2 * math.pi * 1.1**2), 12)
+    1.0
+    """
+    if kind == "flat":
+        return Surface(math.pi * D**2 / 4.0, math.pi * D, math.pi)
+    if kind == "hemispherical":
+        return Surface(math.pi * D**2 / 2.0, 2.0 * math.pi * D, 2.0 * math.pi)
+    if kind == "2:1-ellipsoidal":
+        a, b = D / 2.0, D / 4.0
+        f = math.sqrt(a * a - b * b)
+        M = 2.0 * math.pi * b + 2.0 * math.pi * a * a * math.atan(f / b) / f
+        return Surface(ellipsoidal_head(D).area, M, 2.0 * math.pi)
+    if kind == "torispherical":
+        R, r, c, h1, theta = _torispherical_parts(D)
+        hc = R - h1 - r * math.sin(theta)
+        M = 2.0 * math.pi * (c * theta + 2.0 * r * math.sin(theta)) + 4.0 * math.pi * hc
+        return Surface(torispherical_head(D).area, M, 2.0 * math.pi)
+    raise ValueError(f"unknown head '{kind}'")
+
+
+def _torispherical_parts(D: float, crown_radius: float | None = None,
+                         knuckle_radius: float | None = None):
+    """(R, r, c, h1, theta_j) of a torispherical head: crown and knuckle radii, radius
+    of the knuckle's centre circle, distance of the crown's centre behind the tangent
+    line, angle of the knuckle-crown joint above the tangent plane."""
+    R = CROWN_RATIO * D if crown_radius is None else crown_radius
+    r = KNUCKLE_RATIO * D if knuckle_radius is None else knuckle_radius
+    c = D / 2.0 - r
+    h1 = math.sqrt((R - r) ** 2 - c**2)
+    return R, r, c, h1, math.asin(h1 / (R - r))
+
+
+def wall_surface(kind: str, D: float, L: float = 0.0, heads: str = "flat") -> Surface:
+    """Area of a whole vessel wall at depth x [m] from the inside, A(x) = a0 + a1 x + a2 x^2.
+
+    Cylinder: the shell, pi L (D + 2 x), plus two heads (:func:`head_surface`);
+    sphere: pi (D + 2 x)^2.
+
+    Parameters
+    ----------
+    kind : str
+        ``cylinder`` or ``sphere``.
+    D : float
+        [m] inside diameter.
+    L : float
+        [m] length of the straight shell (cylinders).
+    heads : str
+        head type (cylinders), one of :data:`HEADS`.
+
+    >>> s = wall_surface("sphere", 1.0)
+    >>> round(s.area(0.05) / (math.pi * 1.1**2), 12)
+    1.0
+    """
+    if kind == "sphere":
+        return Surface(math.pi * D**2, 4.0 * math.pi * D, 4.0 * math.pi)
+    shell = Surface(math.pi * D * L, 2.0 * math.pi * L, 0.0)
+    return shell + head_surface(D, heads).scaled(2.0)
+
+
+# ------------------------------------------------ area below a level (wetted, exposed)
+
+
+def _head_meridian(D: float, kind: str, offset: float, n: int):
+    """Points (rho, z) along a head's meridian at depth ``offset`` [m] into the wall,
+    from the tangent line (z = 0) to the pole; z grows away from the shell."""
+    import numpy as np
+
+    a = D / 2.0
+    if kind == "flat":
+        rho = np.linspace(a + offset, 0.0, n)
+        return rho, np.full(n, offset)
+    if kind == "hemispherical":
+        t = np.linspace(0.0, math.pi / 2.0, n)
+        return (a + offset) * np.cos(t), (a + offset) * np.sin(t)
+    if kind == "2:1-ellipsoidal":
+        b = D / 4.0
+        t = np.linspace(0.0, math.pi / 2.0, n)
+        w = np.sqrt(a * a * np.sin(t) ** 2 + b * b * np.cos(t) ** 2)
+        return (a * np.cos(t) + offset * b * np.cos(t) / w,
+                b * np.sin(t) + offset * a * np.sin(t) / w)
+    R, r, c, h1, theta = _torispherical_parts(D)
+    t = np.linspace(0.0, theta, n)
+    phi = np.linspace(math.pi / 2.0 - theta, 0.0, n)[1:]
+    rho = np.concatenate([c + (r + offset) * np.cos(t), (R + offset) * np.sin(phi)])
+    z = np.concatenate([(r + offset) * np.sin(t), -h1 + (R + offset) * np.cos(phi)])
+    return rho, z
+
+
+MERIDIAN_POINTS = 20001  # points along each head profile for areas below a level
+
+
+def area_below(level: float, kind: str, D: float, L: float = 0.0, heads: str = "flat",
+               orientation: str = "vertical", offset: float = 0.0) -> float:
+    """Area [m2] of a vessel surface below a horizontal plane.
+
+    The surface is the inside wall (``offset = 0``) or the parallel surface at depth
+    ``offset`` into the wall (the outside, for a wall of that thickness); ``level`` is
+    the plane's height above that surface's lowest point. Used for the area wetted by
+    a liquid level and for the outside area within a fire's reach.
+
+    * sphere: a spherical zone, A = pi D_s h (Archimedes; CRC Standard Mathematical
+      Tables and Formulae, 31st ed., sec. 4.8);
+    * cylindrical shell, vertical: pi D_s times the wetted height; horizontal:
+      L D_s/2 times the wetted arc angle 2 acos(1 - 2 h/D_s) (circular segment);
+    * heads: integrated over the exact head profile (and its parallel curve for
+      ``offset > 0``) as a surface of revolution, with :data:`MERIDIAN_POINTS`
+      points per profile: a vertical head by zones, a horizontal head by summing, for
+      each ring of the profile, the fraction of the ring below the plane,
+      2 acos((D_s/2 - h)/rho) / (2 pi). Relative error below 1e-6.
+
+    D_s = D + 2 offset is the diameter of the shell surface considered.
+
+    Parameters
+    ----------
+    level : float
+        [m] height of the plane above the lowest point of the surface.
+    kind, D, L, heads, orientation
+        the vessel's shape as in :func:`cylinder` and :func:`sphere`.
+    offset : float
+        [m] depth into the wall of the surface considered (0: inside surface).
+    """
+    import numpy as np
+
+    Ds = D + 2.0 * offset
+    if kind == "sphere":
+        h = min(max(level, 0.0), Ds)
+        return math.pi * Ds * h
+    Rs = Ds / 2.0
+    rho, z = _head_meridian(D, heads, offset, MERIDIAN_POINTS)
+    depth = float(z.max()) if heads != "flat" else offset
+    ds = np.hypot(np.diff(rho), np.diff(z))
+    rho_mid = 0.5 * (rho[1:] + rho[:-1])
+    if orientation == "horizontal":
+        h = min(max(level, 0.0), Ds)
+        shell = L * Rs * 2.0 * math.acos(max(-1.0, min(1.0, (Rs - h) / Rs)))
+        if heads == "flat":
+            # a disc of radius Rs: the circular segment below the plane
+            angle = 2.0 * math.acos(max(-1.0, min(1.0, (Rs - h) / Rs)))
+            head = Rs**2 / 2.0 * (angle - math.sin(angle))
+        else:
+            cosine = np.clip((Rs - h) / np.maximum(rho_mid, 1e-300), -1.0, 1.0)
+            head = float(np.sum(rho_mid * ds * 2.0 * np.arccos(cosine)))
+        return shell + 2.0 * head
+    # vertical axis: bottom head (pole at height 0), shell, top head
+    height = L + 2.0 * depth
+    h = min(max(level, 0.0), height)
+    ring = 2.0 * math.pi * rho_mid * ds          # area of each ring of the profile
+    z_mid = 0.5 * (z[1:] + z[:-1])
+    if heads == "flat":
+        full = math.pi * Rs**2
+        bottom = full if h > 0.0 else 0.0
+        top = full if h >= height else 0.0
+    else:
+        bottom = float(np.sum(ring[depth - z_mid < h]))
+        top = float(np.sum(ring[depth + L + z_mid < h]))
+        bottom += _partial_ring(ring, depth - z, h)
+        top += _partial_ring(ring, depth + L + z, h)
+    shell = math.pi * Ds * min(max(h - depth, 0.0), L)
+    return bottom + shell + top
+
+
+def _partial_ring(ring, heights, h) -> float:
+    """Correction for the one ring that the plane cuts: the midpoint rule counted it
+    whole or not at all; take the part below the plane, linear in height."""
+    import numpy as np
+
+    lo = np.minimum(heights[1:], heights[:-1])
+    hi = np.maximum(heights[1:], heights[:-1])
+    cut = np.nonzero((lo < h) & (h < hi))[0]
+    if not len(cut):
+        return 0.0
+    k = int(cut[0])
+    mid = 0.5 * (lo[k] + hi[k])
+    below = (h - lo[k]) / (hi[k] - lo[k])
+    counted = 1.0 if mid < h else 0.0
+    return float(ring[k] * (below - counted))
+
+
+def outer_height(kind: str, D: float, L: float, heads: str, orientation: str,
+                 thickness: float) -> float:
+    """Height [m] of the outside surface of a wall of uniform ``thickness`` [m]."""
+    if kind == "sphere" or orientation == "horizontal":
+        return D + 2.0 * thickness
+    return L + 2.0 * (head(D, heads).depth + thickness)
+
+
 __all__ = [
-    "HEADS", "Head", "ORIENTATIONS", "cylinder", "ellipsoidal_head", "flat_head", "head",
-    "hemispherical_head", "sphere", "torispherical_head",
+    "HEADS", "Head", "ORIENTATIONS", "Surface", "area_below", "cylinder", "ellipsoidal_head",
+    "flat_head", "head", "head_surface", "hemispherical_head", "outer_height", "sphere",
+    "torispherical_head", "wall_surface",
 ]

@@ -26,8 +26,28 @@ def ambient_exchange(ua: float, T_ambient: float, T_gas: float) -> float:
 
 
 class HeatComponent:
-    """Base of run-time heat terms. ``n_states`` states of its own, stored in
-    the model's state vector at ``offset`` (set by the model)."""
+    """Base of run-time heat terms.
+
+    Contract:
+
+    * ``n_states`` states of its own, stored in the model's state vector at
+      ``offset`` (set by the model); :meth:`initial_states` gives their start values
+      and :meth:`scales` their characteristic sizes (for absolute tolerances);
+    * :meth:`evaluate` returns the heat rate into the gas [W] and writes the
+      derivatives of its own states into ``dydt[offset:offset + n_states]``;
+    * :meth:`jacobian_rows`: for each own state, the rows of the state vector that
+      it can change (the model perturbs states with disjoint rows together when it
+      forms the Jacobian); ``None``: any row;
+    * energy: :meth:`stored_energy` is the energy its own states hold [J] and
+      :meth:`heat_from_outside` the heat that crossed the outer boundary of vessel
+      and term [J]; the run's energy balance counts both. A term without states
+      stores nothing and all its heat comes from outside the vessel;
+    * outputs: :meth:`columns` and :meth:`values` add recorded columns (values are
+      taken at recorded points and accepted steps only, so they may also watch the
+      validity of correlations); :meth:`warnings` and :meth:`assumptions` go into
+      the summary;
+    * :meth:`bind` is called once the model's links exist.
+    """
 
     n_states = 0
     offset = 0
@@ -43,12 +63,47 @@ class HeatComponent:
     def breakpoints(self) -> tuple[float, ...]:
         return ()
 
+    def bind(self, model) -> None:
+        """Called by the model after it has built its devices."""
+
     def initial_states(self, gas_state) -> list[float]:
         return []
+
+    def scales(self) -> list[float]:
+        """Characteristic size of each own state (absolute tolerance = fraction of it)."""
+        return [300.0] * self.n_states
+
+    def jacobian_rows(self, gas_row: int, heat_row: int) -> list | None:
+        """Rows each own state can change (``gas_row``: the vessel's internal energy,
+        ``heat_row``: this term's heat integral); ``None``: unknown, any row."""
+        return None
 
     def evaluate(self, t, gas, own, segment, dydt) -> float:
         """Heat rate into the gas [W]; write own derivatives into ``dydt``."""
         raise NotImplementedError  # pragma: no cover - abstract
+
+    def stored_energy(self, own) -> float:
+        """Energy held by the own states [J] (relative to a fixed reference)."""
+        return 0.0
+
+    def heat_from_outside(self, own, heat_into_gas: float) -> float:
+        """Heat that entered vessel and term from outside over the run [J], given the
+        final own states and the integral of the heat into the gas."""
+        return heat_into_gas
+
+    def columns(self, vessel: str) -> list[tuple[str, str, str]]:
+        """Extra recorded columns: (name, SI unit, kind)."""
+        return []
+
+    def values(self, t, gas, own, segment) -> list[float]:
+        """Values of :meth:`columns` at a recorded point or accepted step."""
+        return []
+
+    def warnings(self) -> list[str]:
+        return []
+
+    def assumptions(self) -> list[str]:
+        return []
 
 
 class HeatLoadTerm(HeatComponent):

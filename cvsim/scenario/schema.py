@@ -20,6 +20,7 @@ from .sequences import SEQUENCE, check_sequences
 from .spec import (BAD, At, Choice, Entries, Field, Kind, Node, OneOrMore, Quantity, Section,
                    Sub, Text, as_text, read_section)
 from .vessels import RESERVOIR, VESSEL
+from . import walls as _walls  # noqa: E402,F401  (registers walls and fire exposure)
 
 # ------------------------------------------------------------ special kinds
 

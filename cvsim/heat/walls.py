@@ -1,0 +1,533 @@
+"""Vessel walls with temperatures of their own: lumped and layered (1-D conduction).
+
+The wall is one-dimensional through its thickness: the gas is well mixed and the
+heat transfer coefficients are surface averages, so every point of the wall at the
+same depth x has the same temperature. The area at depth x is that of the vessel's
+parallel surface, A(x) = a0 + a1 x + a2 x^2 (:class:`cvsim.heat.geometry.Surface`):
+for a long cylinder this is conduction in cylindrical coordinates, for a sphere in
+spherical coordinates, and heads of any kind are included with their own area law.
+
+Discretisation (finite volumes, vertex centred). Each layer is cut into equal
+slices; temperatures T_i sit at the slice faces, from the inside surface (i = 0)
+to the outside surface (i = N - 1), with a face at every joint between two layers.
+Node i holds the wall between the middles of its two neighbouring slices (half a
+slice at each surface), so the surface nodes see the gas and the surroundings
+directly. Slice s between nodes s and s + 1 conducts
+
+    F_s = k(T_mean) S_s (T_s - T_s+1),    1/S_s = integral of dx / A(x) over the slice
+
+(the exact steady conduction resistance of the slice: Incropera et al.,
+*Fundamentals of Heat and Mass Transfer*, 7th ed., sec. 3.3 and Table 3.3), and node
+i's energy E_i changes by
+
+    dE_i/dt = F_{i-1} - F_i  (+ h_in A_in (T_gas - T_0) at i = 0,  + Q_out at i = N - 1)
+
+A lumped wall is one node holding every layer (Incropera 7th ed., sec. 5.1-5.2; valid
+for Biot numbers h L/k below 0.1, which the run watches).
+
+The states are the node energies E_i = integral of C_i(T) dT from 0 K (C_i the
+heat capacity of node i from the materials' tables), not the temperatures: the
+energy of gas + wall + heat from outside is then a linear invariant of the
+equations, which the integrators keep to round-off, so the run's energy balance
+closes exactly also with temperature-dependent heat capacities. Temperatures
+follow from the energies by inverting the piecewise-quadratic E(T) (see
+:meth:`WallGrid._energy_tables`).
+"""
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from .convection import NATURAL, RangeWatch, jet_reynolds, nu_fill_jet, prandtl, rayleigh
+from .definitions import FlameExposure, PoolFire, Wall
+from .fire import SIGMA, api521_pool_fire_heat, flame_heat_flux
+from .loads import HeatComponent
+from .transport import AirTable, GasProperties
+
+ZERO_CELSIUS = 273.15
+T_TABLE_TOP = 5000.0  # [K] energy tables reach this far (end values held beyond the data)
+BIOT_LIMIT = 0.1      # lumped-wall criterion (Incropera 7th ed., eq. 5.10)
+#: [K] a convection correlation's groups are watched only while surface and fluid
+#: differ by more than this (at smaller differences the heat flux is negligible
+#: whatever the correlation, and the Rayleigh number tends to zero)
+WATCH_MIN_DIFFERENCE = 0.1
+
+
+class WallGrid:
+    """Nodes of a wall: positions, heat capacities and slice conductances.
+
+    Parameters
+    ----------
+    layers : the wall's layers, inside to outside (:class:`~cvsim.heat.definitions.WallLayer`)
+    surface : area at depth x (:class:`~cvsim.heat.geometry.Surface`)
+    lumped : one node for the whole wall
+    """
+
+    def __init__(self, layers, surface, lumped: bool):
+        self.surface = surface
+        parts: list[dict] = []  # per node: material -> mass [kg]
+        if lumped:
+            x0 = 0.0
+            node = {}
+            for layer in layers:
+                x1 = x0 + layer.thickness
+                m = layer.material.density * surface.volume(x0, x1)
+                node[layer.material] = node.get(layer.material, 0.0) + m
+                x0 = x1
+            parts = [node]
+            self.x = np.array([0.0])
+            self.slice_factor = np.zeros(0)
+            self.slice_material = []
+        else:
+            x = [0.0]
+            materials = []
+            for layer in layers:
+                step = layer.thickness / layer.divisions
+                start = x[-1]
+                for j in range(layer.divisions):
+                    x.append(start + (j + 1) * step)
+                    materials.append(layer.material)
+            self.x = np.array(x)
+            parts = [{} for _ in x]
+            factors = []
+            for s, mat in enumerate(materials):
+                a, b = x[s], x[s + 1]
+                mid = 0.5 * (a + b)
+                parts[s][mat] = parts[s].get(mat, 0.0) + mat.density * surface.volume(a, mid)
+                parts[s + 1][mat] = (parts[s + 1].get(mat, 0.0)
+                                     + mat.density * surface.volume(mid, b))
+                factors.append(1.0 / surface.resistance_factor(a, b))
+            self.slice_factor = np.array(factors)   # [m] conductance / k of each slice
+            self.slice_material = materials
+        self.n = len(parts)
+        self.parts = parts
+        self.mass = np.array([sum(p.values()) for p in parts])
+        # conductances: constant ones once; temperature-dependent ones per material
+        self.k_constant = all(len(m.k) == 1 for m in self.slice_material)
+        self.G0 = np.array([m.k[0] for m in self.slice_material]) * self.slice_factor
+        self.k_groups = []
+        for mat in {m for m in self.slice_material if len(m.k) > 1}:
+            idx = np.array([s for s, m in enumerate(self.slice_material) if m is mat])
+            self.k_groups.append((idx, np.array(mat.k_T), np.array(mat.k)))
+        self._energy_tables()
+
+    # ---------------------------------------------------------------- energy
+    def _energy_tables(self):
+        """Energy E(T) = integral of C dT from 0 K of each node, with C piecewise linear
+        in T between the materials' table points (held constant beyond the ends), so E
+        is piecewise quadratic and is inverted exactly. Nodes of one material share
+        that material's table per kg; a node at the joint of two layers has its own."""
+        materials = sorted({m for p in self.parts for m in p}, key=lambda m: m.name)
+        self.constant_capacity = all(len(m.cp) == 1 for m in materials)
+        self.C_const = np.array([sum(mass * m.cp[0] for m, mass in p.items())
+                                 for p in self.parts])
+
+        def table(parts):
+            points = {0.0, T_TABLE_TOP}
+            for m in parts:
+                points.update(t for t in m.cp_T if 0.0 < t < T_TABLE_TOP)
+            Tp = np.array(sorted(points))
+            Cp = sum(w * np.interp(Tp, m.cp_T, m.cp) for m, w in parts.items())
+            Ep = np.concatenate([[0.0], np.cumsum(0.5 * (Cp[1:] + Cp[:-1]) * np.diff(Tp))])
+            slope = np.diff(Cp) / np.diff(Tp)
+            return Tp, Cp[:-1], slope, Ep
+
+        groups = []
+        for m in materials:
+            idx = [i for i, p in enumerate(self.parts) if list(p) == [m]]
+            if idx:
+                groups.append((np.array(idx), self.mass[idx], *table({m: 1.0})))
+        for i, p in enumerate(self.parts):
+            if len(p) > 1:
+                groups.append((np.array([i]), np.array([1.0]), *table(p)))
+        self._energy_groups = groups
+
+    def energies(self, T) -> np.ndarray:
+        """Node energies [J] (from 0 K) at node temperatures T [K] (scalar or per node)."""
+        T = np.broadcast_to(np.asarray(T, dtype=float), (self.n,))
+        if self.constant_capacity:
+            return self.C_const * T
+        E = np.empty(self.n)
+        for idx, scale, Tp, C0, slope, Ep in self._energy_groups:
+            t = T[idx]
+            k = np.clip(np.searchsorted(Tp, t, side="right") - 1, 0, len(Tp) - 2)
+            dT = t - Tp[k]
+            E[idx] = scale * (Ep[k] + C0[k] * dT + 0.5 * slope[k] * dT * dT)
+        return E
+
+    def temperatures(self, E) -> np.ndarray:
+        """Node temperatures [K] from node energies E [J] (exact inverse of :meth:`energies`)."""
+        if self.constant_capacity:
+            return E / self.C_const
+        T = np.empty(self.n)
+        for idx, scale, Tp, C0, slope, Ep in self._energy_groups:
+            e = E[idx] / scale
+            k = np.clip(np.searchsorted(Ep, e, side="right") - 1, 0, len(Tp) - 2)
+            c = C0[k]
+            de = e - Ep[k]
+            T[idx] = Tp[k] + 2.0 * de / (c + np.sqrt(np.maximum(c * c + 2.0 * slope[k] * de,
+                                                                  0.0)))
+        return T
+
+    def capacities(self, T) -> np.ndarray:
+        """Node heat capacities C_i(T_i) [J/K]."""
+        T = np.broadcast_to(np.asarray(T, dtype=float), (self.n,))
+        return np.array([sum(mass * m.heat_capacity(float(T[i])) for m, mass in p.items())
+                         for i, p in enumerate(self.parts)])
+
+    # ---------------------------------------------------------------- conduction
+    def conduction(self, T: np.ndarray) -> np.ndarray:
+        """Net heat conducted into each node [W] at node temperatures T [K]."""
+        out = np.zeros(self.n)
+        if self.n == 1:
+            return out
+        if self.k_constant:
+            G = self.G0
+        else:
+            G = self.G0.copy()
+            Tm = 0.5 * (T[1:] + T[:-1])
+            for idx, kT, k in self.k_groups:
+                G[idx] = np.interp(Tm[idx], kT, k) * self.slice_factor[idx]
+        F = G * (T[:-1] - T[1:])
+        out[:-1] -= F
+        out[1:] += F
+        return out
+
+
+class WallTerm(HeatComponent):
+    """Run-time wall of one vessel (definition :class:`~cvsim.heat.definitions.Wall`).
+
+    Own states: the node energies [J], then two integrals that never feed back: the
+    heat into the wall from outside [J] and the part of it from fire [J].
+    """
+
+    def __init__(self, definition: Wall, vessel_name: str):
+        super().__init__(definition, vessel_name)
+        d = definition
+        self.grid = WallGrid(d.layers, d.surface, d.model == "lumped")
+        self.n_nodes = self.grid.n
+        self.n_states = self.n_nodes + 2
+        self.A_in = d.surface.area(0.0)
+        self.A_out = d.surface.area(d.thickness)
+        self.exposed = 0.0 if d.fire is None else min(d.fire.area, self.A_out)
+        self.watch = RangeWatch()
+        self._T_range = {}      # layer index -> [min, t, max, t]
+        self._biot = [0.0, 0.0]  # largest Biot number of a lumped wall and its time
+        self._jets = []          # (device index, +1/-1 for flow into the vessel, diameter)
+        self._gas = None
+        self._air = None
+        self._last = None
+        self._in_groups = None
+        self._out_groups = None
+        self._T0 = definition.initial_temperature
+        self.layer_of_node = self._layer_of_nodes()
+
+    def _layer_of_nodes(self) -> list[tuple[int, ...]]:
+        if self.d.model == "lumped":
+            return [tuple(range(len(self.d.layers)))]
+        out = []
+        for li, layer in enumerate(self.d.layers):
+            for j in range(layer.divisions):
+                out.append((li,) if j > 0 or li == 0 else (li - 1, li))
+        out.append((len(self.d.layers) - 1,))
+        return out
+
+    # ------------------------------------------------------------------ set-up
+    def bind(self, model) -> None:
+        d = self.d
+        if d.inside.model in ("natural", "natural+jet"):
+            self._gas = GasProperties(model.fluid)
+        if d.outside.model == "natural":
+            self._air = AirTable(model.network.atmosphere)
+        vi = model.node_index[self.vessel]
+        if d.inside.model == "natural+jet" or d.inside.while_filling is not None:
+            for dev in model.devices:
+                if vi not in (dev.source, dev.target):
+                    continue
+                sign = 1 if dev.target == vi else -1
+                diameter = d.inside.inlet_diameter
+                if diameter is None:
+                    area = getattr(dev.d, "area", None)
+                    if area is None and d.inside.model == "natural+jet":
+                        from ..errors import ScenarioError, Problem
+                        link = model.links[dev.index].name
+                        raise ScenarioError([Problem(
+                            f"{d.key}.inside.inlet_diameter",
+                            f"link '{link}' feeds vessel '{self.vessel}' but has no bore "
+                            "diameter; give the jet's inlet_diameter")])
+                    diameter = math.sqrt(4.0 * area / math.pi) if area else 0.0
+                self._jets.append((dev.index, sign, diameter))
+
+    def breakpoints(self):
+        ambient = self.d.outside.ambient
+        out = set(ambient.breakpoints) if ambient is not None else set()
+        if self.d.fire is not None and self.d.fire.starts_at > 0.0:
+            out.add(self.d.fire.starts_at)
+        return tuple(sorted(out))
+
+    def initial_states(self, gas_state) -> list[float]:
+        T0 = self.d.initial_temperature
+        if T0 is None:
+            T0 = gas_state.T
+        self._T0 = T0
+        return list(self.grid.energies(T0)) + [0.0, 0.0]
+
+    def scales(self) -> list[float]:
+        T0 = self._T0 if self._T0 is not None else 300.0
+        E = np.maximum(self.grid.energies(T0), 300.0 * self.grid.capacities(T0))
+        return list(E) + [float(np.sum(E))] * 2
+
+    def jacobian_rows(self, gas_row: int, heat_row: int) -> list:
+        o, N = self.offset, self.n_nodes
+        rows = []
+        for j in range(N):
+            r = [o + i for i in (j - 1, j, j + 1) if 0 <= i < N]
+            if j == 0:
+                r += [gas_row, heat_row]
+            if j == N - 1:
+                r += [o + N, o + N + 1]
+            rows.append(sorted(set(r)))
+        return rows + [[], []]
+
+    # ------------------------------------------------------------------ physics
+    def evaluate(self, t, gas, own, segment, dydt) -> float:
+        N, o = self.n_nodes, self.offset
+        T = self.grid.temperatures(own[:N])
+        self._in_groups = self._out_groups = None
+        h_in = self._inside(gas, T[0], segment)
+        q_in = h_in * self.A_in * (gas.T - T[0])
+        q_out, q_fire, h_out = self._outside(t, T[-1], segment)
+        dE = self.grid.conduction(T)
+        dE[0] += q_in
+        dE[-1] += q_out
+        dydt[o:o + N] = dE
+        dydt[o + N] = q_out
+        dydt[o + N + 1] = q_fire
+        self._last = ((t, gas.rho, gas.T, own.tobytes()), T, h_in, h_out, q_out, q_fire,
+                      self._in_groups, self._out_groups)
+        return -q_in
+
+    def _inflows(self, segment):
+        flows = segment.current_flows
+        for index, sign, diameter in self._jets:
+            mdot = sign * flows[index].mdot
+            if mdot > 0.0:
+                yield mdot, diameter
+
+    def _inside(self, gas, Tw: float, segment) -> float:
+        ins = self.d.inside
+        if ins.model == "fixed":
+            if ins.while_filling is not None and any(True for _ in self._inflows(segment)):
+                return ins.while_filling
+            return ins.coefficient
+        rho, cp, mu, k, beta = self._gas.at(gas)
+        L = self.d.inside_length
+        Ra = rayleigh(abs(beta), gas.T - Tw, L, rho, mu, k, cp)
+        Pr = prandtl(mu, k, cp)
+        nu, validity = NATURAL[self.d.convection_shape]
+        h = nu(Ra, Pr) * k / L
+        self._in_groups = (validity, Ra, Pr, gas.T - Tw)
+        if ins.model == "natural":
+            return h
+        D = self.d.inside_diameter
+        cubes = h**3
+        for mdot, diameter in self._inflows(segment):
+            if diameter > 0.0:
+                cubes += (nu_fill_jet(jet_reynolds(mdot, diameter, mu)) * k / D) ** 3
+        # several jets and natural convection: h^3 = sum h_F^3 + h_N^3 (see convection.mixed)
+        return cubes ** (1.0 / 3.0) if cubes > h**3 else h
+
+    def _outside(self, t, Tw: float, segment):
+        out = self.d.outside
+        fire = self.d.fire
+        burning = fire is not None and segment.midpoint >= fire.starts_at
+        q_fire = 0.0
+        if burning:
+            if isinstance(fire, PoolFire):
+                q_fire = api521_pool_fire_heat(fire.area, fire.environment_factor,
+                                               fire.drainage)
+            else:
+                q_fire = self.exposed * flame_heat_flux(
+                    Tw, fire.flame_temperature, fire.flame_emissivity,
+                    fire.surface_emissivity, fire.convective_coefficient)
+        if out.model == "insulated":
+            return q_fire, q_fire, 0.0
+        T_amb = segment.signal(out.ambient, t)
+        if out.model == "fixed":
+            h = out.coefficient
+        else:
+            rho, cp, mu, k, beta = self._air.at(0.5 * (Tw + T_amb))
+            L = self.d.outside_length
+            Ra = rayleigh(abs(beta), Tw - T_amb, L, rho, mu, k, cp)
+            Pr = prandtl(mu, k, cp)
+            nu, validity = NATURAL[self.d.convection_shape]
+            h = nu(Ra, Pr) * k / L
+            self._out_groups = (validity, Ra, Pr, Tw - T_amb)
+        area = self.A_out - (self.exposed if burning else 0.0)
+        q = h * (T_amb - Tw)
+        if out.emissivity > 0.0:
+            q += out.emissivity * SIGMA * (T_amb**4 - Tw**4)
+        return area * q + q_fire, q_fire, h
+
+    # ------------------------------------------------------------------ energy
+    def stored_energy(self, own) -> float:
+        return float(np.sum(own[:self.n_nodes]))
+
+    def heat_from_outside(self, own, heat_into_gas: float) -> float:
+        return float(own[self.n_nodes])
+
+    # ------------------------------------------------------------------ outputs
+    def columns(self, vessel: str) -> list[tuple[str, str, str]]:
+        p = f"{vessel}.wall"
+        cols = [(f"{p}.inner_temperature", "K", "wall"), (f"{p}.outer_temperature", "K", "wall")]
+        if self.d.model == "layered":
+            cols += [(f"{p}.node{i}_temperature", "K", "wall") for i in range(self.n_nodes)]
+        cols += [(f"{p}.inside_coefficient", "W/(m2 K)", "wall"),
+                 (f"{p}.outside_coefficient", "W/(m2 K)", "wall"),
+                 (f"{p}.heat_from_outside", "W", "wall")]
+        if self.d.fire is not None:
+            cols.append((f"{p}.fire_heat", "W", "wall"))
+        return cols
+
+    def values(self, t, gas, own, segment) -> list[float]:
+        if self._last is None or self._last[0] != (t, gas.rho, gas.T, own.tobytes()):
+            self.evaluate(t, gas, own, segment, np.zeros(self.offset + self.n_states))
+        _, T, h_in, h_out, q_out, q_fire, inside, outside = self._last
+        self._watch(t, T, h_in, h_out, inside, outside)
+        row = [float(T[0]), float(T[-1])]
+        if self.d.model == "layered":
+            row += [float(v) for v in T]
+        row += [h_in, h_out, q_out]
+        if self.d.fire is not None:
+            row.append(q_fire)
+        return row
+
+    def _watch(self, t, T, h_in, h_out, inside, outside):
+        for groups in (inside, outside):
+            if groups is not None:
+                validity, Ra, Pr, dT = groups
+                if abs(dT) < WATCH_MIN_DIFFERENCE:
+                    continue
+                for name, value in (("Rayleigh number", Ra), ("Prandtl number", Pr)):
+                    if name in validity.limits:
+                        self.watch.see(validity, name, value, t)
+        for i, layers in enumerate(self.layer_of_node):
+            for li in layers:
+                entry = self._T_range.get(li)
+                if entry is None:
+                    self._T_range[li] = [T[i], t, T[i], t]
+                    continue
+                if T[i] < entry[0]:
+                    entry[0], entry[1] = T[i], t
+                if T[i] > entry[2]:
+                    entry[2], entry[3] = T[i], t
+        if self.d.model == "lumped":
+            resistance = sum(la.thickness / la.material.conductivity(T[0])
+                             for la in self.d.layers)
+            bi = max(h_in, h_out) * resistance
+            if bi > self._biot[0]:
+                self._biot = [bi, t]
+
+    def warnings(self) -> list[str]:
+        where = f"vessel '{self.vessel}' wall"
+        out = self.watch.warnings(where)
+        for li, (lo, t_lo, hi, t_hi) in sorted(self._T_range.items()):
+            mat = self.d.layers[li].material
+            rng = (f"{mat.T_min - ZERO_CELSIUS:.4g} to {mat.T_max - ZERO_CELSIUS:.4g} degC; "
+                   f"{mat.source}")
+            if lo < mat.T_min:
+                out.append(f"{where}: layer {li + 1} ({mat.name}) reaches "
+                           f"{lo - ZERO_CELSIUS:.1f} degC at t = {t_lo:.4g} s, below the "
+                           f"range of its property data ({rng}); {mat.beyond}")
+            if hi > mat.T_max:
+                out.append(f"{where}: layer {li + 1} ({mat.name}) reaches "
+                           f"{hi - ZERO_CELSIUS:.1f} degC at t = {t_hi:.4g} s, above the "
+                           f"range of its property data ({rng}); {mat.beyond}")
+        if self.d.model == "lumped" and self._biot[0] > BIOT_LIMIT:
+            out.append(f"{where}: lumped wall with Biot number up to {self._biot[0]:.3g} "
+                       f"(at t = {self._biot[1]:.4g} s), above {BIOT_LIMIT:g}: the wall's "
+                       "temperature is not uniform through its thickness (Incropera 7th ed., "
+                       "sec. 5.2); use a layered wall")
+        return out
+
+    def assumptions(self) -> list[str]:
+        d = self.d
+        v = self.vessel
+        layers = ", ".join(f"{la.material.name} {la.thickness * 1e3:.4g} mm" for la in d.layers)
+        if d.model == "lumped":
+            wall = (f"Vessel '{v}': lumped wall (one temperature) of {layers}, "
+                    f"{float(np.sum(self.grid.mass)):.4g} kg.")
+        else:
+            wall = (f"Vessel '{v}': layered wall of {layers}, 1-D transient conduction through "
+                    f"the thickness with {self.n_nodes} temperatures (area varying with depth "
+                    f"as the vessel's parallel surfaces), {float(np.sum(self.grid.mass)):.4g} kg.")
+        out = [wall]
+        ins = d.inside
+        shape = {"vertical": "vertical surface", "horizontal": "horizontal cylinder",
+                 "sphere": "sphere"}[d.convection_shape]
+        if ins.model == "fixed":
+            text = f"fixed coefficient {ins.coefficient:g} W/(m2 K)"
+            if ins.while_filling is not None:
+                text += f", {ins.while_filling:g} W/(m2 K) while a stream enters"
+        else:
+            text = (f"natural convection (Churchill & Chu, {shape}) with the gas's CoolProp "
+                    "transport properties (saturated vapour's when two phases are present), "
+                    "correlations for a surface in an extensive fluid applied inside")
+            if ins.model == "natural+jet":
+                text += ("; combined (h^3 = h_F^3 + h_N^3) with the forced convection of each "
+                         "entering jet, Nu_D = 0.56 Re_d^0.67 (Woodfield et al. 2007 form; "
+                         "coefficients from memory and range not confirmed: verify)")
+        out.append(f"Vessel '{v}': gas to wall by {text}.")
+        o = d.outside
+        if o.model == "insulated":
+            text = "none (insulated)"
+        else:
+            text = (f"fixed coefficient {o.coefficient:g} W/(m2 K)" if o.model == "fixed" else
+                    f"natural convection in air (Churchill & Chu, {shape}) at the film "
+                    "temperature")
+            if o.emissivity > 0.0:
+                text += f" and radiation (emissivity {o.emissivity:g}) to surroundings"
+        out.append(f"Vessel '{v}': wall to surroundings by {text}.")
+        if isinstance(d.fire, PoolFire):
+            f = d.fire
+            out.append(
+                f"Vessel '{v}': API 521 pool-fire heat input Q = C1 F A^0.82 on the outer wall "
+                f"(A = {f.area:.4g} m2, F = {f.environment_factor:g}, "
+                f"{'with' if f.drainage else 'without'} prompt fire-fighting and drainage), "
+                "independent of the wall temperature and spread over the whole wall (1-D); "
+                "the exposed area exchanges no heat with the surroundings while it burns.")
+        elif isinstance(d.fire, FlameExposure):
+            f = d.fire
+            out.append(
+                f"Vessel '{v}': flame on {self.exposed:.4g} m2 of the outer wall, "
+                f"q = eps_s sigma (eps_f T_f^4 - T_s^4) + h_f (T_f - T_s) with "
+                f"T_f = {f.flame_temperature - ZERO_CELSIUS:.4g} degC, "
+                f"eps_f = {f.flame_emissivity:g}, eps_s = {f.surface_emissivity:g}, "
+                f"h_f = {f.convective_coefficient:g} W/(m2 K) (inputs), spread over the whole "
+                "wall (1-D): local temperatures of the exposed part are higher.")
+        return out
+
+
+class GasFireTerm(HeatComponent):
+    """API 521 pool-fire heat input straight into a vessel's contents (no wall)."""
+
+    def breakpoints(self):
+        s = self.d.fire.starts_at
+        return (s,) if s > 0.0 else ()
+
+    def evaluate(self, t, gas, own, segment, dydt) -> float:
+        f = self.d.fire
+        if segment.midpoint < f.starts_at:
+            return 0.0
+        return api521_pool_fire_heat(f.area, f.environment_factor, f.drainage)
+
+    def assumptions(self) -> list[str]:
+        f = self.d.fire
+        return [f"Vessel '{self.vessel}': API 521 pool-fire heat input Q = C1 F A^0.82 "
+                f"(A = {f.area:.4g} m2, F = {f.environment_factor:g}, "
+                f"{'with' if f.drainage else 'without'} prompt fire-fighting and drainage) "
+                "into the contents directly, no wall modelled."]
+
+
+__all__ = ["GasFireTerm", "WallGrid", "WallTerm"]
