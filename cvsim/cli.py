@@ -65,6 +65,42 @@ def _parser() -> argparse.ArgumentParser:
     c.add_argument("--set", dest="overrides", action="append", default=[], metavar="KEY=VALUE",
                    help="change one scenario value before checking (repeatable)")
 
+    rv = sub.add_parser(
+        "relief", help="size a relief valve by API 520 and confirm it with a run",
+        description="Required effective area of a relief valve in the scenario (API 520 "
+        "Part I, gas) for one relief load, the next API 526 orifice letter, and a "
+        "confirming run with that valve whose peak pressure is compared with the allowed "
+        "accumulation. Relieving pressure: set pressure plus the allowed overpressure of "
+        "the protected vessel's limits (default single device, 10 %).",
+        epilog="examples:\n"
+        "  cvsim relief scenarios/relief-blocked-outlet.yaml --valve psv --blocked-outlet\n"
+        "  cvsim relief scenarios/gas-vessel-pool-fire.yaml --valve psv --fire "
+        "--relieving-temperature '130 degC'\n"
+        "  cvsim relief my.yaml --valve psv --load '12 t/h' --out results/psv",
+        formatter_class=argparse.RawDescriptionHelpFormatter)
+    rv.add_argument("scenario", type=Path, help="scenario file (YAML) with the relief valve")
+    rv.add_argument("--valve", required=True, metavar="LINK",
+                    help="name of the relief-valve link to size")
+    load = rv.add_mutually_exclusive_group(required=True)
+    load.add_argument("--load", metavar="MASS_FLOW", help="stated relief load, e.g. '8 t/h'")
+    load.add_argument("--heat", metavar="POWER",
+                      help="heat input into the contents, e.g. '1.5 MW' (converted to the "
+                      "mass that must leave to hold the relieving pressure)")
+    load.add_argument("--fire", action="store_true",
+                      help="the API 521 pool-fire heat input of the vessel's fire term")
+    load.add_argument("--blocked-outlet", action="store_true",
+                      help="the largest forced inflow (fixed-flow links) into the vessel")
+    rv.add_argument("--relieving-temperature", metavar="TEMPERATURE",
+                    help="gas temperature at relieving conditions (default: the vessel's "
+                    "initial temperature)")
+    rv.add_argument("--set", dest="overrides", action="append", default=[], metavar="KEY=VALUE",
+                    help="change one scenario value first (repeatable)")
+    rv.add_argument("--out", type=Path, default=None,
+                    help="write the confirming run and relief-sizing.txt/.json here")
+    rv.add_argument("--report", action="store_true",
+                    help="with --out: also the calculation report of the confirming run")
+    rv.add_argument("--no-confirm", action="store_true", help="skip the confirming run")
+
     f = sub.add_parser("fluids", help="list the fluid names CoolProp offers",
                        description="List the pure and pseudo-pure fluids available (CoolProp "
                        "names, to be written as 'fluid:' in a scenario).")
@@ -143,6 +179,47 @@ def cmd_check(args) -> int:
     return 0
 
 
+def cmd_relief(args) -> int:
+    import json
+    from .errors import CvsimError
+    from .outputs import _jsonable, write_run_outputs
+    from .scenario import load_scenario
+    from .sizing import size_relief, sizing_text
+    from .units import parse_quantity
+
+    scenario = load_scenario(args.scenario, overrides=_overrides(args.overrides))
+    net = scenario.network
+    kw = {}
+    try:
+        if args.load:
+            kw["load"] = parse_quantity(args.load, "mass_flow")
+        elif args.heat:
+            kw["heat"] = parse_quantity(args.heat, "power")
+        elif args.fire:
+            kw["fire"] = True
+        else:
+            kw["blocked_outlet"] = True
+        T1 = (parse_quantity(args.relieving_temperature, "temperature")
+              if args.relieving_temperature else None)
+    except CvsimError as exc:
+        raise CvsimError(f"relief: {exc}") from None
+    sizing = size_relief(net, args.valve, relieving_temperature=T1,
+                         confirm=not args.no_confirm, scenario=scenario, **kw)
+    text = sizing_text(sizing, net.atmosphere)
+    print(text, end="")
+    if args.out:
+        extra = {"relief-sizing.txt": text,
+                 "relief-sizing.json": json.dumps(_jsonable(sizing.as_dict()), indent=2) + "\n"}
+        if sizing.confirm is None:
+            raise CvsimError("--out needs the confirming run (drop --no-confirm)")
+        write_run_outputs(sizing.confirm, args.out, echo=scenario.echo, report=args.report,
+                          scenario=scenario, extra_files=extra)
+        print(f"Confirming run and sizing written to {args.out}/")
+    if sizing.confirm is not None and not sizing.met:
+        return 3
+    return 0
+
+
 def cmd_fluids(args) -> int:
     from .fluid import coolprop_fluid_names, coolprop_version
     names = coolprop_fluid_names()
@@ -154,7 +231,7 @@ def cmd_fluids(args) -> int:
     return 0
 
 
-COMMANDS = {"run": cmd_run, "check": cmd_check, "fluids": cmd_fluids}
+COMMANDS = {"run": cmd_run, "check": cmd_check, "relief": cmd_relief, "fluids": cmd_fluids}
 
 
 def main(argv: list[str] | None = None) -> int:

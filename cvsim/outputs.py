@@ -194,10 +194,6 @@ def summary_text(result: Result) -> str:
     if st:
         L.append(f"Solver: {st.get('steps', 0)} steps, {st.get('rhs_calls', 0)} right-hand-side "
                  f"calls, {st.get('events', 0)} events, {st.get('wall_time_s', 0):.3g} s")
-    if s.get("warnings"):
-        L.append("")
-        L.append("Warnings (correlations or data used outside their range):")
-        L += [f"  - {w}" for w in s["warnings"]]
     L.append("")
     L.append("Assumptions:")
     L += [f"  - {a}" for a in s["assumptions"]]
@@ -251,12 +247,13 @@ def limits_text(result: Result) -> str:
 
 def write_run_outputs(result: Result, out_dir: Path, plots: bool = True,
                       echo: list | None = None, report: bool = False,
-                      scenario=None) -> list[Path]:
+                      scenario=None, extra_files: dict | None = None) -> list[Path]:
     """Write history.csv, steps.csv, summary.txt, summary.json, inputs.txt and
     plots into ``out_dir``, atomically: all of them or none.
 
     With ``report``, also report.html, the calculation report
-    (:mod:`cvsim.report`) of ``result`` and its ``scenario``."""
+    (:mod:`cvsim.report`) of ``result`` and its ``scenario``. ``extra_files``
+    maps further file names to their text (written in the same atomic step)."""
     out_dir = Path(out_dir)
     parent = out_dir.parent
     if out_dir.exists() and (not out_dir.is_dir() or (
@@ -283,6 +280,8 @@ def write_run_outputs(result: Result, out_dir: Path, plots: bool = True,
             if len(result.data) > 1:
                 from .plot import plot_run
                 drawn = plot_run(result, tmp)
+        for name, text in (extra_files or {}).items():
+            (tmp / name).write_text(text, encoding="utf-8")
         if report:
             from .report import write_run_report
             write_run_report(result, tmp / "report.html", scenario, plots=drawn)

@@ -128,14 +128,37 @@ def blocked_outlet_load(network: Network, vessel: str) -> float:
     return total
 
 
+def fire_heat_input(network: Network, vessel: str) -> tuple[float, str]:
+    """API 521 pool-fire heat input [W] on ``vessel`` from its fire heat term, and a
+    description of it."""
+    from .heat.definitions import PoolFire
+    from .heat.fire import api521_pool_fire_heat
+    for v in network.vessels:
+        if v.name != vessel:
+            continue
+        for term in v.heat:
+            fire = getattr(term, "fire", None)
+            if isinstance(fire, PoolFire):
+                Q = api521_pool_fire_heat(fire.area, fire.environment_factor, fire.drainage)
+                return Q, (f"API 521 pool fire: A = {fire.area:.4g} m2, F = "
+                           f"{fire.environment_factor:g}, "
+                           + ("with" if fire.drainage else "without")
+                           + " prompt fire-fighting and drainage")
+    raise SizingError(f"vessel '{vessel}' has no pool fire in its heat terms (heat: wall: "
+                      "outside: fire, or heat: fire); state the load or the heat input "
+                      "instead")
+
+
 def size_relief(network: Network, link_name: str, *, load: float | None = None,
-                heat: float | None = None, blocked_outlet: bool = False,
+                heat: float | None = None, blocked_outlet: bool = False, fire: bool = False,
                 relieving_temperature: float | None = None, confirm: bool = True,
                 scenario=None) -> ReliefSizing:
     """Size the relief valve on link ``link_name`` for one relief load.
 
     Give exactly one of ``load`` [kg/s], ``heat`` [W] (converted by
-    :func:`heat_relief_load` at relieving conditions) or ``blocked_outlet=True``.
+    :func:`heat_relief_load` at relieving conditions), ``fire=True`` (the API 521
+    pool-fire heat input of the vessel's fire term, converted the same way) or
+    ``blocked_outlet=True``.
     Relieving pressure: set pressure plus the allowed accumulation of the protected
     vessel's limits (default: single device, 10 %); relieving temperature: stated,
     else the vessel's initial temperature; back pressure: the highest pressure of
@@ -143,9 +166,9 @@ def size_relief(network: Network, link_name: str, *, load: float | None = None,
     """
     from .fluid import make_fluid
     from .api import run_network
-    if sum(x is not None and x is not False for x in (load, heat, blocked_outlet or None)) != 1:
-        raise SizingError("give exactly one relief load: a mass flow, a heat input, or the "
-                          "blocked-outlet inflow")
+    if sum((load is not None, heat is not None, bool(blocked_outlet), bool(fire))) != 1:
+        raise SizingError("give exactly one relief load: a mass flow, a heat input, a fire, "
+                          "or the blocked-outlet inflow")
     link = _find_valve(network, link_name)
     dev: ReliefValve = link.device
     vessels = {v.name: v for v in network.vessels}
@@ -176,10 +199,16 @@ def size_relief(network: Network, link_name: str, *, load: float | None = None,
     notes = []
     if load is not None:
         W, basis = load, "stated relief load"
-    elif heat is not None:
+    elif heat is not None or fire:
+        what = f"heat input {heat / 1e3:.4g} kW" if heat is not None else ""
+        if fire:
+            heat, what = fire_heat_input(network, vessel.name)
+            what += f", {heat / 1e3:.4g} kW"
+            notes.append("all the fire's heat is taken to reach the gas (no wall heat "
+                         "capacity): conservative for the load; the confirming run keeps "
+                         "the wall if one is modelled")
         W = heat_relief_load(heat, st.p, st.rho, du_drho_at_p(fluid, p1, T1))
-        basis = (f"heat input {heat / 1e3:.4g} kW converted to the mass that must leave to "
-                 "hold the relieving pressure")
+        basis = f"{what} converted to the mass that must leave to hold the relieving pressure"
     else:
         W = blocked_outlet_load(network, vessel.name)
         if W <= 0.0:
