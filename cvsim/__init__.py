@@ -15,6 +15,8 @@ _LAZY = {
     "Result": ("cvsim.result", "Result"),
     "CAUTION": ("cvsim.result", "CAUTION"),
     "write_run_outputs": ("cvsim.outputs", "write_run_outputs"),
+    "sweep": ("cvsim.study.sweep", "sweep"),
+    "SweepResult": ("cvsim.study.table", "SweepResult"),
 }
 
 __all__ = ["__version__", *_LAZY]
