@@ -17,6 +17,8 @@ _LAZY = {
     "write_run_outputs": ("cvsim.outputs", "write_run_outputs"),
     "sweep": ("cvsim.study.sweep", "sweep"),
     "SweepResult": ("cvsim.study.table", "SweepResult"),
+    "seek": ("cvsim.study.seek", "seek"),
+    "SeekResult": ("cvsim.study.seek", "SeekResult"),
 }
 
 __all__ = ["__version__", *_LAZY]

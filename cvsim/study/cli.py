@@ -1,4 +1,4 @@
-"""Command line for studies: ``cvsim sweep``, ``cvsim outcomes``.
+"""Command line for studies: ``cvsim sweep``, ``cvsim find``, ``cvsim outcomes``.
 
 Kept apart from :mod:`cvsim.cli` (which adds these commands to its parser) so
 that the run commands and the study commands can change independently.
@@ -38,6 +38,34 @@ examples:
   cvsim outcomes scenarios/nitrogen-blowdown.yaml      # names for --plot and --meet
 """
 
+FIND_HELP = """\
+Find the smallest (--smallest) or largest (--largest) value of one scenario key
+that meets every requirement given with --meet: a coarse scan of the range in
+parallel, then a bracketing root finder on the margin over whole simulations.
+The answer is a value that was simulated and met; the bracket's other end was
+simulated and did not. Writes seek.txt, seek.json, every simulation in
+cases.csv and cases.png, and the full outputs of a run at the answer in run/.
+
+requirements (--meet, repeatable; all must hold):
+  limits                                  every design limit the scenario states
+  limits:temperature                      only those on a temperature (or pressure, time)
+  separator.limits                        only those of one vessel
+  separator.limit.depressure              one limit check (names: cvsim outcomes SCENARIO)
+  "separator.min_temperature >= -46 degC" an outcome against a value (>=, <=, >, <)
+  "end_time <= 15 min"
+
+Exit status: 0 when the crossing was found, 1 when not (nothing in the range
+meets, or the end of the range already meets), 2 for a wrong option."""
+
+FIND_EXAMPLES = """\
+examples:
+  cvsim find scenarios/separator-depressuring.yaml --vary links.orifice.diameter="10 mm:30 mm" \\
+      --smallest --meet limits
+  cvsim find scenarios/nitrogen-blowdown.yaml --vary links.vent.diameter="4 mm:30 mm" \\
+      --largest --meet "receiver.min_temperature >= -60 degC" --tolerance 0.5%
+"""
+
+
 def _workers(p: argparse.ArgumentParser) -> None:
     g = p.add_mutually_exclusive_group()
     g.add_argument("--workers", type=int, default=None, metavar="N",
@@ -58,7 +86,7 @@ def _common(p: argparse.ArgumentParser) -> None:
 
 
 def add_study_commands(sub) -> None:
-    """Add ``sweep`` and ``outcomes`` to the command line's sub-parsers."""
+    """Add ``sweep``, ``find`` and ``outcomes`` to the command line's sub-parsers."""
     fmt = argparse.RawDescriptionHelpFormatter
     s = sub.add_parser("sweep", help="run a scenario for many values of its keys, in parallel",
                        description=SWEEP_HELP, epilog=SWEEP_EXAMPLES, formatter_class=fmt)
@@ -68,6 +96,27 @@ def add_study_commands(sub) -> None:
     s.add_argument("--plot", dest="plot", action="append", default=None, metavar="OUTCOME",
                    help="an outcome to draw against the first varied key (repeatable; "
                    "default: temperatures, peak pressure, limits and end time that change)")
+
+    f = sub.add_parser("find", help="find the smallest or largest value that meets requirements",
+                       description=FIND_HELP, epilog=FIND_EXAMPLES, formatter_class=fmt)
+    _common(f)
+    f.add_argument("--vary", required=True, metavar="KEY=RANGE",
+                   help="the key to search and its range, e.g. "
+                   "links.orifice.diameter='10 mm:30 mm' (':COUNT' sets the scan points; "
+                   "'log:' scans in log)")
+    goal = f.add_mutually_exclusive_group(required=True)
+    goal.add_argument("--smallest", dest="goal", action="store_const", const="smallest",
+                      help="the smallest value that meets the requirements")
+    goal.add_argument("--largest", dest="goal", action="store_const", const="largest",
+                      help="the largest value that meets the requirements")
+    f.add_argument("--meet", action="append", default=None, metavar="REQUIREMENT",
+                   help="a requirement (repeatable; default: limits)")
+    f.add_argument("--tolerance", default="0.1 %", metavar="FRACTION",
+                   help="relative width of the final bracket, e.g. '0.1 %%' (default) or 0.005")
+    f.add_argument("--max-runs", type=int, default=None, metavar="N",
+                   help="most simulations, scan included (default 40)")
+    f.add_argument("--no-run", action="store_true",
+                   help="do not write the full outputs of a run at the answer (run/)")
 
     o = sub.add_parser("outcomes", help="list the outcome names of a scenario (for --plot, --meet)",
                        description="List the outcomes a run of the scenario gives, with their "
@@ -102,6 +151,32 @@ def cmd_sweep(args) -> int:
     return 0
 
 
+def cmd_find(args) -> int:
+    from ..cli import _overrides
+    from ..errors import StudyError
+    from .seek import MAX_RUNS, seek
+    from .sweep import parse_vary
+    from ..units import UnitsError, parse_quantity
+    try:
+        tolerance = parse_quantity(args.tolerance, "fraction")
+    except UnitsError as exc:
+        raise StudyError(f"--tolerance: {exc}") from None
+    param = parse_vary(args.vary, need_count=False)
+    result = seek(args.scenario, {param.key: param.spec}, meet=args.meet or "limits",
+                  goal=args.goal, workers=args.workers, cluster=args.cluster,
+                  tolerance=tolerance, max_runs=args.max_runs or MAX_RUNS,
+                  progress=_progress(args), overrides=_overrides(args.overrides))
+    out = args.out or Path("results") / f"{args.scenario.stem}-find"
+    result.write(out, plots=not args.no_plots, run=not args.no_run)
+    if not args.quiet:
+        print(result.text())
+    print(f"Results written to {out}/")
+    if result.status != "found":
+        print(f"cvsim: {result.message}", file=sys.stderr)
+        return 1
+    return 0
+
+
 def cmd_outcomes(args) -> int:
     from .outcomes import outcome_list
     from ..scenario import load_scenario
@@ -118,4 +193,4 @@ def cmd_outcomes(args) -> int:
     return 0
 
 
-STUDY_COMMANDS = {"sweep": cmd_sweep, "outcomes": cmd_outcomes}
+STUDY_COMMANDS = {"sweep": cmd_sweep, "find": cmd_find, "outcomes": cmd_outcomes}
