@@ -293,10 +293,14 @@ class _Dask:
                     value = fut.result()
                     fut.release()
                     yield i, True, value
-                else:
+                elif fut.status == "error":
                     exc = fut.exception()
                     fut.release()
                     yield i, False, f"on the Dask cluster: {type(exc).__name__}: {exc}"
+                else:  # cancelled or lost with its worker
+                    fut.release()
+                    yield i, False, (f"on the Dask cluster: the case was {fut.status} "
+                                     "(its worker left the cluster?)")
         finally:
             for f in futures:
                 if not f.done():

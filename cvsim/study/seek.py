@@ -208,6 +208,8 @@ class SeekResult:
     ran_on: str = ""
     wall_time: float = 0.0
     files: dict = field(default_factory=dict)
+    source: object = field(default=None, repr=False)        # the Source searched
+    parsed: list = field(default_factory=list, repr=False)  # the Requirements
 
     @property
     def overrides(self) -> dict:
@@ -277,7 +279,7 @@ class SeekResult:
             if run and self.value is not None:
                 from ..api import run as run_scenario
                 from ..scenario import load_scenario_bytes
-                source = self._source
+                source = self.source
                 scenario = load_scenario_bytes(source.data, source.name,
                                                {**source.overrides, **self.overrides})
                 result = run_scenario(scenario)
@@ -296,12 +298,10 @@ class SeekResult:
 
     def plot_outcomes(self) -> list[str]:
         """Outcomes the requirements speak of, then the sweep defaults."""
-        names = [r.name for r in self._requirements if r.kind == "compare"]
+        names = [r.name for r in self.parsed if r.kind == "compare"]
         names += [n for n in self.cases.outcome_defaults if n not in names]
         return names
 
-    _source: object = field(default=None, repr=False)
-    _requirements: list = field(default_factory=list, repr=False)
 
 
 def seek(scenario, vary: dict, meet="limits", goal: str = "smallest",
@@ -620,9 +620,7 @@ class _Search:
                      b.text if found else None),
             margins=margins, binding=binding, simulations=self.runs, rounds=self.rounds,
             tolerance=self.tolerance, cases=cases, message=message, ran_on=ran_on,
-            wall_time=wall)
-        out._source = source
-        out._requirements = self.requirements
+            wall_time=wall, source=source, parsed=list(self.requirements))
         return out
 
 

@@ -14,6 +14,7 @@ checks' ``.met`` as True/False.
 """
 from __future__ import annotations
 
+import hashlib
 import json
 import math
 from dataclasses import asdict, dataclass, field
@@ -97,6 +98,7 @@ class SweepResult:
               wall_time=0.0) -> "SweepResult":
         from ..api import provenance as versions
         from .outcomes import outcome_list
+        from .sweep import value_text
         columns = [Column("case", "", "case", "case number")]
         for p in parameters:
             si_unit = next((r["si"][p.key][1] for r in raw_rows if p.key in r["si"]), "")
@@ -121,7 +123,6 @@ class SweepResult:
         for case, r in zip(cases, raw_rows):
             row = {"case": r["case"]}
             for p in parameters:
-                from .sweep import value_text
                 row[p.key] = value_text(case[p.key])
                 si = r["si"].get(p.key)
                 row[f"{p.key}.si"] = si[0] if si else None
@@ -135,7 +136,6 @@ class SweepResult:
             rows.append(row)
         prov = versions(None)
         prov["scenario"] = source.name
-        import hashlib
         prov["scenario_sha256"] = hashlib.sha256(source.data).hexdigest()
         if source.overrides:
             prov["overrides"] = {k: str(v) for k, v in source.overrides.items()}
