@@ -189,3 +189,20 @@ def test_command_line_writes_answer_cases_plot_and_a_run_at_the_answer(ideal, tm
     run = json.loads((out / "run" / "summary.json").read_text())
     assert run["provenance"]["overrides"] == {"links.vent.diameter": data["value"]}
     assert run["limits"][0]["met"] is True
+
+
+def test_python_examples_in_the_studies_guide_run(tmp_path, monkeypatch, capsys):
+    # docs/studies.md promises examples that run: run every python block as written
+    import re
+    from pathlib import Path
+    root = Path(__file__).resolve().parents[1]
+    text = (root / "docs" / "studies.md").read_text()
+    blocks = re.findall(r"```python\n(.*?)```", text, re.S)
+    assert blocks
+    (tmp_path / "scenarios").symlink_to(root / "scenarios")
+    monkeypatch.chdir(tmp_path)
+    for code in blocks:
+        exec(compile(code, "docs/studies.md", "exec"), {})
+    assert (tmp_path / "results" / "orifice-sweep" / "sweep.csv").exists()
+    assert (tmp_path / "results" / "orifice.png").exists()
+    assert "17.579 mm" in capsys.readouterr().out
