@@ -243,19 +243,23 @@ def test_dataframe_has_one_row_per_case_in_si(nitrogen):
 # -------------------------------------------------------------- Dask
 
 @pytest.mark.slow
-def test_a_dask_cluster_gives_the_same_table_as_local_processes(nitrogen, tmp_path):
+def test_a_dask_cluster_and_every_start_method_give_the_same_table(nitrogen, tmp_path):
     distributed = pytest.importorskip("distributed")
     vary = {"links.vent.diameter": "-1 mm, 2.5 mm, 4 mm"}
-    local = cvsim.sweep(nitrogen, vary, workers=2, progress=False)
+    local = cvsim.sweep(nitrogen, vary, workers=2, start_method="fork", progress=False)
+    served = cvsim.sweep(nitrogen, vary, workers=2, start_method="forkserver",
+                         progress=False)
     with distributed.LocalCluster(processes=True, n_workers=2, threads_per_worker=1,
                                   host="127.0.0.1", dashboard_address=None) as cluster:
         remote = cvsim.sweep(nitrogen, vary, cluster=cluster.scheduler_address,
                              progress=False)
     assert remote.ran_on.startswith("Dask cluster at tcp://127.0.0.1:")
-    assert [c.name for c in remote.columns] == [c.name for c in local.columns]
-    for a, b in zip(remote.rows, local.rows):
-        assert a.keys() == b.keys()
-        assert all(same(a[k], b[k]) for k in a), a["case"]
+    assert "forkserver" in served.ran_on and "fork)" in local.ran_on
+    for other in (remote, served):
+        assert [c.name for c in other.columns] == [c.name for c in local.columns]
+        for a, b in zip(other.rows, local.rows):
+            assert a.keys() == b.keys()
+            assert all(same(a[k], b[k]) for k in a), a["case"]
     assert remote.rows[0]["status"] == "failed"
 
 
