@@ -263,6 +263,14 @@ def test_a_dask_cluster_and_every_start_method_give_the_same_table(nitrogen, tmp
     assert remote.rows[0]["status"] == "failed"
 
 
+def test_asking_for_dask_without_it_installed_says_how_to_install_it(nitrogen, monkeypatch):
+    import sys
+    monkeypatch.setitem(sys.modules, "distributed", None)  # import distributed fails
+    with pytest.raises(ClusterError, match=r"pip install 'cvsim\[cluster\]'"):
+        cvsim.sweep(nitrogen, {"links.vent.diameter": "3 mm"}, cluster="tcp://127.0.0.1:1",
+                    progress=False)
+
+
 def test_an_unreachable_cluster_is_one_clear_message(nitrogen):
     pytest.importorskip("distributed")
     with pytest.raises(ClusterError, match="not a Dask scheduler address"):

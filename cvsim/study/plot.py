@@ -30,12 +30,15 @@ QUANTITY_WORDS = {"Pa": "Pressure", "K": "Temperature", "s": "Time", "kg": "Mass
                   "kg/s": "Mass flow"}
 
 
-def plot_sweep(result, path: Path, outcomes: list[str], mark: tuple | None = None) -> Path:
+def plot_sweep(result, path: Path, outcomes: list[str], mark: tuple | None = None,
+               subtitle: str | None = None, required: list | None = None) -> Path:
     """Write the sweep plot of ``result`` (a :class:`~cvsim.study.table.SweepResult`)
     for ``outcomes`` (column names) to ``path``.
 
     ``mark`` = (x in the first parameter's plot unit, label) draws a vertical
-    line there (target seeking marks its answer).
+    line there (target seeking marks its answer); ``subtitle`` replaces the
+    count of cases under the title; ``required`` = [(outcome, value [SI], op)]
+    draws a requirement on its outcome's panel, the side that fails shaded.
     """
     path = Path(path)
     axis = _XAxis(result)
@@ -45,13 +48,15 @@ def plot_sweep(result, path: Path, outcomes: list[str], mark: tuple | None = Non
     rows = math.ceil(n / cols)
     size = (max(8.0, cols * (PANEL_SIZE[0] + 0.9)), HEADER_IN + rows * (PANEL_SIZE[1] + 0.8))
     c = result.counts()
-    subtitle = (f"{len(result.rows)} cases: {c['completed']} completed, {c['stopped']} stopped, "
-                f"{c['failed']} failed. Varied: " +
-                "; ".join(f"{p.key} = {p.spec}" for p in result.parameters))
+    if subtitle is None:
+        subtitle = (f"{len(result.rows)} cases: {c['completed']} completed, "
+                    f"{c['stopped']} stopped, {c['failed']} failed. Varied: " +
+                    "; ".join(f"{p.key} = {p.spec}" for p in result.parameters))
     with figure(size, result.title, subtitle, alarm=c["failed"] > 0) as fig:
         axes = np.atleast_1d(fig.subplots(rows, cols, squeeze=False).ravel())
         for ax, name in zip(axes, outcomes):
-            _panel(ax, result, name, axis, groups, mark)
+            _panel(ax, result, name, axis, groups, mark,
+                   [(v, op) for n, v, op in required or () if n == name])
         for ax in axes[len(outcomes):]:
             ax.set_visible(False)
         fig.savefig(path, dpi=DPI)
@@ -109,7 +114,7 @@ def _scale(result, name: str) -> tuple[str, object]:
     return result._readable(result.column(name)).shown()
 
 
-def _panel(ax, result, name, axis: _XAxis, groups, mark):
+def _panel(ax, result, name, axis: _XAxis, groups, mark, required=()):
     col = result.column(name)
     unit, conv = _scale(result, name)
     values = result.values(name)
@@ -127,6 +132,9 @@ def _panel(ax, result, name, axis: _XAxis, groups, mark):
     if col.kind != "limit-met":
         _least_span(ax, 0.0)  # round-off between cases must not show as ticks
     _limit_line(ax, result, name, conv, unit)
+    for value, op in required:
+        _threshold(ax, conv(value), below_is_bad=op.startswith(">"),
+                   label=f"required: {op} {_short_unit(conv(value), _deg(unit))}", ls=":")
     _marks(ax, result, axis, y)
     if mark is not None:
         ax.axvline(mark[0], color="0.1", lw=1.0, ls="-.", label=mark[1])
@@ -174,20 +182,26 @@ def _limit_line(ax, result, name, conv, unit):
         limits = {r.get(f"{base}.limit") for r in completed}
         if len(limits) != 1 or None in limits:
             continue
-        limit = limits.pop()
-        below_is_bad = _below_is_bad(completed, base)
-        shown = conv(limit)
-        unit = "°C" if unit == "degC" else unit
-        ax.axhline(shown, color=LIMIT_COLOUR, lw=1.1, ls="--",
-                   label=f"limit: {_short_unit(shown, unit)} ({base.split('.limit.')[-1]})")
-        lo, hi = ax.get_ylim()
-        span = max(hi - lo, abs(shown) * 0.05, 1e-9)
-        if below_is_bad is not None:
-            ax.axhspan(shown - 10 * span if below_is_bad else shown,
-                       shown if below_is_bad else shown + 10 * span,
-                       color=FAILED_COLOUR, alpha=0.07, lw=0)
-        ax.set_ylim(min(lo, shown - 0.05 * span), max(hi, shown + 0.05 * span))
+        shown = conv(limits.pop())
+        _threshold(ax, shown, _below_is_bad(completed, base),
+                   f"limit: {_short_unit(shown, _deg(unit))} ({base.split('.limit.')[-1]})")
         return
+
+
+def _deg(unit: str) -> str:
+    return "°C" if unit == "degC" else unit
+
+
+def _threshold(ax, shown: float, below_is_bad, label: str, ls: str = "--"):
+    """A horizontal line at ``shown``, the side that fails (if known) shaded."""
+    ax.axhline(shown, color=LIMIT_COLOUR, lw=1.1, ls=ls, label=label)
+    lo, hi = ax.get_ylim()
+    span = max(hi - lo, abs(shown) * 0.05, 1e-9)
+    if below_is_bad is not None:
+        ax.axhspan(shown - 10 * span if below_is_bad else shown,
+                   shown if below_is_bad else shown + 10 * span,
+                   color=FAILED_COLOUR, alpha=0.07, lw=0)
+    ax.set_ylim(min(lo, shown - 0.05 * span), max(hi, shown + 0.05 * span))
 
 
 def _same(a, b) -> bool:

@@ -275,7 +275,15 @@ class SeekResult:
             files = dict(self.cases.files)
             if plots:
                 from .plot import plot_sweep
-                files["plot"] = plot_sweep(self.cases, tmp / "cases.png", outcomes, mark)
+                answer = (f"{self.key} = {self.value}" if self.value is not None
+                          else f"none found ({self.status})")
+                subtitle = (f"Search for the {self.goal} {self.key} that meets: "
+                            f"{'; '.join(self.requirements)}. {self.simulations} simulations; "
+                            f"answer: {answer}")
+                required = [(r.name, r.value, r.op) for r in self.parsed
+                            if r.kind == "compare"]
+                files["plot"] = plot_sweep(self.cases, tmp / "cases.png", outcomes, mark,
+                                           subtitle, required)
             if run and self.value is not None:
                 from ..api import run as run_scenario
                 from ..scenario import load_scenario_bytes
