@@ -2,8 +2,11 @@
 
 Public API (imported lazily, so that ``cvsim --help`` starts fast)::
 
-    from cvsim import load_scenario, run
+    from cvsim import load_scenario, run, seek, sweep
     result = run("scenarios/nitrogen-blowdown.yaml")
+    table = sweep("scenarios/nitrogen-blowdown.yaml", vary={"links.vent.diameter": "6 mm:20 mm:8"})
+    size = seek("scenarios/separator-depressuring.yaml",
+                vary={"links.orifice.diameter": "10 mm:30 mm"}, meet="limits")
 """
 __version__ = "0.1.0"
 

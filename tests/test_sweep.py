@@ -178,7 +178,7 @@ def test_failed_cases_are_rows_with_their_error_and_the_sweep_goes_on(tmp_path):
     assert "links.vent.diameter" in bad_value["error"] and "greater than 0" in bad_value["error"]
     assert bad_value["links.vent.diameter.si"] is None
     assert good["status"] == "completed" and good["error"] == ""
-    assert good["bottle.final_mass"] < good["bottle.final_mass"] + 1  # a number
+    assert good["vent.mass_passed"] > 0 and good["bottle.min_pressure"] < good["bottle.max_pressure"]
     assert bad_run["status"] == "failed" and "not a physical state" in bad_run["error"]
     # a failed case has no figures (those up to the failure would mislead)
     assert bad_run["bottle.min_temperature"] is None
