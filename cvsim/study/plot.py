@@ -126,9 +126,10 @@ def _panel(ax, result, name, axis: _XAxis, groups, mark, required=()):
         order = sorted(idx, key=lambda i: axis.x[i])
         ok = [i for i in order if result.rows[i]["status"] != "failed"]
         colour = COLOURS[k % len(COLOURS)]
-        ax.plot([axis.x[i] for i in ok], [y[i] for i in ok], color=colour,
-                ls=DASHES[(k // len(COLOURS)) % len(DASHES)], lw=1.6, marker="o", ms=3.5,
-                label=label or None)
+        # named values (words, mappings) are not a scale: points, no line between
+        ls = "none" if axis.ticks is not None else DASHES[(k // len(COLOURS)) % len(DASHES)]
+        ax.plot([axis.x[i] for i in ok], [y[i] for i in ok], color=colour, ls=ls, lw=1.6,
+                marker="o", ms=3.5 if axis.ticks is None else 6, label=label or None)
     if col.kind != "limit-met":
         _least_span(ax, 0.0)  # round-off between cases must not show as ticks
     _limit_line(ax, result, name, conv, unit)

@@ -298,34 +298,33 @@ class Source:
         return load_scenario_bytes(self.data, self.name, {**self.overrides, **(case or {})})
 
     def reference(self, parameters: list[Parameter], first: dict):
-        """Check the varied keys against the file; return a scenario loaded
+        """Check the varied keys against the file; return the scenario loaded
         without the varied values (or with the first case's), or ``None``.
 
         Raises :class:`StudyError` for a key path the scenario does not have, and
         the :class:`ScenarioError` of a file whose problems no varied value explains.
         """
         keys = {p.key for p in parameters}
-        try:
-            first_scenario = self.load(first)
-            first_error = None
-        except ScenarioError as exc:
-            first_scenario, first_error = None, exc
-        if first_error is not None:
-            for p in first_error.problems:
-                if normal_key(p.key) in keys and p.message.startswith(("override:",
-                                                                      "unknown key")):
-                    message = p.message.removeprefix("override: ")
-                    message = message.replace(" (set by override)", "")
-                    raise StudyError(f"--vary {normal_key(p.key)}: {message}; the key path "
-                                     "must name a key of the scenario format "
-                                     "(docs/scenario-format.md)")
-            swept = [p for p in first_error.problems if _under(p.key, keys)]
-            if not swept:
-                raise first_error
-        try:
-            return self.load()
-        except ScenarioError:
-            return first_scenario
+        loaded = {}
+        errors = {}
+        for name, case in (("first", first), ("base", None)):
+            try:
+                loaded[name] = self.load(case)
+            except ScenarioError as exc:
+                errors[name] = exc
+        for p in getattr(errors.get("first"), "problems", ()):
+            if normal_key(p.key) in keys and p.message.startswith(("override:", "unknown key")):
+                message = p.message.removeprefix("override: ").replace(" (set by override)", "")
+                raise StudyError(f"--vary {normal_key(p.key)}: {message}; the key path must "
+                                 "name a key of the scenario format (docs/scenario-format.md)")
+        if "base" in loaded:  # the file is sound: a case's problems are its own
+            return loaded["base"]
+        if "first" in loaded:
+            return loaded["first"]
+        first_error = errors["first"]
+        if any(not _under(p.key, keys) for p in first_error.problems):
+            raise first_error  # problems no varied value explains: fix the file first
+        return None
 
 
 def _under(key: str, keys: set) -> bool:
