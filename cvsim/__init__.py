@@ -2,8 +2,11 @@
 
 Public API (imported lazily, so that ``cvsim --help`` starts fast)::
 
-    from cvsim import load_scenario, run
+    from cvsim import load_scenario, run, seek, sweep
     result = run("scenarios/nitrogen-blowdown.yaml")
+    table = sweep("scenarios/nitrogen-blowdown.yaml", vary={"links.vent.diameter": "6 mm:20 mm:8"})
+    size = seek("scenarios/separator-depressuring.yaml",
+                vary={"links.orifice.diameter": "10 mm:30 mm"}, meet="limits")
 """
 __version__ = "0.1.0"
 
@@ -15,6 +18,10 @@ _LAZY = {
     "Result": ("cvsim.result", "Result"),
     "CAUTION": ("cvsim.result", "CAUTION"),
     "write_run_outputs": ("cvsim.outputs", "write_run_outputs"),
+    "sweep": ("cvsim.study.sweep", "sweep"),
+    "SweepResult": ("cvsim.study.table", "SweepResult"),
+    "seek": ("cvsim.study.seek", "seek"),
+    "SeekResult": ("cvsim.study.seek", "SeekResult"),
 }
 
 __all__ = ["__version__", *_LAZY]

@@ -1,4 +1,5 @@
-"""Command line: ``cvsim run | check | fluids``.
+"""Command line: ``cvsim run | check | fluids`` (and the study commands
+``sweep | find | outcomes`` of :mod:`cvsim.study.cli`).
 
 Heavy libraries (CoolProp, scipy, matplotlib, pint) are imported inside the
 commands, so that ``cvsim --help`` answers at once. Errors a user can cause
@@ -26,6 +27,9 @@ examples:
   cvsim run scenarios/nitrogen-blowdown.yaml --out results/blowdown --report
   cvsim check scenarios/hydrogen-fast-fill.yaml
   cvsim fluids
+  cvsim sweep scenarios/separator-depressuring.yaml --vary links.orifice.diameter="10 mm:30 mm:11"
+  cvsim find scenarios/separator-depressuring.yaml --vary links.orifice.diameter="10 mm:30 mm" \\
+      --smallest --meet limits
 """
 
 
@@ -105,6 +109,9 @@ def _parser() -> argparse.ArgumentParser:
                        description="List the pure and pseudo-pure fluids available (CoolProp "
                        "names, to be written as 'fluid:' in a scenario).")
     f.add_argument("--search", default=None, help="show only names containing this text")
+
+    from .study.cli import add_study_commands
+    add_study_commands(sub)
     return p
 
 
@@ -234,6 +241,11 @@ def cmd_fluids(args) -> int:
 COMMANDS = {"run": cmd_run, "check": cmd_check, "relief": cmd_relief, "fluids": cmd_fluids}
 
 
+def _commands() -> dict:
+    from .study.cli import STUDY_COMMANDS
+    return {**COMMANDS, **STUDY_COMMANDS}
+
+
 def main(argv: list[str] | None = None) -> int:
     parser = _parser()
     args = parser.parse_args(argv)
@@ -242,7 +254,7 @@ def main(argv: list[str] | None = None) -> int:
         return 0
     from .errors import CvsimError
     try:
-        return COMMANDS[args.command](args)
+        return _commands()[args.command](args)
     except CvsimError as exc:
         print(f"cvsim: {exc}", file=sys.stderr)
         return 2

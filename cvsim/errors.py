@@ -85,3 +85,13 @@ class SolverError(CvsimError, RuntimeError):
 
 class OutputError(CvsimError, OSError):
     """Results could not be written where asked."""
+
+
+class StudyError(CvsimError, ValueError):
+    """A sweep or a target search is set up wrongly (an option such as ``--vary``,
+    ``--meet`` or ``--plot``); the message names the option and what to write."""
+
+
+class ClusterError(CvsimError, RuntimeError):
+    """Parallel workers could not be used: Dask not installed, scheduler not
+    reachable, or workers running another cvsim version."""

@@ -75,6 +75,11 @@ class LimitCheck:
     quantity  what is limited (``pressure``, ``temperature``, ``time``)
     limit     the limit [SI]; ``actual`` the extreme reached [SI] at ``time`` [s]
     margin    [SI] positive when met (how far from the limit), negative when crossed
+    key       short name of the check, stable from run to run, for tables and
+              requirements: the ``limits:`` key it comes from (``design_pressure``,
+              ``min_metal_temperature``, ``max_temperature``, ``depressure``), with
+              ``.gas`` or the wall's column name added where one key gives several
+              checks (``min_metal_temperature.gas``, ``max_temperature.wall.inner``)
     """
 
     vessel: str
@@ -88,6 +93,7 @@ class LimitCheck:
     unit: str
     practice: str
     note: str = ""
+    key: str = ""
 
     def as_dict(self) -> dict:
         return asdict(self)
@@ -142,7 +148,8 @@ def check_vessel(name: str, limits, atmosphere: float, t, pressure, gas_temperat
             name, f"peak pressure within design pressure + {acc * 100:.0f} % accumulation "
             f"({limits.accumulation_case})", "pressure", p_allow, p_max, t_max,
             bool(p_max <= p_allow), p_allow - p_max, "Pa", ACCUMULATION_SOURCE,
-            f"design pressure {(limits.design_pressure - atmosphere) / 1e5:.6g} bar g"))
+            f"design pressure {(limits.design_pressure - atmosphere) / 1e5:.6g} bar g",
+            key="design_pressure"))
     if limits.min_metal_temperature is not None:
         if walls:
             mins = [(_extreme(t, v, "min"), k) for k, v in walls.items()]
@@ -155,14 +162,15 @@ def check_vessel(name: str, limits, atmosphere: float, t, pressure, gas_temperat
             name, "lowest metal temperature above the minimum design metal temperature",
             "temperature", limits.min_metal_temperature, T_min, t_min,
             bool(T_min >= limits.min_metal_temperature), T_min - limits.min_metal_temperature,
-            "K", MDMT_SOURCE, f"checked on the {basis}"))
+            "K", MDMT_SOURCE, f"checked on the {basis}", key="min_metal_temperature"))
         if walls:
             Tg, tg = _extreme(t, gas_temperature, "min")
             out.append(LimitCheck(
                 name, "lowest gas temperature above the minimum design metal temperature",
                 "temperature", limits.min_metal_temperature, Tg, tg,
                 bool(Tg >= limits.min_metal_temperature), Tg - limits.min_metal_temperature,
-                "K", MDMT_SOURCE, "gas in contact with the inner wall"))
+                "K", MDMT_SOURCE, "gas in contact with the inner wall",
+                key="min_metal_temperature.gas"))
     if limits.max_temperature is not None:
         series = {"gas": gas_temperature, **walls}
         for label, values in series.items():
@@ -172,7 +180,9 @@ def check_vessel(name: str, limits, atmosphere: float, t, pressure, gas_temperat
                 "temperature", limits.max_temperature, T_max, t_max,
                 bool(T_max <= limits.max_temperature), limits.max_temperature - T_max, "K",
                 "design limit stated in the scenario (e.g. 85 degC for hydrogen vehicle "
-                "cylinders, SAE J2601)", ""))
+                "cylinders, SAE J2601)", "",
+                key="max_temperature" if label == "gas" else
+                f"max_temperature.{label.removeprefix(name + '.')}"))
     if limits.depressure_to is not None and limits.depressure_within is not None:
         t_reach = first_time_at_or_below(t, pressure, limits.depressure_to)
         reached = t_reach == t_reach
@@ -191,5 +201,6 @@ def check_vessel(name: str, limits, atmosphere: float, t, pressure, gas_temperat
             t_reach if reached else float("nan"), met,
             limits.depressure_within - t_reach if reached else float("nan"), "s",
             GUIDELINE_SOURCE if guideline else
-            "depressuring target stated in the scenario (API 521 practice)", note))
+            "depressuring target stated in the scenario (API 521 practice)", note,
+            key="depressure"))
     return out

@@ -7,6 +7,7 @@ CoolProp versions, the scenario file's hash).
 """
 from __future__ import annotations
 
+import contextlib
 import csv
 import json
 import math
@@ -64,15 +65,22 @@ def _fmt(v: float) -> str:
 
 
 def _header_lines(result: Result) -> list[str]:
-    p = result.provenance
-    lines = [result.network.title,
-             f"cvsim {p.get('cvsim', '?')}, CoolProp {p.get('coolprop', '?')}, "
-             f"scenario {p.get('scenario', '?')} sha256 {p.get('scenario_sha256', '?')[:16]}",
-             f"status: {result.status} - {result.message}",
-             "pressures absolute (bar a); gauge = absolute - "
-             f"{result.network.atmosphere / 1e5:.5g} bar (the scenario's atmosphere)",
-             CAUTION]
-    return lines
+    return header_lines(result.network.title, result.provenance,
+                        f"status: {result.status} - {result.message}",
+                        result.network.atmosphere)
+
+
+def header_lines(title: str, provenance: dict, status: str, atmosphere: float) -> list[str]:
+    """The ``#`` lines that open every CSV file: title, versions and scenario hash,
+    status, gauge reference and the caution."""
+    p = provenance
+    return [title,
+            f"cvsim {p.get('cvsim', '?')}, CoolProp {p.get('coolprop', '?')}, "
+            f"scenario {p.get('scenario', '?')} sha256 {p.get('scenario_sha256', '?')[:16]}",
+            status,
+            "pressures absolute (bar a); gauge = absolute - "
+            f"{atmosphere / 1e5:.5g} bar (the scenario's atmosphere)",
+            CAUTION]
 
 
 def write_summary_json(result: Result, path: Path) -> Path:
@@ -245,15 +253,15 @@ def limits_text(result: Result) -> str:
     return "\n".join(L)
 
 
-def write_run_outputs(result: Result, out_dir: Path, plots: bool = True,
-                      echo: list | None = None, report: bool = False,
-                      scenario=None, extra_files: dict | None = None) -> list[Path]:
-    """Write history.csv, steps.csv, summary.txt, summary.json, inputs.txt and
-    plots into ``out_dir``, atomically: all of them or none.
+@contextlib.contextmanager
+def atomic_folder(out_dir: Path):
+    """Write an output folder all at once or not at all.
 
-    With ``report``, also report.html, the calculation report
-    (:mod:`cvsim.report`) of ``result`` and its ``scenario``. ``extra_files``
-    maps further file names to their text (written in the same atomic step)."""
+    Yields a temporary folder beside ``out_dir`` (with the cvsim marker file
+    in it); when the block ends without an error it is renamed to ``out_dir``,
+    replacing an earlier cvsim output folder there; on an error it is removed.
+    A folder that cvsim did not write is never replaced.
+    """
     out_dir = Path(out_dir)
     parent = out_dir.parent
     if out_dir.exists() and (not out_dir.is_dir() or (
@@ -268,23 +276,7 @@ def write_run_outputs(result: Result, out_dir: Path, plots: bool = True,
         raise OutputError(f"cannot create the output folder '{out_dir}': {exc.strerror}") from None
     try:
         (tmp / MARKER).write_text("written by cvsim; this folder is replaced on the next run\n")
-        write_csv(result, tmp / "history.csv")
-        write_csv(result, tmp / "steps.csv", fine=True)
-        (tmp / "summary.txt").write_text(summary_text(result), encoding="utf-8")
-        write_summary_json(result, tmp / "summary.json")
-        if echo is not None:
-            (tmp / "inputs.txt").write_text(echo_text(result, echo), encoding="utf-8")
-        drawn = None  # plots for the report: None = the report draws its own
-        if plots:
-            drawn = []
-            if len(result.data) > 1:
-                from .plot import plot_run
-                drawn = plot_run(result, tmp)
-        for name, text in (extra_files or {}).items():
-            (tmp / name).write_text(text, encoding="utf-8")
-        if report:
-            from .report import write_run_report
-            write_run_report(result, tmp / "report.html", scenario, plots=drawn)
+        yield tmp
         if out_dir.exists():
             old = Path(tempfile.mkdtemp(prefix=f".{out_dir.name}.old-", dir=parent))
             os.rename(out_dir, old / "x")
@@ -298,7 +290,45 @@ def write_run_outputs(result: Result, out_dir: Path, plots: bool = True,
     except BaseException:
         shutil.rmtree(tmp, ignore_errors=True)
         raise
+
+
+def write_run_outputs(result: Result, out_dir: Path, plots: bool = True,
+                      echo: list | None = None, report: bool = False,
+                      scenario=None, extra_files: dict | None = None) -> list[Path]:
+    """Write history.csv, steps.csv, summary.txt, summary.json, inputs.txt and
+    plots into ``out_dir``, atomically: all of them or none.
+
+    With ``report``, also report.html, the calculation report
+    (:mod:`cvsim.report`) of ``result`` and its ``scenario``. ``extra_files``
+    maps further file names to their text (written in the same atomic step)."""
+    out_dir = Path(out_dir)
+    with atomic_folder(out_dir) as tmp:
+        write_run_files(result, tmp, plots=plots, echo=echo, report=report,
+                        scenario=scenario, extra_files=extra_files)
     return sorted(out_dir.iterdir())
+
+
+def write_run_files(result: Result, folder: Path, plots: bool = True,
+                    echo: list | None = None, report: bool = False, scenario=None,
+                    extra_files: dict | None = None) -> None:
+    """The files of :func:`write_run_outputs`, written into an existing folder."""
+    write_csv(result, folder / "history.csv")
+    write_csv(result, folder / "steps.csv", fine=True)
+    (folder / "summary.txt").write_text(summary_text(result), encoding="utf-8")
+    write_summary_json(result, folder / "summary.json")
+    if echo is not None:
+        (folder / "inputs.txt").write_text(echo_text(result, echo), encoding="utf-8")
+    drawn = None  # plots for the report: None = the report draws its own
+    if plots:
+        drawn = []
+        if len(result.data) > 1:
+            from .plot import plot_run
+            drawn = plot_run(result, folder)
+    for name, text in (extra_files or {}).items():
+        (folder / name).write_text(text, encoding="utf-8")
+    if report:
+        from .report import write_run_report
+        write_run_report(result, folder / "report.html", scenario, plots=drawn)
 
 
 def echo_text(result: Result, echo: list) -> str:

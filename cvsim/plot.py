@@ -538,22 +538,31 @@ def _hits_boxes(boxes, box) -> bool:
 
 @contextlib.contextmanager
 def _figure(size: tuple[float, float], view: _View):
-    """A figure on the Agg canvas with the header and footer drawn and the
-    space between them left to the panels; cleared on leaving."""
+    """A figure for a run (see :func:`figure`)."""
+    with figure(size, view.result.network.title or "cvsim run", view.subtitle(),
+                alarm=view.result.status == "failed") as fig:
+        yield fig
+
+
+@contextlib.contextmanager
+def figure(size: tuple[float, float], title: str, subtitle: str, alarm: bool = False):
+    """A figure on the Agg canvas with the header (title, subtitle in dark red
+    when ``alarm``) and footer (caution, version) drawn and the space between
+    them left to the panels; cleared on leaving."""
     from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
 
     fig = Figure(figsize=size, dpi=DPI, layout="constrained")
     FigureCanvasAgg(fig)
     try:
-        top, bottom = _frame(fig, view)
+        top, bottom = _frame(fig, title, subtitle, alarm)
         fig.get_layout_engine().set(rect=(0.0, bottom, 1.0, top - bottom))
         yield fig
     finally:
         fig.clear()
 
 
-def _frame(fig, view: _View) -> tuple[float, float]:
+def _frame(fig, title_text: str, subtitle: str, alarm: bool) -> tuple[float, float]:
     """Draw title, subtitle and footer; return the free band (top, bottom) as
     fractions of the figure height."""
     width, height = fig.get_size_inches()
@@ -561,13 +570,13 @@ def _frame(fig, view: _View) -> tuple[float, float]:
     to_frac = 1.0 / (72.0 * height)
     spacing = 1.25
 
-    title = _wrap(view.result.network.title or "cvsim run", width, TITLE_PT, bold=True)
-    sub = _wrap(view.subtitle(), width, SUBTITLE_PT)
+    title = _wrap(title_text, width, TITLE_PT, bold=True)
+    sub = _wrap(subtitle, width, SUBTITLE_PT)
     y = 1.0 - pad * to_frac
     fig.text(0.5, y, "\n".join(title), ha="center", va="top", fontsize=TITLE_PT,
              fontweight="bold", linespacing=spacing)
     y -= len(title) * TITLE_PT * spacing * to_frac + 0.25 * pad * to_frac
-    colour = "#A00000" if view.result.status == "failed" else "0.15"
+    colour = "#A00000" if alarm else "0.15"
     fig.text(0.5, y, "\n".join(sub), ha="center", va="top", fontsize=SUBTITLE_PT,
              color=colour, linespacing=spacing)
     y -= len(sub) * SUBTITLE_PT * spacing * to_frac + pad * to_frac

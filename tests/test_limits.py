@@ -123,3 +123,17 @@ def test_limit_input_errors_name_the_key():
     text = str(err.value)
     assert "vessels.tank.limits.accumulation" in text
     assert "vessels.tank.limits.depressure" in text
+
+
+def test_every_check_has_a_short_stable_key():
+    # the keys name the scenario's limits: keys, so that sweep columns and target-seeking
+    # requirements can refer to a check (cvsim.outcomes)
+    t = np.array([0.0, 10.0])
+    lim = nw.VesselLimits(design_pressure=ATM + 12e5, accumulation=0.10,
+                          min_metal_temperature=243.15, max_temperature=330.0,
+                          depressure_to=ATM + 5e5, depressure_within=20.0)
+    walls = {"v.wall.inner": np.array([290.0, 280.0])}
+    keys = [c.key for c in check_vessel("v", lim, ATM, t, ATM + np.array([10e5, 4e5]),
+                                        np.array([288.0, 250.0]), walls)]
+    assert keys == ["design_pressure", "min_metal_temperature", "min_metal_temperature.gas",
+                    "max_temperature", "max_temperature.wall.inner", "depressure"]

@@ -10,9 +10,10 @@ Problems in a file are raised together as one
 ``docs/scenario-format.md``, rendered from the schema by
 :func:`cvsim.scenario.schema.format_reference`.
 """
-from .build import Scenario, build_network, load_scenario, load_scenario_text
+from .build import (Scenario, build_network, load_scenario, load_scenario_bytes,
+                    load_scenario_text)
 from .schema import format_reference
 from .spec import EchoRow
 
 __all__ = ["EchoRow", "Scenario", "build_network", "format_reference", "load_scenario",
-           "load_scenario_text"]
+           "load_scenario_bytes", "load_scenario_text"]

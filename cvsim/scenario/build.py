@@ -60,12 +60,23 @@ def load_scenario(path, overrides: dict | None = None) -> Scenario:
     except OSError as exc:
         raise ScenarioError([Problem("", f"cannot read the file: {exc.strerror or exc}")],
                             str(path)) from None
+    return load_scenario_bytes(data, str(path), overrides)
+
+
+def load_scenario_bytes(data: bytes, source_name: str, overrides: dict | None = None
+                        ) -> Scenario:
+    """Read a scenario from the bytes of a file (UTF-8) read earlier.
+
+    The hash is that of the bytes, as for :func:`load_scenario`; sweeps send a
+    file's bytes to worker processes or machines that cannot see the file.
+    """
     try:
         text = data.decode("utf-8-sig")
     except UnicodeDecodeError as exc:
         raise ScenarioError([Problem("", f"the file is not UTF-8 text ({exc.reason} at byte "
-                                         f"{exc.start}); save it as UTF-8")], str(path)) from None
-    return _load(text, str(path), hashlib.sha256(data).hexdigest(), overrides)
+                                         f"{exc.start}); save it as UTF-8")],
+                            source_name) from None
+    return _load(text, source_name, hashlib.sha256(data).hexdigest(), overrides)
 
 
 def load_scenario_text(text: str, source_name: str = "<text>",

@@ -1,0 +1,196 @@
+"""Command line for studies: ``cvsim sweep``, ``cvsim find``, ``cvsim outcomes``.
+
+Kept apart from :mod:`cvsim.cli` (which adds these commands to its parser) so
+that the run commands and the study commands can change independently.
+Heavy libraries are imported inside the commands, as in :mod:`cvsim.cli`.
+"""
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+
+SWEEP_HELP = """\
+Run a scenario for many values of one or more of its keys, in parallel, and
+write a table (sweep.csv, sweep.json, sweep.txt) and a plot (sweep.png) of
+outcomes against the first varied key. Several --vary make a grid (every
+combination). A case that fails is a row with its error; the sweep goes on.
+
+values (units as in the scenario file):
+  a list          --vary links.orifice.diameter="10 mm, 15 mm, 20 mm"
+  a range         --vary links.orifice.diameter="10 mm:30 mm:9"      (9 values, ends included)
+  a log range     --vary links.orifice.diameter="log:5 mm:50 mm:7"
+  mixed           --vary links.orifice.diameter="8 mm, 10 mm:30 mm:5"
+  words, mappings --vary run.solver.method="LSODA, BDF"
+
+Local worker processes are used by default (one per CPU); --cluster runs the
+cases on a Dask cluster instead (pip install 'cvsim[cluster]'). Exit status:
+0 when the table is written, 1 when every case failed, 2 for a wrong option."""
+
+SWEEP_EXAMPLES = """\
+examples:
+  cvsim sweep scenarios/separator-depressuring.yaml --vary links.orifice.diameter="10 mm:30 mm:11"
+  cvsim sweep scenarios/nitrogen-blowdown.yaml --vary links.vent.diameter="6 mm, 8 mm, 10 mm" \\
+      --vary vessels.receiver.initial.temperature="-10 degC, 15 degC, 40 degC" \\
+      --plot receiver.min_temperature --plot end_time --out results/grid
+  cvsim sweep scenarios/nitrogen-blowdown.yaml --vary links.vent.diameter="log:2 mm:40 mm:9" \\
+      --cluster tcp://10.0.0.5:8786
+  cvsim outcomes scenarios/nitrogen-blowdown.yaml      # names for --plot and --meet
+"""
+
+FIND_HELP = """\
+Find the smallest (--smallest) or largest (--largest) value of one scenario key
+that meets every requirement given with --meet: a coarse scan of the range in
+parallel, then a bracketing root finder on the margin over whole simulations.
+The answer is a value that was simulated and met; the bracket's other end was
+simulated and did not. Writes seek.txt, seek.json, every simulation in
+cases.csv and cases.png, and the full outputs of a run at the answer in run/.
+
+requirements (--meet, repeatable; all must hold):
+  limits                                  every design limit the scenario states
+  limits:temperature                      only those on a temperature (or pressure, time)
+  separator.limits                        only those of one vessel
+  separator.limit.depressure              one limit check (names: cvsim outcomes SCENARIO)
+  "separator.min_temperature >= -46 degC" an outcome against a value (>=, <=, >, <)
+  "end_time <= 15 min"
+
+Exit status: 0 when the crossing was found, 1 when not (nothing in the range
+meets, or the end of the range already meets), 2 for a wrong option."""
+
+FIND_EXAMPLES = """\
+examples:
+  cvsim find scenarios/separator-depressuring.yaml --vary links.orifice.diameter="10 mm:30 mm" \\
+      --smallest --meet limits
+  cvsim find scenarios/nitrogen-blowdown.yaml --vary links.vent.diameter="4 mm:30 mm" \\
+      --largest --meet "receiver.min_temperature >= -60 degC" --tolerance 0.5%
+"""
+
+
+def _workers(p: argparse.ArgumentParser) -> None:
+    g = p.add_mutually_exclusive_group()
+    g.add_argument("--workers", type=int, default=None, metavar="N",
+                   help="local worker processes (default: one per CPU)")
+    g.add_argument("--cluster", default=None, metavar="ADDRESS",
+                   help="run on a Dask cluster, e.g. tcp://host:8786 (needs cvsim[cluster] "
+                   "and cvsim on every worker)")
+
+
+def _common(p: argparse.ArgumentParser) -> None:
+    p.add_argument("scenario", type=Path, help="scenario file (YAML)")
+    p.add_argument("--set", dest="overrides", action="append", default=[], metavar="KEY=VALUE",
+                   help="change one scenario value in every case (repeatable)")
+    _workers(p)
+    p.add_argument("--out", type=Path, default=None, help="output folder")
+    p.add_argument("--no-plots", action="store_true", help="skip the PNG plots")
+    p.add_argument("--quiet", action="store_true", help="no progress bar, no table on screen")
+
+
+def add_study_commands(sub) -> None:
+    """Add ``sweep``, ``find`` and ``outcomes`` to the command line's sub-parsers."""
+    fmt = argparse.RawDescriptionHelpFormatter
+    s = sub.add_parser("sweep", help="run a scenario for many values of its keys, in parallel",
+                       description=SWEEP_HELP, epilog=SWEEP_EXAMPLES, formatter_class=fmt)
+    _common(s)
+    s.add_argument("--vary", action="append", default=[], metavar="KEY=VALUES", required=True,
+                   help="a key path and its values (repeatable: a grid)")
+    s.add_argument("--plot", dest="plot", action="append", default=None, metavar="OUTCOME",
+                   help="an outcome to draw against the first varied key (repeatable; "
+                   "default: temperatures, peak pressure, limits and end time that change)")
+
+    f = sub.add_parser("find", help="find the smallest or largest value that meets requirements",
+                       description=FIND_HELP, epilog=FIND_EXAMPLES, formatter_class=fmt)
+    _common(f)
+    f.add_argument("--vary", required=True, metavar="KEY=RANGE",
+                   help="the key to search and its range, e.g. "
+                   "links.orifice.diameter='10 mm:30 mm' (':COUNT' sets the scan points; "
+                   "'log:' scans in log)")
+    goal = f.add_mutually_exclusive_group(required=True)
+    goal.add_argument("--smallest", dest="goal", action="store_const", const="smallest",
+                      help="the smallest value that meets the requirements")
+    goal.add_argument("--largest", dest="goal", action="store_const", const="largest",
+                      help="the largest value that meets the requirements")
+    f.add_argument("--meet", action="append", default=None, metavar="REQUIREMENT",
+                   help="a requirement (repeatable; default: limits)")
+    f.add_argument("--tolerance", default="0.1 %", metavar="FRACTION",
+                   help="relative width of the final bracket, e.g. '0.1 %%' (default) or 0.005")
+    f.add_argument("--max-runs", type=int, default=None, metavar="N",
+                   help="most simulations, scan included (default 40)")
+    f.add_argument("--no-run", action="store_true",
+                   help="do not write the full outputs of a run at the answer (run/)")
+
+    o = sub.add_parser("outcomes", help="list the outcome names of a scenario (for --plot, --meet)",
+                       description="List the outcomes a run of the scenario gives, with their "
+                       "units: the names sweep columns, --plot and --meet use.")
+    o.add_argument("scenario", type=Path, help="scenario file (YAML)")
+
+
+def _progress(args) -> bool:
+    return not args.quiet and sys.stderr.isatty()
+
+
+def cmd_sweep(args) -> int:
+    from ..cli import _overrides
+    from .sweep import check_distinct, parse_vary, sweep
+    params = [parse_vary(v) for v in args.vary]
+    check_distinct(params)
+    result = sweep(args.scenario, {p.key: p.spec for p in params}, workers=args.workers,
+                   cluster=args.cluster, progress=_progress(args),
+                   overrides=_overrides(args.overrides), plot=args.plot)
+    out = args.out or Path("results") / f"{args.scenario.stem}-sweep"
+    result.write(out, plots=not args.no_plots)
+    if not args.quiet:
+        print(result.text())
+    print(f"Table and plot written to {out}/")
+    c = result.counts()
+    if c["failed"] == len(result.rows):
+        print(f"cvsim: every case failed; the first: {result.rows[0]['error']}", file=sys.stderr)
+        return 1
+    if c["failed"]:
+        print(f"cvsim: {c['failed']} of {len(result.rows)} cases failed (see the table)",
+              file=sys.stderr)
+    return 0
+
+
+def cmd_find(args) -> int:
+    from ..cli import _overrides
+    from ..errors import StudyError
+    from .seek import MAX_RUNS, seek
+    from .sweep import parse_vary
+    from ..units import UnitsError, parse_quantity
+    try:
+        tolerance = parse_quantity(args.tolerance, "fraction")
+    except UnitsError as exc:
+        raise StudyError(f"--tolerance: {exc}") from None
+    param = parse_vary(args.vary, need_count=False)
+    result = seek(args.scenario, {param.key: param.spec}, meet=args.meet or "limits",
+                  goal=args.goal, workers=args.workers, cluster=args.cluster,
+                  tolerance=tolerance, max_runs=args.max_runs or MAX_RUNS,
+                  progress=_progress(args), overrides=_overrides(args.overrides))
+    out = args.out or Path("results") / f"{args.scenario.stem}-find"
+    result.write(out, plots=not args.no_plots, run=not args.no_run)
+    if not args.quiet:
+        print(result.text())
+    print(f"Results written to {out}/")
+    if result.status != "found":
+        print(f"cvsim: {result.message}", file=sys.stderr)
+        return 1
+    return 0
+
+
+def cmd_outcomes(args) -> int:
+    from .outcomes import outcome_list
+    from ..scenario import load_scenario
+    from .table import Column
+    scenario = load_scenario(args.scenario)
+    outcomes = outcome_list(scenario.network)
+    w = max(len(o.name) for o in outcomes)
+    print(f"Outcomes of {args.scenario} (units as in sweep.csv):")
+    for o in outcomes:
+        unit = Column(o.name, o.unit, o.kind, difference=o.difference).shown()[0]
+        print(f"  {o.name:<{w}}  {('[' + unit + ']') if unit else '':<9} {o.text}")
+    print("Limit checks of walls (when modelled) add names such as "
+          "<vessel>.limit.max_temperature.<wall>.")
+    return 0
+
+
+STUDY_COMMANDS = {"sweep": cmd_sweep, "find": cmd_find, "outcomes": cmd_outcomes}
