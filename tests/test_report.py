@@ -499,3 +499,20 @@ def test_chromium_reads_the_sweep_report(sweep_files, tmp_path):
     dom = chromium(tmp_path, "--dump-dom", page.resolve().as_uri()).stdout.decode("utf-8")
     assert set(SWEEP_SECTIONS) <= set(re.findall(r'\bid="([^"]+)"', dom))
     assert html.escape("LIMIT CROSSED") in dom
+
+
+def test_sweep_command_writes_a_study_report(tmp_path):
+    from cvsim.cli import main
+    root = Path(__file__).resolve().parents[1]
+    out = tmp_path / "sweep"
+    code = main(["sweep", str(root / "scenarios" / "separator-depressuring.yaml"), "--vary",
+                 "links.orifice.diameter=14 mm, 20 mm", "--out", str(out), "--report",
+                 "--quiet", "--workers", "1"])
+    assert code == 0
+    html = (out / "report.html").read_text()
+    for section in ('id="job"', 'id="cases"', 'id="plots"', 'id="caution-top"',
+                    'id="inputs-given"'):
+        assert section in html
+    assert "data:image/png;base64," in html
+    assert "LIMIT CROSSED" in html  # 14 mm is too slow for the 15-minute guideline
+    assert "http://" not in html and "https://" not in html

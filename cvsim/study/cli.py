@@ -82,6 +82,8 @@ def _common(p: argparse.ArgumentParser) -> None:
     _workers(p)
     p.add_argument("--out", type=Path, default=None, help="output folder")
     p.add_argument("--no-plots", action="store_true", help="skip the PNG plots")
+    p.add_argument("--report", action="store_true",
+                   help="also write report.html, the calculation report of the study")
     p.add_argument("--quiet", action="store_true", help="no progress bar, no table on screen")
 
 
@@ -138,6 +140,15 @@ def cmd_sweep(args) -> int:
                    overrides=_overrides(args.overrides), plot=args.plot)
     out = args.out or Path("results") / f"{args.scenario.stem}-sweep"
     result.write(out, plots=not args.no_plots)
+    if args.report:
+        from ..scenario import load_scenario
+        from .report import write_study_report
+        scenario = load_scenario(args.scenario, overrides=_overrides(args.overrides))
+        notes = [f"{len(result.rows)} cases: {result.counts()}; ran on {result.ran_on} in "
+                 f"{result.wall_time:.3g} s."]
+        write_study_report(out / "report.html", result, scenario,
+                           title=f"Sweep: {result.title}", notes=notes,
+                           images=[p for k, p in result.files.items() if k == "plot"])
     if not args.quiet:
         print(result.text())
     print(f"Table and plot written to {out}/")
@@ -168,6 +179,26 @@ def cmd_find(args) -> int:
                   progress=_progress(args), overrides=_overrides(args.overrides))
     out = args.out or Path("results") / f"{args.scenario.stem}-find"
     result.write(out, plots=not args.no_plots, run=not args.no_run)
+    if args.report:
+        from ..scenario import load_scenario
+        from .report import write_study_report
+        scenario = load_scenario(args.scenario, overrides=_overrides(args.overrides))
+        answer = (f"{result.goal} {result.key} meeting the requirements: {result.value}"
+                  if result.value is not None else f"no value found ({result.status})")
+        notes = [f"Requirements: {'; '.join(result.requirements)}.", f"Answer: {answer}.",
+                 f"Bracket: {result.bracket}; {result.simulations} simulations in "
+                 f"{result.rounds} rounds; tolerance {result.tolerance:g}.",
+                 f"Binding check at the answer: {result.binding}."]
+        notes += [f"{m[0]}: {'met' if m[1] else 'CROSSED'}, margin {m[2]:.4g} {m[3]}"
+                  for m in result.margins]
+        images = [p for k, p in result.files.items() if k == "plot"]
+        overview = out / "run" / "overview.png"
+        if overview.exists():
+            images.append((overview, f"Run at the answer, {result.key} = {result.value}"))
+        write_study_report(out / "report.html", result.cases, scenario,
+                           title=f"Search for the {result.goal} {result.key}: "
+                           f"{result.cases.title}",
+                           notes=notes, images=images)
     if not args.quiet:
         print(result.text())
     print(f"Results written to {out}/")
