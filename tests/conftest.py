@@ -33,6 +33,20 @@ def blowdown_network(fluid, p0, T0, volume=1.0, d=0.01, cd=0.84, flow_model="rea
                            method=method))
 
 
+#: a scenario that cannot finish: adiabatic nitrogen vented into vacuum cools to the
+#: triple point, where solid would form (the run must fail with a clear message)
+COLD_BLOWDOWN = """
+fluid: Nitrogen
+vessels:
+  tank: {volume: 0.05 m3, initial: {pressure: 20 bara, temperature: -150 degC}}
+reservoirs:
+  vacuum: {pressure: 100 Pa, temperature: 15 degC}
+links:
+  vent: {from: tank, to: vacuum, device: orifice, diameter: 20 mm, discharge_coefficient: 1}
+run: {end: 1 h}
+"""
+
+
 @pytest.fixture
 def air14():
     return ideal_air(1.4)

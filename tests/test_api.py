@@ -4,6 +4,8 @@ import math
 import numpy as np
 import pytest
 
+from conftest import COLD_BLOWDOWN
+
 from cvsim import load_scenario, run
 from cvsim.errors import ScenarioError, SolverError
 
@@ -39,16 +41,7 @@ def test_overrides_with_problems_are_reported_together():
 
 def test_check_true_raises_on_failed_run(tmp_path):
     bad = tmp_path / "cold.yaml"
-    bad.write_text("""
-fluid: Nitrogen
-vessels:
-  tank: {volume: 0.05 m3, initial: {pressure: 20 bara, temperature: -150 degC}}
-reservoirs:
-  vacuum: {pressure: 100 Pa, temperature: 15 degC}
-links:
-  vent: {from: tank, to: vacuum, device: orifice, diameter: 20 mm, discharge_coefficient: 1}
-run: {end: 1 h}
-""")
+    bad.write_text(COLD_BLOWDOWN)
     res = run(bad)
     assert res.status == "failed" and res.message
     with pytest.raises(SolverError):

@@ -5,6 +5,8 @@ from pathlib import Path
 
 import pytest
 
+from conftest import COLD_BLOWDOWN
+
 from cvsim.cli import main
 
 ROOT = Path(__file__).resolve().parents[1]
@@ -98,16 +100,7 @@ def test_a_run_that_fails_writes_nothing(tmp_path, capsys):
     # adiabatic nitrogen blowdown into vacuum runs below the triple point: the solver
     # cannot go on, the message names the vessel and the state, no files are written
     path = tmp_path / "cold.yaml"
-    path.write_text("""
-fluid: Nitrogen
-vessels:
-  tank: {volume: 0.05 m3, initial: {pressure: 20 bara, temperature: -150 degC}}
-reservoirs:
-  vacuum: {pressure: 100 Pa, temperature: 15 degC}
-links:
-  vent: {from: tank, to: vacuum, device: orifice, diameter: 20 mm, discharge_coefficient: 1}
-run: {end: 1 h}
-""")
+    path.write_text(COLD_BLOWDOWN)
     out = tmp_path / "out"
     code = main(["run", str(path), "--out", str(out), "--quiet"])
     err = capsys.readouterr().err

@@ -16,10 +16,9 @@ from .base import NO_FLOW, Flow, Switch
 from .orifice import OrificeDevice
 
 
-class BurstingDiscDevice(OrificeDevice):
-    """A bursting (rupture) disc: shut, then once burst an open orifice for the rest of the run."""
+class _PressureMovedOrifice(OrificeDevice):
+    """An orifice moved by pressure (a discrete state), never by a schedule."""
 
-    kind = "bursting-disc"
     has_opening = True
 
     def breakpoints(self):
@@ -27,6 +26,12 @@ class BurstingDiscDevice(OrificeDevice):
 
     def schedule(self):
         return []
+
+
+class BurstingDiscDevice(_PressureMovedOrifice):
+    """A bursting (rupture) disc: shut, then once burst an open orifice for the rest of the run."""
+
+    kind = "bursting-disc"
 
     def initial_discrete(self, snapshot):
         return {self.key("burst"): snapshot.states[self.source].p >= self.d.burst_pressure}
@@ -61,17 +66,10 @@ class BurstingDiscDevice(OrificeDevice):
                 "as an orifice with the stated discharge coefficient, both ways, for good."]
 
 
-class CheckValveDevice(OrificeDevice):
+class CheckValveDevice(_PressureMovedOrifice):
     """A check (non-return) valve: one-way orifice with a cracking pressure."""
 
     kind = "check-valve"
-    has_opening = True
-
-    def breakpoints(self):
-        return ()
-
-    def schedule(self):
-        return []
 
     def initial_discrete(self, snapshot):
         dp = snapshot.states[self.source].p - snapshot.states[self.target].p
