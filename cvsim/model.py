@@ -117,6 +117,7 @@ class Model:
 
         # links
         self.links = list(network.links)
+        self.draws_liquid = any(link.draws == "liquid" for link in self.links)
         self.devices = []
         for i, link in enumerate(self.links):
             cls = DEVICE_TYPES[type(link.device)]
@@ -150,11 +151,25 @@ class Model:
         out = []
         for v in self.network.vessels:
             try:
-                out.append(self.fluid.state_pt(v.initial.pressure, v.initial.temperature))
+                if v.initial.liquid_fraction is None:
+                    out.append(self.fluid.state_pt(v.initial.pressure, v.initial.temperature))
+                else:
+                    out.append(self._saturated_mixture(v.initial.pressure,
+                                                       v.initial.liquid_fraction))
             except StateError as exc:
                 raise StateError(f"initial state: {exc.detail}", where=f"vessel '{v.name}'",
                                  time=0.0) from None
         return out
+
+    def _saturated_mixture(self, p: float, liquid_fraction: float):
+        """Two-phase contents at pressure p [Pa] with a volume fraction of liquid:
+        rho = f rho_l + (1 - f) rho_v, u = (f rho_l u_l + (1 - f) rho_v u_v) / rho."""
+        liq = self.fluid.saturated_liquid_at_p(p)
+        vap = self.fluid.saturated_vapour_at_p(p)
+        f = liquid_fraction
+        rho = f * liq.rho + (1.0 - f) * vap.rho
+        u = (f * liq.rho * liq.u + (1.0 - f) * vap.rho * vap.u) / rho
+        return self.fluid.state_du(rho, u, liq.T)
 
     def y0(self) -> np.ndarray:
         y = np.zeros(self.n_states)
@@ -322,14 +337,18 @@ class Model:
 
 class States:
     """Node states at one (t, y): vessels first, then reservoirs; ``outflow``
-    are the states a stream leaving each node carries."""
+    are the states a stream leaving each node carries through a top outlet
+    (vapour when two phases are present), ``liquid`` those through a bottom
+    outlet (saturated liquid when two phases are present; ``None`` when no link
+    draws liquid)."""
 
-    __slots__ = ("t", "states", "outflow")
+    __slots__ = ("t", "states", "outflow", "liquid")
 
-    def __init__(self, t, states, outflow):
+    def __init__(self, t, states, outflow, liquid=None):
         self.t = t
         self.states = states
         self.outflow = outflow
+        self.liquid = liquid
 
 
 class Segment:
@@ -389,13 +408,19 @@ class Segment:
                 outflow.append(fluid.saturated_vapour_at_p(st.p))
             else:
                 outflow.append(st)
+        liquid = None
+        if m.draws_liquid:
+            liquid = [fluid.saturated_liquid_at_p(st.p) if st.two_phase else st
+                      for st in states]
         for r in m.reservoirs:
             p = self.signal(r.pressure, t)
             T = self.signal(r.temperature, t)
             st = m.reservoir_state(p, T, r.name, t)
             states.append(st)
             outflow.append(st)
-        s = States(t, states, outflow)
+            if liquid is not None:
+                liquid.append(st)
+        s = States(t, states, outflow, liquid)
         self._key, self._states = key, s
         return s
 
@@ -415,8 +440,9 @@ class Segment:
             if gate is not None and self.discrete[gate[0]][0] != gate[1]:
                 flows.append(NO_FLOW)  # a link of a sequence whose step is not active
                 continue
+            source = s.liquid if self.model.links[d.index].draws == "liquid" else s.outflow
             try:
-                flows.append(d.flow(t, s.outflow[d.source], s.outflow[d.target], self))
+                flows.append(d.flow(t, source[d.source], s.outflow[d.target], self))
             except StateError as exc:
                 name = self.model.links[d.index].name
                 raise StateError(exc.detail, where=f"link '{name}'", time=t) from None

@@ -96,10 +96,16 @@ HeatTerm = HeatLoad | AmbientExchange
 
 @dataclass(frozen=True)
 class InitialState:
-    """Initial state of a vessel's contents: pressure [Pa] and temperature [K]."""
+    """Initial state of a vessel's contents: pressure [Pa] and temperature [K].
+
+    liquid_fraction  [-] volume fraction of saturated liquid for two-phase contents
+                     (``pressure`` and ``temperature`` are then on the saturation
+                     line); ``None``: single phase at (pressure, temperature)
+    """
 
     pressure: float
     temperature: float
+    liquid_fraction: float | None = None
 
 
 @dataclass(frozen=True)
@@ -271,12 +277,18 @@ Device = Orifice | FixedFlow | ControlValve | ReliefValve | BurstingDisc | Check
 
 @dataclass(frozen=True)
 class Link:
-    """A flow device between two nodes; positive flow goes ``source`` -> ``target``."""
+    """A flow device between two nodes; positive flow goes ``source`` -> ``target``.
+
+    draws  what leaves the ``source`` vessel through this link when two phases are
+           present in it: ``vapour`` (an outlet at the top) or ``liquid`` (at the
+           bottom). A stream leaving the ``target`` (reverse flow) draws vapour.
+    """
 
     name: str
     source: str
     target: str
     device: Device
+    draws: str = "vapour"
 
 
 # ---------------------------------------------------------------- sequences

@@ -339,8 +339,12 @@ def assumptions(model: Model) -> list[str]:
                    f"(M = {fl.molar_mass * 1000:.4f} g/mol, cp = {fl.cp:.1f} J/(kg K), "
                    f"gamma = {fl.gamma:.4f}).")
     out.append("Vessels are rigid and their contents well mixed (one uniform state per vessel).")
-    out.append("A stream leaving a vessel carries the vessel's specific enthalpy; with two phases "
-               "present the outlet draws saturated vapour.")
+    out.append("A stream leaving a vessel carries the specific enthalpy of what it draws: the "
+               "vessel's contents while single phase; with two phases present, saturated "
+               "vapour"
+               + (" (saturated liquid through links that draw liquid: "
+                  + ", ".join(k.name for k in net.links if k.draws == "liquid") + ")"
+                  if any(k.draws == "liquid" for k in net.links) else "") + ".")
     kinds = {type(link.device).__name__ for link in net.links}
     if "Orifice" in kinds:
         models = sorted({link.device.flow_model for link in net.links

@@ -158,7 +158,8 @@ def build_network(values, ctx: Context) -> Network | None:
     links = []
     for name, v in (values["links"] or {}).items():
         device = v.variant.build(v, ctx)
-        links.append(Link(name=name, source=v["from"], target=v["to"], device=device))
+        links.append(Link(name=name, source=v["from"], target=v["to"], device=device,
+                          draws=v["draws"]))
     linked = {n for link in links for n in (link.source, link.target)}
     for vessel in vessels:
         if vessel.name not in linked:

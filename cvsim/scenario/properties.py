@@ -77,3 +77,25 @@ def basis_density(fluid: FluidSpec, pressure: float, temperature: float) -> floa
         raise FluidError(f"{fluid.name} is {phase} at the basis ({pressure:g} Pa, "
                          f"{temperature:g} K); give the flow as a mass flow")
     return rho
+
+
+def saturation(fluid: FluidSpec, pressure: float | None = None,
+               temperature: float | None = None) -> tuple[float, float]:
+    """(pressure [Pa], temperature [K]) on the saturation line of a real fluid, from one
+    of them. Raises :class:`FluidError` outside the two-phase range (above the critical
+    point, below the triple point) or for the ideal-gas model, which has no saturation."""
+    if fluid.model != "real":
+        raise FluidError("two-phase contents need properties: real (an ideal gas has no "
+                         "liquid)")
+    CP = _coolprop()
+    try:
+        if pressure is not None:
+            return pressure, CP.PropsSI("T", "P", pressure, "Q", 0, fluid.name)
+        return CP.PropsSI("P", "T", temperature, "Q", 0, fluid.name), temperature
+    except ValueError:
+        Tc = CP.PropsSI("Tcrit", fluid.name)
+        pc = CP.PropsSI("pcrit", fluid.name)
+        Tt = CP.PropsSI("Ttriple", fluid.name)
+        raise FluidError(f"{fluid.name} has two phases only between its triple point "
+                         f"({Tt:.6g} K) and its critical point ({Tc:.6g} K, {pc / 1e5:.6g} "
+                         "bar a); give a pressure or temperature in that range") from None

@@ -131,6 +131,10 @@ LINK = Section(
         Field("from", Node(), "Upstream node (for positive flow).", required=True),
         Field("to", Node(), "Downstream node.", required=True),
         Field("device", Choice(DEVICES), "Flow device kind.", required=True),
+        Field("draws", Choice(("vapour", "liquid")),
+              "What leaves the `from` vessel through this link while it holds two "
+              "phases: `vapour` (top outlet) or `liquid` (bottom outlet, flashing through "
+              "the device). Reverse flow draws vapour.", default="vapour"),
     ),
     variant=("device", DEVICES),
     checks=(_check_link,),

@@ -6,8 +6,10 @@ registered :class:`~cvsim.scenario.registry.HeatTermKind`.
 """
 from __future__ import annotations
 
+from ..errors import FluidError
 from ..heat import geometry as geo
 from ..network import AmbientExchange, Geometry, HeatLoad, InitialState, Reservoir, Vessel
+from . import properties
 from .limits import LIMITS_FIELD, build_limits
 from .registry import HEAT_TERMS, SHAPES, HeatTermKind, register_heat_term, register_shape
 from .spec import BAD, Choice, Field, Quantity, Section, Sub, Variant
@@ -141,15 +143,53 @@ HEAT = Section(
 
 # ----------------------------------------------------------- vessel, reservoir
 
+def _check_initial(values, ctx) -> None:
+    given = [n for n in ("pressure", "temperature") if values.get(n) is not None]
+    if values.get("liquid_fraction") is None:
+        for n in ("pressure", "temperature"):
+            if n not in given:
+                ctx.problem(values.at, f"missing key '{n}' in {values.at.key}: give pressure "
+                            "and temperature (single phase), or one of them with "
+                            "liquid_fraction (two-phase contents)")
+    elif len(given) != 1:
+        ctx.problem(values.at, f"with liquid_fraction give pressure or temperature, not both, "
+                    f"in {values.at.key}: two-phase contents sit on the saturation line")
+
+
 INITIAL = Section(
     "initial",
-    "State of a vessel's contents at time 0.",
+    "State of a vessel's contents at time 0: pressure and temperature (single phase), or "
+    "saturated two-phase contents given by pressure or temperature and the liquid's "
+    "share of the volume.",
     fields=(
-        Field("pressure", Quantity("pressure"), "Initial pressure.", required=True),
-        Field("temperature", Quantity("temperature"), "Initial gas temperature.",
-              required=True),
+        Field("pressure", Quantity("pressure"), "Initial pressure."),
+        Field("temperature", Quantity("temperature"), "Initial gas temperature."),
+        Field("liquid_fraction", Quantity("fraction", at_least=0.0, at_most=1.0),
+              "Share of the volume filled with saturated liquid (two-phase contents, e.g. "
+              "`40 %`); needs `properties: real`."),
     ),
+    checks=(_check_initial,),
 )
+
+
+def build_initial(values, at, ctx) -> InitialState:
+    """InitialState (SI) from ``initial``; two-phase contents get the saturation
+    pressure or temperature that goes with the one given."""
+    f = values["liquid_fraction"]
+    if f is None:
+        return InitialState(values["pressure"], values["temperature"])
+    try:
+        p, T = properties.saturation(ctx.fluid, values["pressure"], values["temperature"])
+    except FluidError as exc:
+        ctx.problem(at, str(exc))
+        return InitialState(1e5, 300.0, f)
+    if values["pressure"] is None:
+        ctx.record(at.child("pressure", None), "(saturation)", p, "Pa",
+                   "saturation pressure at the temperature given")
+    else:
+        ctx.record(at.child("temperature", None), "(saturation)", T, "K",
+                   "saturation temperature at the pressure given")
+    return InitialState(p, T, f)
 
 
 def _check_vessel(values, ctx) -> None:
@@ -209,7 +249,7 @@ def build_vessel(name: str, values, ctx) -> Vessel:
     terms = tuple(kind.build(heat[key], geometry, heat.where[key], ctx)
                   for key, kind in HEAT_TERMS.items() if heat.get(key) is not None)
     return Vessel(name=name, geometry=geometry,
-                  initial=InitialState(initial["pressure"], initial["temperature"]), heat=terms,
+                  initial=build_initial(initial, values.where["initial"], ctx), heat=terms,
                   limits=build_limits(values["limits"], ctx))
 
 
