@@ -148,8 +148,8 @@ def _check_initial(values, ctx) -> None:
     if values.get("liquid_fraction") is None:
         for n in ("pressure", "temperature"):
             if n not in given:
-                ctx.problem(values.at, f"missing key '{n}' in {values.at.key}: give pressure "
-                            "and temperature (single phase), or one of them with "
+                ctx.problem(values.where[n], f"missing key '{n}' in {values.at.key}: give "
+                            "pressure and temperature (single phase), or one of them with "
                             "liquid_fraction (two-phase contents)")
     elif len(given) != 1:
         ctx.problem(values.at, f"with liquid_fraction give pressure or temperature, not both, "
