@@ -27,15 +27,70 @@ R_UNIVERSAL = 8.314462618  # [J/(mol K)] CODATA 2018 (exact since the 2019 SI)
 
 NAN = float("nan")
 
+#: relative residual tolerance of the (density, u) and (density, s) solves:
+#: |u(rho, T) - u| <= STATE_RTOL (|u| + R T_c), |s(rho, T) - s| <= STATE_RTOL (|s| + R).
+#: Tight, because the solver's finite-difference Jacobian divides state differences
+#: by steps of 1.5e-8 relative: noise of 1e-13 leaves it exact to about 1e-5.
+STATE_RTOL = 1e-13
+#: where the equation of state's own round-off exceeds STATE_RTOL (the bracket has
+#: shrunk to adjacent floating-point temperatures), a residual up to this is accepted
+STATE_RTOL_FLOOR = 1e-10
+MAX_STATE_ITERATIONS = 100
+
+
+def root_on_bracket(fn, lo: float, hi: float, f_lo: float, f_hi: float, tol: float,
+                    max_iter: int = MAX_STATE_ITERATIONS) -> float:
+    """Root of a continuous function on a bracket [lo, hi] with f_lo <= 0 <= f_hi,
+    by false position with the Illinois modification (Dowell & Jarratt, BIT 11
+    (1971) 168), stopped on the residual |fn(x)| <= tol; when the bracket shrinks to
+    machine precision first, its midpoint (the residual is then round-off of fn).
+    """
+    if abs(f_lo) <= tol:
+        return lo
+    if abs(f_hi) <= tol:
+        return hi
+    last = 0
+    x = 0.5 * (lo + hi)
+    for _ in range(max_iter):
+        x = lo - f_lo * (hi - lo) / (f_hi - f_lo)
+        if not (lo < x < hi):
+            x = 0.5 * (lo + hi)
+        f = fn(x)
+        if abs(f) <= tol:
+            return x
+        if f > 0.0:
+            hi, f_hi = x, f
+            if last == 1:
+                f_lo *= 0.5
+            last = 1
+        else:
+            lo, f_lo = x, f
+            if last == -1:
+                f_hi *= 0.5
+            last = -1
+        if hi - lo <= 4e-16 * max(abs(hi), abs(lo)):
+            break
+    return x
+
 
 class State:
-    """One equilibrium state. ``quality`` is the vapour mass fraction in the
-    two-phase region and NaN outside it; ``c`` (speed of sound) and ``cp`` are
-    NaN in the two-phase region, where they are not defined for equilibrium."""
+    """One equilibrium state.
 
-    __slots__ = ("rho", "T", "p", "u", "h", "s", "cp", "cv", "c", "quality")
+    ``quality`` is the vapour mass fraction in the two-phase region and NaN
+    outside it; ``c`` (speed of sound) and ``cp`` are NaN in the two-phase
+    region, where they are not defined for equilibrium. ``phase`` is one of
+    ``gas``, ``liquid``, ``two-phase`` or ``supercritical`` (above the critical
+    temperature or pressure; no liquid level can form). ``liquid_fraction`` is
+    the share of the volume taken by liquid [-]: 0 for gas and supercritical
+    fluid, 1 for liquid, and (1 - x) rho / rho_l in two phases (rho_l: the
+    saturated liquid's density).
+    """
 
-    def __init__(self, rho, T, p, u, h, s, cp, cv, c, quality=NAN):
+    __slots__ = ("rho", "T", "p", "u", "h", "s", "cp", "cv", "c", "quality", "phase",
+                 "liquid_fraction")
+
+    def __init__(self, rho, T, p, u, h, s, cp, cv, c, quality=NAN, phase="gas",
+                 liquid_fraction=0.0):
         self.rho = rho
         self.T = T
         self.p = p
@@ -46,6 +101,8 @@ class State:
         self.cv = cv
         self.c = c
         self.quality = quality
+        self.phase = phase
+        self.liquid_fraction = liquid_fraction
 
     @property
     def two_phase(self) -> bool:
@@ -59,7 +116,7 @@ class State:
     def __repr__(self) -> str:
         q = f", quality={self.quality:.4f}" if self.two_phase else ""
         return (f"State(p={self.p:.6g} Pa, T={self.T:.6g} K, rho={self.rho:.6g} kg/m3, "
-                f"h={self.h:.6g} J/kg{q})")
+                f"h={self.h:.6g} J/kg, {self.phase}{q})")
 
 
 def _cp_module():
@@ -113,7 +170,14 @@ class RealFluid:
         self._DU = CP.DmassUmass_INPUTS
         self._PT = CP.PT_INPUTS
         self._PQ = CP.PQ_INPUTS
+        self._QT = CP.QT_INPUTS
         self._twophase = CP.iphase_twophase
+        self._liquid_phases = (CP.iphase_liquid, CP.iphase_supercritical_liquid)
+        self._supercritical_phases = (CP.iphase_supercritical, CP.iphase_critical_point)
+        self._iD, self._iU, self._iS = CP.iDmass, CP.iUmass, CP.iSmass
+        # a second state object for saturation look-ups, so that they never move
+        # the state being iterated
+        self._sat = CP.AbstractState("HEOS", name)
         a = self._as
         self.molar_mass = a.molar_mass()
         self.t_min = a.Tmin()
@@ -127,15 +191,30 @@ class RealFluid:
         except ValueError:
             self.t_triple = self.t_min
         self.evaluations = 0  # count of equation-of-state evaluations (for benchmarks)
+        R = R_UNIVERSAL / self.molar_mass
+        #: residual tolerances of the state solves (see :meth:`_solve_T`): an
+        #: energy [J/kg] and an entropy [J/(kg K)] scale of this fluid
+        self._u_scale = R * max(self.t_crit, 100.0)
+        self._s_scale = R
 
     # ------------------------------------------------------------- reading
     def _read(self) -> State:
         a = self._as
-        if a.phase() == self._twophase:
-            return State(a.rhomass(), a.T(), a.p(), a.umass(), a.hmass(), a.smass(),
-                         NAN, a.cvmass(), NAN, a.Q())
+        ph = a.phase()
+        if ph == self._twophase:
+            x = a.Q()
+            rho = a.rhomass()
+            lf = (1.0 - x) * rho / a.saturated_liquid_keyed_output(self._iD)
+            return State(rho, a.T(), a.p(), a.umass(), a.hmass(), a.smass(),
+                         NAN, a.cvmass(), NAN, x, "two-phase", lf)
+        if ph in self._liquid_phases:
+            phase, lf = "liquid", 1.0
+        elif ph in self._supercritical_phases:
+            phase, lf = "supercritical", 0.0
+        else:
+            phase, lf = "gas", 0.0
         return State(a.rhomass(), a.T(), a.p(), a.umass(), a.hmass(), a.smass(),
-                     a.cpmass(), a.cvmass(), a.speed_sound())
+                     a.cpmass(), a.cvmass(), a.speed_sound(), NAN, phase, lf)
 
     def _check(self, rho: float, T: float, what: str) -> None:
         if not (rho > 0.0) or not math.isfinite(rho):
@@ -189,88 +268,173 @@ class RealFluid:
     def state_du(self, rho: float, u: float, T_guess: float | None = None) -> State:
         """State from density [kg/m3] and specific internal energy [J/kg].
 
-        Solves u(rho, T) = u for T (see :meth:`_solve_T`), du/dT at constant
-        density being cv. Warm-start it with the previous temperature of the
-        same vessel.
+        Solves u(rho, T) = u for T (see :meth:`_solve_T`), converged on the
+        residual |u(rho, T) - u| <= STATE_RTOL (|u| + R T_c). Warm-start it with the
+        previous temperature of the same vessel.
         """
         if not (rho > 0.0) or not math.isfinite(rho) or not math.isfinite(u):
             raise StateError(f"density {rho:.6g} kg/m3 / internal energy {u:.6g} J/kg is not "
                              "a physical state; the vessel has emptied or the solver "
                              "overshot. Add a stop condition before the vessel empties.")
-        a = self._as
-        T = self._solve_T(rho, u, T_guess, a.umass, 1)
-        if T <= self.t_min * (1 + 1e-9) and a.umass() > u:
-            raise StateError(
-                f"the state (rho = {rho:.6g} kg/m3, u = {u:.6g} J/kg) lies below the lowest "
-                f"temperature of the {self.name} equation of state ({self.t_min:.6g} K); "
-                "solid may form. Stop the run earlier or add heat input.")
-        if T >= self.t_max * (1 - 1e-9) and a.umass() < u:
-            raise StateError(f"the state (rho = {rho:.6g} kg/m3, u = {u:.6g} J/kg) lies above "
-                             f"the highest temperature of the {self.name} equation of state "
-                             f"({self.t_max:.6g} K).")
+        T = self._solve_T(rho, u, T_guess, self._as.umass, "u")
+        if T is None:
+            raise self._unsolved(rho, u, "u")
         st = self._read()
         if st.p > self.p_max:
             raise StateError(f"pressure {st.p / 1e5:.6g} bar is above the highest pressure of "
                              f"the {self.name} equation of state ({self.p_max / 1e5:.6g} bar).")
         return st
 
-    def _solve_T(self, rho: float, target: float, T_guess, read, power: int) -> float:
+    def residual_du(self, rho: float, u: float, st: State) -> float:
+        """Relative residual of a state returned for (rho, u): |u(rho, T) - u| over the
+        fluid's energy scale, recomputed by an independent (rho, T) evaluation.
+        The solve guarantees <= STATE_RTOL_FLOOR; a run's self-check reports the largest."""
+        self._update_dt(rho, st.T)
+        return abs(self._as.umass() - u) / (abs(u) + self._u_scale)
+
+    def _tolerance(self, target: float, kind: str) -> float:
+        if kind == "u":
+            return STATE_RTOL * (abs(target) + self._u_scale)
+        return STATE_RTOL * (abs(target) + self._s_scale)
+
+    def _solve_T(self, rho: float, target: float, T_guess, read, kind: str) -> float | None:
         """Temperature at which ``read()`` (u or s at this density) equals ``target``.
 
-        Both u and s rise with T at constant density (du = cv dT, ds = cv/T dT).
-        Newton with that slope in single phase; in the two-phase region, where
-        the equilibrium slope is not the cv CoolProp reports, secant steps;
-        every step kept inside the bracket learned so far, else bisection.
-        Leaves the AbstractState updated at the returned temperature.
+        Both u and s rise with T at constant density (du = cv dT, ds = cv/T dT,
+        and in two phases with the equilibrium slope). The iteration stops on
+        the residual only: |read() - target| <= STATE_RTOL (|target| + scale).
+
+        Steps: Newton with the single-phase slope cv (cv/T for s); in the
+        two-phase region with the *equilibrium* slope at constant density from
+        saturation states at T +- dT (:meth:`_two_phase_slope`; CoolProp's cv
+        there is not the equilibrium one and can be 1e12 too large). Every step
+        stays inside the bracket learned so far; outside it, false position
+        (Illinois) once both sides are known, else bisection.
+
+        Returns None when no temperature within the equation of state's range
+        meets the residual (the caller explains). Leaves the AbstractState
+        updated at the returned temperature.
         """
         a = self._as
+        tol = self._tolerance(target, kind)
         lo, hi = self.t_min, self.t_max
+        f_lo = f_hi = None
+        last_side = 0
+        err_prev = math.inf
+        best_T, best_err = NAN, math.inf
         T = T_guess if (T_guess is not None and lo < T_guess < hi) else min(300.0, 0.5 * (lo + hi))
-        T_prev = err_prev = None
-        for _ in range(100):
+        for _ in range(MAX_STATE_ITERATIONS):
             self._update_dt(rho, T)
             err = read() - target
-            if err == 0.0:
+            if abs(err) <= tol:
                 return T
-            if err > 0.0:
-                hi = min(hi, T)
+            if abs(err) < best_err:
+                best_T, best_err = T, abs(err)
+            side = 1 if err > 0.0 else -1
+            if side == 1:
+                hi, f_hi = T, err
             else:
-                lo = max(lo, T)
-            if a.phase() == self._twophase and T_prev is not None and err != err_prev:
-                T_new = T - err * (T - T_prev) / (err - err_prev)
+                lo, f_lo = T, err
+            if side == last_side:  # Illinois: the other end is stale, halve its value
+                if side == 1 and f_lo is not None:
+                    f_lo *= 0.5
+                elif side == -1 and f_hi is not None:
+                    f_hi *= 0.5
+            last_side = side
+            if a.phase() == self._twophase:
+                slope = self._two_phase_slope(rho, T, kind)
             else:
                 cv = a.cvmass()
-                slope = cv / T if power == 0 else cv
-                T_new = T - err / slope if slope > 0.0 else 0.5 * (lo + hi)
-            if not (lo < T_new < hi):
-                T_new = 0.5 * (lo + hi)
-            if abs(T_new - T) <= 1e-12 * T or hi - lo <= 1e-12 * T:
-                return T
-            T_prev, err_prev = T, err
+                slope = cv / T if kind == "s" else cv
+            T_new = T - err / slope if slope > 0.0 and math.isfinite(slope) else NAN
+            # Newton only while it stays in the bracket and at least halves the
+            # residual; else false position, else bisection
+            if not (lo < T_new < hi) or abs(err) > 0.5 * err_prev:
+                T_new = NAN
+                if f_lo is not None and f_hi is not None:
+                    T_new = lo - f_lo * (hi - lo) / (f_hi - f_lo)
+                if not (lo < T_new < hi):
+                    T_new = 0.5 * (lo + hi)
+            err_prev = abs(err)
+            if hi - lo <= 1e-15 * hi or T_new == T:
+                break
             T = T_new
-        return T  # pragma: no cover - bisection has converged long before
+        # the bracket has shrunk to a point without meeting the residual: where the
+        # equation of state's own round-off is larger than the tolerance (liquids),
+        # accept the best point if within the floor; else the target lies outside
+        # the range of the equation of state at this density, or the iteration failed
+        if best_err <= STATE_RTOL_FLOOR / STATE_RTOL * tol:
+            self._update_dt(rho, best_T)
+            return best_T
+        return None
 
-    def _flash_du(self, rho: float, u: float) -> State:  # pragma: no cover - fallback
+    def _two_phase_slope(self, rho: float, T: float, kind: str) -> float:
+        """Equilibrium slope d(u)/dT (or d(s)/dT) at constant density in two phases
+        [J/(kg K)] (or [J/(kg K2)]), by central differences of
+        y(T) = y_l + x (y_v - y_l), x = (1/rho - v_l)/(v_v - v_l), over saturation
+        states at T +- dT (one-sided below the critical temperature)."""
+        dT = max(1e-4, 1e-7 * T)
+        up = T + dT if T + dT < self.t_crit else T
+        down = T - dT
+        return (self._two_phase_value(rho, up, kind) - self._two_phase_value(rho, down, kind)) / (
+            up - down)
+
+    def _two_phase_value(self, rho: float, T: float, kind: str) -> float:
+        """u or s [SI] of the equilibrium mixture of density rho at saturation temperature T
+        (the lever rule; x may leave [0, 1] slightly for the finite differences)."""
+        b = self._sat
         self.evaluations += 1
-        try:
-            self._as.update(self._DU, rho, u)
-        except ValueError as exc:
-            raise StateError(f"{self.name} properties failed at rho = {rho:.6g} kg/m3, "
-                             f"u = {u:.6g} J/kg: {exc}") from None
-        return self._read()
+        b.update(self._QT, 0.0, T)
+        key = self._iU if kind == "u" else self._iS
+        vl = 1.0 / b.saturated_liquid_keyed_output(self._iD)
+        vv = 1.0 / b.saturated_vapor_keyed_output(self._iD)
+        yl = b.saturated_liquid_keyed_output(key)
+        yv = b.saturated_vapor_keyed_output(key)
+        x = (1.0 / rho - vl) / (vv - vl)
+        return yl + x * (yv - yl)
+
+    def _unsolved(self, rho: float, target: float, kind: str) -> StateError:
+        """The error for a (density, u or s) pair no temperature of the equation of
+        state meets: below its lowest temperature (solid), above its highest, or a
+        failed iteration (with what was being solved)."""
+        what = "internal energy" if kind == "u" else "entropy"
+        unit = "J/kg" if kind == "u" else "J/(kg K)"
+        read = self._as.umass if kind == "u" else self._as.smass
+        self._update_dt(rho, self.t_min)
+        if read() > target:
+            return StateError(
+                f"the state (rho = {rho:.6g} kg/m3, {what} {target:.6g} {unit}) lies below the "
+                f"lowest temperature of the {self.name} equation of state ({self.t_min:.6g} K; "
+                f"triple point {self.t_triple:.6g} K): solid would form, which cvsim does not "
+                "model. Stop the run earlier (a pressure or temperature stop) or add heat input.")
+        self._update_dt(rho, self.t_max)
+        if read() < target:
+            return StateError(
+                f"the state (rho = {rho:.6g} kg/m3, {what} {target:.6g} {unit}) lies above the "
+                f"highest temperature of the {self.name} equation of state "
+                f"({self.t_max:.6g} K).")
+        return StateError(
+            f"the {self.name} state at rho = {rho:.6g} kg/m3 and {what} {target:.6g} {unit} "
+            f"could not be solved to the residual tolerance ({STATE_RTOL:g} relative) in "
+            f"{MAX_STATE_ITERATIONS} iterations; this is a defect of the property solve: "
+            "please report it with the scenario.")
 
     def isentrope_at(self, rho: float, s: float, T_guess: float) -> State:
         """State at density [kg/m3] on the isentrope of specific entropy ``s`` [J/(kg K)].
 
-        Solves s(rho, T) = s for T (see :meth:`_solve_T`), warm-started from ``T_guess``.
+        Solves s(rho, T) = s for T (see :meth:`_solve_T`), converged on the
+        residual, warm-started from ``T_guess``.
         """
-        T = self._solve_T(rho, s, T_guess, self._as.smass, 0)
-        if T <= self.t_min * (1 + 1e-9):
-            raise StateError(f"the expansion of {self.name} through the device reaches the "
-                             f"lowest temperature of its equation of state ({self.t_min:.6g} "
-                             f"K, triple point {self.t_triple:.6g} K): solid would form, which "
-                             "cvsim does not model. Stop the run earlier (a pressure or "
-                             "temperature stop) or add heat input.")
+        T = self._solve_T(rho, s, T_guess, self._as.smass, "s")
+        if T is None:
+            err = self._unsolved(rho, s, "s")
+            if "below the lowest" in err.detail:
+                raise StateError(
+                    f"the expansion of {self.name} through the device reaches the lowest "
+                    f"temperature of its equation of state ({self.t_min:.6g} K, triple point "
+                    f"{self.t_triple:.6g} K): solid would form, which cvsim does not model. "
+                    "Stop the run earlier (a pressure or temperature stop) or add heat input.")
+            raise err
         return self._read()
 
     def ideal_gas_gamma(self, rho: float, T: float) -> float:
@@ -291,6 +455,75 @@ class RealFluid:
         """Saturated liquid at pressure p [Pa] (below the critical pressure)."""
         return self._saturated(p, 0.0)
 
+    def saturation_temperature(self, p: float) -> float:
+        """Saturation temperature [K] at pressure p [Pa] (below the critical pressure)."""
+        b = self._sat
+        self.evaluations += 1
+        try:
+            b.update(self._PQ, p, 0.0)
+        except ValueError as exc:
+            raise StateError(f"{self.name} saturation state failed at p = {p:.6g} Pa: "
+                             f"{exc}") from None
+        return b.T()
+
+    def two_phase_isentrope_at_T(self, s: float, T: float) -> State | None:
+        """Equilibrium two-phase state of specific entropy s [J/(kg K)] at saturation
+        temperature T [K], by the lever rule on the saturated phases at T:
+
+            x = (s - s_l)/(s_v - s_l),  y = y_l + x (y_v - y_l)  for v, u, h,
+
+        with p the saturation pressure. ``None`` when s lies outside [s_l, s_v] at T
+        (the isentrope is single phase there). No iteration: one saturation
+        evaluation (CoolProp's saturation curves of pure fluids).
+        """
+        if not (self.t_triple <= T < self.t_crit):
+            return None
+        b = self._sat
+        self.evaluations += 1
+        try:
+            b.update(self._QT, 0.0, T)
+        except ValueError:
+            return None
+        L, V = b.saturated_liquid_keyed_output, b.saturated_vapor_keyed_output
+        sl, sv = L(self._iS), V(self._iS)
+        x = (s - sl) / (sv - sl)
+        if not (0.0 <= x <= 1.0):
+            # on a saturation line to within the entropy tolerance: take it as on it
+            tol = self._tolerance(s, "s")
+            if -tol <= s - sl < 0.0:
+                x = 0.0
+            elif 0.0 < s - sv <= tol:
+                x = 1.0
+            else:
+                return None
+        iH = self._CP.iHmass
+        vl, vv = 1.0 / L(self._iD), 1.0 / V(self._iD)
+        v = vl + x * (vv - vl)
+        u = L(self._iU) + x * (V(self._iU) - L(self._iU))
+        h = L(iH) + x * (V(iH) - L(iH))
+        return State(1.0 / v, T, b.p(), u, h, s, NAN, NAN, NAN, x, "two-phase",
+                     (1.0 - x) * vl / v)
+
+    def liquid_isentrope_entry(self, s: float) -> float | None:
+        """Temperature [K] at which an isentrope of entropy s [J/(kg K)] meets the
+        saturated-liquid line, s_l(T) = s (s_l rises with T up to the critical
+        point); ``None`` when s is not on the liquid side (s above the critical
+        point's entropy or below the triple point's saturated liquid).
+        Converged on the residual |s_l(T) - s| <= STATE_RTOL (|s| + R)."""
+        b = self._sat
+        iS = self._iS
+
+        def sl(T):
+            self.evaluations += 1
+            b.update(self._QT, 0.0, T)
+            return b.saturated_liquid_keyed_output(iS) - s
+
+        lo, hi = self.t_triple, self.t_crit * (1.0 - 1e-9)
+        f_lo, f_hi = sl(lo), sl(hi)
+        if f_lo > 0.0 or f_hi < 0.0:
+            return None
+        return root_on_bracket(sl, lo, hi, f_lo, f_hi, self._tolerance(s, "s"))
+
     def _saturated(self, p: float, quality: float) -> State:
         self.evaluations += 1
         try:
@@ -302,7 +535,8 @@ class RealFluid:
         # on the saturation line cp and the speed of sound are those of a phase
         # boundary; report them as undefined, like the two-phase states
         return State(a.rhomass(), a.T(), a.p(), a.umass(), a.hmass(), a.smass(),
-                     NAN, a.cvmass(), NAN, quality)
+                     NAN, a.cvmass(), NAN, quality, "liquid" if quality == 0.0 else "gas",
+                     1.0 if quality == 0.0 else 0.0)
 
 
 class IdealGas:

@@ -43,6 +43,9 @@ from ..fluid import State
 #: 1e-4 the flux changes by less than 1 % of its value at 1 % difference.
 LINEAR_BELOW = 1e-4
 
+#: relative tolerance on the throat temperature of a two-phase throat search
+THROAT_T_TOL = 1e-7
+
 
 def critical_pressure_ratio(gamma: float) -> float:
     """Perfect-gas critical pressure ratio r* = (2/(g+1))^(g/(g-1)) [-].
@@ -128,16 +131,103 @@ def real_gas_mass_flux(fluid, up: State, pb: float, hint: NozzleHint | None = No
         return 0.0, False, p0
     if hint is None:
         hint = NozzleHint()
+    T_entry = _dome_entry(fluid, up)
     frac = (p0 - pb) / p0
     if frac < LINEAR_BELOW:
-        g_lin, _ = _subcritical(fluid, up, p0 * (1.0 - LINEAR_BELOW), hint)
+        g_lin = _flux_at(fluid, up, p0 * (1.0 - LINEAR_BELOW), hint, T_entry)
         return g_lin * frac / LINEAR_BELOW, False, pb
-    x_star, st_star, g_star = _throat(fluid, up, hint)
+    if T_entry is not None:
+        T_star, st_star, g_star = _dome_throat(fluid, up, T_entry)
+        x_star = math.log(st_star.rho / up.rho)
+    else:
+        x_star, st_star, g_star = _throat(fluid, up, hint)
     if st_star.p >= pb:
         hint.x, hint.T = x_star, st_star.T
         return g_star, True, st_star.p
-    g, st = _subcritical(fluid, up, pb, hint, x_star)
-    return g, False, pb
+    return _flux_at(fluid, up, pb, hint, T_entry, x_star), False, pb
+
+
+def _flux_at(fluid, up: State, pb: float, hint, T_entry, x_crit=None) -> float:
+    """Isentropic mass flux with the throat at pressure pb (not choked)."""
+    if T_entry is not None:
+        T_b = fluid.saturation_temperature(pb) if pb < fluid.p_crit else math.inf
+        if T_b < T_entry:   # the throat lies in the two-phase region
+            st = fluid.two_phase_isentrope_at_T(up.s, T_b)
+            if st is not None:
+                dh = up.h - st.h
+                return st.rho * math.sqrt(2.0 * dh) if dh > 0.0 else 0.0
+        # the throat lies in the compressed liquid, above the saturation pressure
+        liq = fluid.two_phase_isentrope_at_T(up.s, T_entry)
+        if liq is not None and liq.rho < up.rho:
+            x_crit = math.log(liq.rho / up.rho)
+    g, _ = _subcritical(fluid, up, pb, hint, x_crit)
+    return g
+
+
+def _dome_entry(fluid, up: State) -> float | None:
+    """Saturation temperature [K] at which the isentrope from a liquid or two-phase
+    source enters the two-phase region: the source's own temperature when it is
+    two-phase, saturated liquid, or saturated vapour that condenses on expansion
+    (a "wet" fluid such as water, CO2, ammonia); ``None`` for gas, supercritical or
+    saturated vapour that superheats on expansion, which take the general search."""
+    if not hasattr(fluid, "two_phase_isentrope_at_T"):
+        return None
+    if up.two_phase and up.quality < 1.0:
+        return up.T
+    if up.two_phase:   # saturated vapour: into the dome if it condenses on expansion
+        below = fluid.two_phase_isentrope_at_T(up.s, up.T * (1.0 - 1e-6))
+        return up.T if below is not None else None
+    if up.phase == "liquid":
+        return fluid.liquid_isentrope_entry(up.s)
+    return None
+
+
+def _dome_throat(fluid, up: State, T_entry: float):
+    """Choked throat of a liquid or two-phase source (homogeneous equilibrium).
+
+    In the two-phase region the isentrope is explicit in the saturation
+    temperature T (lever rule on s, :meth:`~cvsim.fluid.RealFluid.two_phase_isentrope_at_T`),
+    so G(T) = rho(T) sqrt(2 (h0 - h(T))) is maximised over T in [T_triple, T_entry]
+    by Brent's bounded search (scipy ``minimize_scalar``) to 1e-7 T: at a smooth
+    maximum the flux is then exact to about 1e-12. Compressed liquid cannot choke (its sound
+    speed is far above the flow speed), so the maximum lies in the two-phase region
+    or at its entry (a subcooled liquid then chokes at its saturation pressure).
+    Reference: homogeneous equilibrium model, e.g. Leung, AIChE J. 32 (1986) 1743;
+    API 520 Part I (10th ed.) Annex C (HEM as the basis of the two-phase methods).
+    Returns (T, state, G).
+    """
+    s0, h0 = up.s, up.h
+
+    def G(T):
+        st = fluid.two_phase_isentrope_at_T(s0, T)
+        if st is None:
+            return -1.0, None
+        dh = h0 - st.h
+        return (st.rho * math.sqrt(2.0 * dh) if dh > 0.0 else 0.0), st
+
+    from scipy.optimize import minimize_scalar
+    a, b = fluid.t_triple * (1.0 + 1e-9), max(T_entry, fluid.t_triple * (1.0 + 2e-9))
+    seen = {}
+
+    def minus_g(T):
+        g, st = G(T)
+        seen[T] = (g, st)
+        return -g
+
+    res = minimize_scalar(minus_g, bounds=(a, b), method="bounded",
+                          options={"xatol": THROAT_T_TOL * b})
+    g_b, st_b = G(b)
+    g_x, st_x = seen.get(res.x) or G(res.x)
+    T_best, g_best, st_best = (b, g_b, st_b) if g_b >= g_x else (res.x, g_x, st_x)
+    if st_best is None or T_best - a <= 2.0 * THROAT_T_TOL * b:
+        # the flux still rises where the isentrope reaches the triple point
+        raise StateError(f"the expansion of {fluid.name} through the device from "
+                         f"{up.p / 1e5:.6g} bar a, {up.T:.6g} K reaches the lowest temperature "
+                         f"of its equation of state (triple point {fluid.t_triple:.6g} K) "
+                         "before it chokes: solid would form, "
+                         "which cvsim does not model. Stop the run earlier (a pressure or "
+                         "temperature stop) or add heat input.")
+    return T_best, st_best, g_best
 
 
 def _kappa(up: State) -> float:
