@@ -167,8 +167,8 @@ class Orifice:
     area                  [m2] geometric flow area
     discharge_coefficient [-]
     flow_model            ``real-gas`` (isentropic nozzle on the real equation of
-                          state) or ``ideal-gas`` (perfect-gas nozzle with the local
-                          heat-capacity ratio)
+                          state) or ``ideal-gas`` (perfect-gas nozzle with the real
+                          density and the ideal-gas k at the upstream temperature)
     open_from, open_until [s] the orifice passes flow only in this time window
                           (an isolation valve opening or closing instantly)
     """

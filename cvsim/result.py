@@ -13,6 +13,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from .flow.exponent import EXPONENT_ASSUMPTION
 from .limits import check_vessel, first_time_at_or_below
 from .model import ACC_PER_LINK, Model
 from .network import Network
@@ -355,9 +356,8 @@ def assumptions(model: Model) -> list[str]:
                            "state, choked at the maximum mass flux, times the discharge "
                            "coefficient.")
             else:
-                out.append("Orifices (ideal-gas form): perfect-gas nozzle with the upstream "
-                           "heat-capacity ratio cp/cv and density, times the discharge "
-                           "coefficient.")
+                out.append("Orifices (ideal-gas form): perfect-gas nozzle times the discharge "
+                           f"coefficient; {EXPONENT_ASSUMPTION}.")
         out.append("Below a relative pressure difference of 1e-4 the orifice flow is taken "
                    "linear in the difference (regularisation of the square-root law).")
     if "FixedFlow" in kinds:
