@@ -121,8 +121,12 @@ class VesselLimits:
     min_metal_temperature  [K] minimum design metal temperature (MDMT)
     max_temperature        [K] highest allowed gas or wall temperature
     depressure_to          [Pa, absolute] depressuring target pressure
-    depressure_within      [s] time allowed to reach it
+    depressure_within      [s] time allowed to reach it, counted from the start of
+                           depressuring
     depressure_basis       how the target was stated (for the report)
+    depressure_start       [s] when depressuring starts; ``None``: found from the run
+                           (the last pressure peak before the target,
+                           :func:`cvsim.limits.depressuring_start`)
     """
 
     design_pressure: float | None = None
@@ -133,6 +137,7 @@ class VesselLimits:
     depressure_to: float | None = None
     depressure_within: float | None = None
     depressure_basis: str = ""
+    depressure_start: float | None = None
 
 
 @dataclass(frozen=True)

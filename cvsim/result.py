@@ -43,9 +43,15 @@ class Result:
     device_figures: dict = field(default_factory=dict)  # per link: figures of its device
 
     @property
+    def limits_counted(self) -> list:
+        """The design limits that count (met or crossed), without those shown for
+        information only (:attr:`cvsim.limits.LimitCheck.informative`)."""
+        return [c for c in self.limits if not c.informative]
+
+    @property
     def limits_crossed(self) -> list:
         """The design limits this run crosses."""
-        return [c for c in self.limits if not c.met]
+        return [c for c in self.limits if c.crossed]
 
     # -------------------------------------------------------------- access
     @property
@@ -88,9 +94,13 @@ class Result:
         return [k.name for k in self.network.links]
 
     def to_dataframe(self):
-        """The recorded histories as a pandas DataFrame (SI units; needs pandas)."""
+        """The recorded histories as a pandas DataFrame (SI units; needs pandas), with
+        the caution and provenance in ``df.attrs``."""
         import pandas as pd
-        return pd.DataFrame(self.data, columns=[f"{n} [{u}]" for n, u, _ in self.columns])
+        df = pd.DataFrame(self.data, columns=[f"{n} [{u}]" for n, u, _ in self.columns])
+        df.attrs.update({"caution": CAUTION, "title": self.network.title,
+                         "provenance": dict(self.provenance)})
+        return df
 
     # -------------------------------------------------------------- summary
     def extreme(self, name: str, kind: str) -> tuple[float, float]:
@@ -232,14 +242,18 @@ def check_limits(result: Result) -> list:
         return out
     rows = result._all()
     t = rows[:, 0]
+    steps = result.fine_data if len(result.fine_data) else result.data
     for v in result.network.vessels:
         if v.limits is None:
             continue
         walls = {name: rows[:, i] for i, (name, unit, kind) in enumerate(result.columns)
                  if name.startswith(f"{v.name}.wall.") and unit == "K"}
-        out += check_vessel(v.name, v.limits, result.network.atmosphere, t,
-                            rows[:, result._col(f"{v.name}.pressure")],
-                            rows[:, result._col(f"{v.name}.temperature")], walls)
+        i_p = result._col(f"{v.name}.pressure")
+        thickness = [h.thickness for h in v.heat if hasattr(h, "layers")]
+        out += check_vessel(v.name, v.limits, result.network.atmosphere, t, rows[:, i_p],
+                            rows[:, result._col(f"{v.name}.temperature")], walls,
+                            steps=(steps[:, 0], steps[:, i_p]),
+                            wall_thickness=max(thickness) if thickness else None)
     return out
 
 
