@@ -241,6 +241,9 @@ class ReliefValve:
     full_lift_pressure [Pa] modulating action: full lift from this pressure on
     kd, kb, kc    [-] effective discharge coefficient, back-pressure correction,
                   combination correction (rupture disc upstream)
+    design        ``conventional``, ``balanced-bellows`` or ``pilot-operated``: a
+                  balanced-bellows valve in subcritical flow takes the critical-flow
+                  equation with Kb (API 520 Part I)
     """
 
     area: float
@@ -251,6 +254,7 @@ class ReliefValve:
     kd: float = 0.975
     kb: float = 1.0
     kc: float = 1.0
+    design: str = "conventional"
 
 
 @dataclass(frozen=True)
