@@ -264,6 +264,9 @@ def check_vessel(name: str, limits, atmosphere: float, t, pressure, gas_temperat
         start = getattr(limits, "depressure_start", None)
         if start is None:
             ts, ps = steps if steps is not None else (t, pressure)
+            if len(ts) and len(t) and ts[0] > t[0]:  # the steps start after the first record
+                ts = np.concatenate([[t[0]], ts])
+                ps = np.concatenate([[np.asarray(pressure)[0]], ps])
             start = depressuring_start(ts, ps, t_reach)
             how = "the last pressure peak before the target"
         else:

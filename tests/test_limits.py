@@ -216,6 +216,15 @@ def test_without_a_wall_the_gas_stands_in_for_the_metal_and_says_so():
     assert "stand-in" in summary_text(res)
 
 
+def test_a_blowdown_from_the_first_instant_is_timed_from_zero():
+    # the solver's first accepted step lies after t = 0; depressuring started at 0
+    from cvsim import run
+    res = run(load_scenario_text(SCENARIO))
+    dep = next(c for c in res.limits if c.key == "depressure")
+    assert "t = 0 s" in dep.note
+    assert dep.actual == dep.time
+
+
 # --------------------------------- the depressuring guideline: its basis and its start
 
 def test_depressuring_start_is_the_last_pressure_peak_before_the_target():
