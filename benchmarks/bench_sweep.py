@@ -38,8 +38,8 @@ def case_overrides(max_step: float) -> dict:
 
 
 def diameters(n: int) -> str:
-    # a narrow band above the answer (17.58 mm): every case stops at the target
-    # pressure after 13 to 14 minutes, so every case does about the same work
+    # a narrow band above the answer (17.40 mm): every case stops at the target
+    # pressure after about 12 to 13.5 minutes, so every case does about the same work
     return f"18.5 mm:19.5 mm:{n}"
 
 

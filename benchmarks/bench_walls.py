@@ -145,6 +145,12 @@ def main(repeats: int = 7):
         dt = (time.perf_counter() - t0) / len(states)
         print(f"transport properties of {fluid}: {dt * 1e6:.1f} us per new gas state "
               "(cached while only wall temperatures change)")
+        t0 = time.perf_counter()
+        for st in states:
+            props.film(st, T + 20.0)
+        dt = (time.perf_counter() - t0) / len(states)
+        print(f"  at the film temperature (natural convection inside): {dt * 1e6:.1f} us per "
+              "new gas or inside-wall state")
 
 
 if __name__ == "__main__":

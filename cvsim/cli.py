@@ -218,8 +218,11 @@ def cmd_relief(args) -> int:
     text = sizing_text(sizing, net.atmosphere)
     print(text, end="")
     if args.out:
+        from .result import CAUTION
+        # every output a person could act on carries the caution
+        record = {**sizing.as_dict(), "caution": CAUTION}
         extra = {"relief-sizing.txt": text,
-                 "relief-sizing.json": json.dumps(_jsonable(sizing.as_dict()), indent=2) + "\n"}
+                 "relief-sizing.json": json.dumps(_jsonable(record), indent=2) + "\n"}
         if sizing.confirm is None:
             raise CvsimError("--out needs the confirming run (drop --no-confirm)")
         write_run_outputs(sizing.confirm, args.out, echo=scenario.echo, report=args.report,

@@ -26,14 +26,29 @@ ACCUMULATION = {
 ACCUMULATION_SOURCE = "ASME VIII-1 UG-125(c); API 520 Part I (allowed accumulation)"
 
 #: Depressuring guideline: to 690 kPa gauge (100 psig) or 50 % of the design gauge
-#: pressure, whichever is lower, in about 15 min (API 521, depressuring; secondary
-#: sources: common practice, no primary source at hand).
+#: pressure, whichever is lower, in about 15 min from the start of depressuring, for
+#: vessels with walls about 25 mm (1 in) thick or more; thinner walls heat faster in a
+#: fire and need faster depressuring (API 521, vapour depressuring; from memory and
+#: secondary sources: common practice, no primary source at hand).
 GUIDELINE_GAUGE = 690e3
 GUIDELINE_FRACTION = 0.5
 GUIDELINE_TIME = 15 * 60.0
-GUIDELINE_SOURCE = ("API 521 depressuring guideline: 690 kPa g or 50 % of design pressure, "
-                    "whichever is lower, within about 15 min (common practice)")
+#: [m] the wall thickness the guideline is meant for (about 25 mm, 1 in)
+GUIDELINE_WALL = 0.025
+GUIDELINE_SOURCE = ("API 521 depressuring guideline for vessels with walls about 25 mm "
+                    "(1 in) thick or more: 690 kPa g or 50 % of design pressure, whichever "
+                    "is lower, within about 15 min from the start of depressuring; thinner "
+                    "walls need faster depressuring (common practice)")
 MDMT_SOURCE = "ASME VIII-1 UG-20 / UCS-66 (minimum design metal temperature)"
+#: the minimum design metal temperature is a limit on the metal (ASME VIII-1 UCS-66
+#: rates the material and thickness): with a wall modelled the gas temperature is
+#: shown for information only; without one the gas stands in for the metal
+MDMT_GAS_WITH_WALL = ("for information only: the minimum design metal temperature is a "
+                      "limit on the metal (ASME VIII-1 UCS-66), checked on the wall above; "
+                      "the gas next to it is colder in a blowdown")
+MDMT_GAS_STAND_IN = ("checked on the gas temperature because no wall is modelled: a "
+                     "conservative stand-in for the metal, which a wall keeps warmer in a "
+                     "blowdown (model the wall to check the metal itself)")
 
 
 def allowed_pressure(design_pressure: float, atmosphere: float, accumulation: float,
@@ -80,6 +95,9 @@ class LimitCheck:
               ``min_metal_temperature``, ``max_temperature``, ``depressure``), with
               ``.gas`` or the wall's column name added where one key gives several
               checks (``min_metal_temperature.gas``, ``max_temperature.wall.inner``)
+    informative  shown for information only: never met or crossed, never counted
+              (the gas temperature against the minimum design metal temperature when
+              the wall's metal is checked); ``met`` then says only which side it is on
     """
 
     vessel: str
@@ -94,9 +112,22 @@ class LimitCheck:
     practice: str
     note: str = ""
     key: str = ""
+    informative: bool = False
+
+    @property
+    def crossed(self) -> bool:
+        """A limit that counts and is not met."""
+        return not self.met and not self.informative
+
+    @property
+    def state(self) -> str:
+        """``met``, ``CROSSED`` or ``information`` (for tables)."""
+        if self.informative:
+            return "information"
+        return "met" if self.met else "CROSSED"
 
     def as_dict(self) -> dict:
-        return asdict(self)
+        return {**asdict(self), "state": self.state}
 
 
 def _extreme(t, values, kind):
@@ -105,6 +136,39 @@ def _extreme(t, values, kind):
         return float("nan"), float("nan")
     i = int(np.nanargmax(values) if kind == "max" else np.nanargmin(values))
     return float(values[i]), float(t[i])
+
+
+def depressuring_start(t, pressure, t_reach: float) -> float:
+    """Start of depressuring [s]: where the pressure's last uninterrupted fall before
+    ``t_reach`` began (the last pressure peak before the target is reached).
+
+        t_start = t_j,  j the smallest index with p_j > p_{j+1} > ... > p_reach
+
+    Parameters
+    ----------
+    t : times [s] of the solver's accepted steps (increasing; repeated times dropped)
+    pressure : pressures [Pa] at those times
+    t_reach : time [s] the target is first reached (NaN: not reached; then the end)
+
+    A vessel that sits at constant pressure until a valve opens starts at the
+    opening; one heated by a fire until then, at the peak the valve turns; a run that
+    depressures from its first instant, at 0. A pressure that rises again during the
+    depressuring (another source filling the vessel) restarts the count, so state
+    the start (``depressure: {from: ...}``) where that is not what is meant.
+    Definition: API 521 times the guideline from the start of depressuring.
+    """
+    t = np.asarray(t, dtype=float)
+    p = np.asarray(pressure, dtype=float)
+    if t.size == 0:
+        return 0.0
+    keep = np.concatenate([t[1:] != t[:-1], [True]])  # the last value at a repeated time
+    t, p = t[keep], p[keep]
+    end = t_reach if t_reach == t_reach else t[-1]
+    j = int(np.searchsorted(t, end, side="right")) - 1
+    j = max(j, 0)
+    while j > 0 and p[j - 1] > p[j]:
+        j -= 1
+    return float(t[j])
 
 
 def first_time_at_or_below(t, values, target: float) -> float:
@@ -126,13 +190,24 @@ def first_time_at_or_below(t, values, target: float) -> float:
 
 
 def check_vessel(name: str, limits, atmosphere: float, t, pressure, gas_temperature,
-                 wall_temperatures: dict | None = None, end_time: float | None = None
+                 wall_temperatures: dict | None = None, end_time: float | None = None,
+                 steps: tuple | None = None, wall_thickness: float | None = None
                  ) -> list[LimitCheck]:
     """All limit checks of one vessel from its histories (SI arrays on times ``t``).
 
-    ``wall_temperatures`` maps a wall column name to its history; metal-temperature
-    limits use the wall where one is modelled, else the gas temperature (in a
-    blowdown the gas is colder than the wall, so this is conservative).
+    ``wall_temperatures`` maps a wall column name to its history. The minimum
+    design metal temperature is a metal temperature (ASME VIII-1 UCS-66): with a
+    wall modelled it is checked on the wall's coldest node, and the gas's lowest
+    temperature is added as an informative check (never counted as crossed);
+    without a wall the gas temperature stands in for the metal (in a blowdown the
+    gas is colder than the wall, so this is conservative) and the check's note says
+    so.
+
+    The depressuring time counts from the start of depressuring: the stated
+    ``depressure_start``, else :func:`depressuring_start` on ``steps`` (times and
+    pressures of the solver's accepted steps; default: ``t`` and ``pressure``). The
+    guideline's note says when its basis (walls about 25 mm or thicker) is not met by
+    ``wall_thickness`` [m] (``None``: no wall modelled).
     """
     out: list[LimitCheck] = []
     t = np.asarray(t, dtype=float)
@@ -154,23 +229,23 @@ def check_vessel(name: str, limits, atmosphere: float, t, pressure, gas_temperat
         if walls:
             mins = [(_extreme(t, v, "min"), k) for k, v in walls.items()]
             (T_min, t_min), col = min(mins, key=lambda m: m[0][0])
-            basis = f"wall temperature ({col})"
+            note = f"checked on the wall temperature ({col})"
         else:
             T_min, t_min = _extreme(t, gas_temperature, "min")
-            basis = "gas temperature (no wall modelled; conservative for the metal)"
+            note = MDMT_GAS_STAND_IN
         out.append(LimitCheck(
             name, "lowest metal temperature above the minimum design metal temperature",
             "temperature", limits.min_metal_temperature, T_min, t_min,
             bool(T_min >= limits.min_metal_temperature), T_min - limits.min_metal_temperature,
-            "K", MDMT_SOURCE, f"checked on the {basis}", key="min_metal_temperature"))
+            "K", MDMT_SOURCE, note, key="min_metal_temperature"))
         if walls:
             Tg, tg = _extreme(t, gas_temperature, "min")
             out.append(LimitCheck(
-                name, "lowest gas temperature above the minimum design metal temperature",
+                name, "lowest gas temperature against the minimum design metal temperature",
                 "temperature", limits.min_metal_temperature, Tg, tg,
                 bool(Tg >= limits.min_metal_temperature), Tg - limits.min_metal_temperature,
-                "K", MDMT_SOURCE, "gas in contact with the inner wall",
-                key="min_metal_temperature.gas"))
+                "K", MDMT_SOURCE, MDMT_GAS_WITH_WALL, key="min_metal_temperature.gas",
+                informative=True))
     if limits.max_temperature is not None:
         series = {"gas": gas_temperature, **walls}
         for label, values in series.items():
@@ -186,21 +261,38 @@ def check_vessel(name: str, limits, atmosphere: float, t, pressure, gas_temperat
     if limits.depressure_to is not None and limits.depressure_within is not None:
         t_reach = first_time_at_or_below(t, pressure, limits.depressure_to)
         reached = t_reach == t_reach
-        met = bool(reached and t_reach <= limits.depressure_within)
+        start = getattr(limits, "depressure_start", None)
+        if start is None:
+            ts, ps = steps if steps is not None else (t, pressure)
+            if len(ts) and len(t) and ts[0] > t[0]:  # the steps start after the first record
+                ts = np.concatenate([[t[0]], ts])
+                ps = np.concatenate([[np.asarray(pressure)[0]], ps])
+            start = depressuring_start(ts, ps, t_reach)
+            how = "the last pressure peak before the target"
+        else:
+            how = "stated"
+        taken = t_reach - start if reached else float("nan")
+        met = bool(reached and taken <= limits.depressure_within)
         guideline = "guideline" in limits.depressure_basis
-        note = "" if guideline else limits.depressure_basis
+        notes = [] if guideline else [limits.depressure_basis]
+        notes.append(f"timed from the start of depressuring, t = {start:.6g} s ({how})")
+        if guideline and (wall_thickness is None or wall_thickness < 0.98 * GUIDELINE_WALL):
+            notes.append(
+                "no wall modelled: the guideline is meant for walls about 25 mm or thicker"
+                if wall_thickness is None else
+                f"the wall is {wall_thickness * 1e3:.3g} mm, thinner than the about 25 mm "
+                "the guideline is meant for: a thinner wall heats faster in a fire and "
+                "needs faster depressuring (API 521); state a target of your own")
         if not reached:
             p_end = float(np.asarray(pressure)[-1])
-            note = (note + "; " if note else "") + (
-                f"not reached by the end of the run (t = {t[-1]:.6g} s, "
-                f"{(p_end - atmosphere) / 1e5:.4g} bar g)")
+            notes.append(f"not reached by the end of the run (t = {t[-1]:.6g} s, "
+                         f"{(p_end - atmosphere) / 1e5:.4g} bar g)")
         out.append(LimitCheck(
             name, f"depressured to {(limits.depressure_to - atmosphere) / 1e5:.4g} bar g "
             f"within {limits.depressure_within / 60:.4g} min", "time",
-            limits.depressure_within, t_reach if reached else float("nan"),
-            t_reach if reached else float("nan"), met,
-            limits.depressure_within - t_reach if reached else float("nan"), "s",
+            limits.depressure_within, taken, t_reach if reached else float("nan"), met,
+            limits.depressure_within - taken if reached else float("nan"), "s",
             GUIDELINE_SOURCE if guideline else
-            "depressuring target stated in the scenario (API 521 practice)", note,
-            key="depressure"))
+            "depressuring target stated in the scenario (API 521 practice)",
+            "; ".join(n for n in notes if n), key="depressure"))
     return out

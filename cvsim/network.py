@@ -121,8 +121,12 @@ class VesselLimits:
     min_metal_temperature  [K] minimum design metal temperature (MDMT)
     max_temperature        [K] highest allowed gas or wall temperature
     depressure_to          [Pa, absolute] depressuring target pressure
-    depressure_within      [s] time allowed to reach it
+    depressure_within      [s] time allowed to reach it, counted from the start of
+                           depressuring
     depressure_basis       how the target was stated (for the report)
+    depressure_start       [s] when depressuring starts; ``None``: found from the run
+                           (the last pressure peak before the target,
+                           :func:`cvsim.limits.depressuring_start`)
     """
 
     design_pressure: float | None = None
@@ -133,6 +137,7 @@ class VesselLimits:
     depressure_to: float | None = None
     depressure_within: float | None = None
     depressure_basis: str = ""
+    depressure_start: float | None = None
 
 
 @dataclass(frozen=True)
@@ -167,8 +172,8 @@ class Orifice:
     area                  [m2] geometric flow area
     discharge_coefficient [-]
     flow_model            ``real-gas`` (isentropic nozzle on the real equation of
-                          state) or ``ideal-gas`` (perfect-gas nozzle with the local
-                          heat-capacity ratio)
+                          state) or ``ideal-gas`` (perfect-gas nozzle with the real
+                          density and the ideal-gas k at the upstream temperature)
     open_from, open_until [s] the orifice passes flow only in this time window
                           (an isolation valve opening or closing instantly)
     """
@@ -236,6 +241,9 @@ class ReliefValve:
     full_lift_pressure [Pa] modulating action: full lift from this pressure on
     kd, kb, kc    [-] effective discharge coefficient, back-pressure correction,
                   combination correction (rupture disc upstream)
+    design        ``conventional``, ``balanced-bellows`` or ``pilot-operated``: a
+                  balanced-bellows valve in subcritical flow takes the critical-flow
+                  equation with Kb (API 520 Part I)
     """
 
     area: float
@@ -246,6 +254,7 @@ class ReliefValve:
     kd: float = 0.975
     kb: float = 1.0
     kc: float = 1.0
+    design: str = "conventional"
 
 
 @dataclass(frozen=True)

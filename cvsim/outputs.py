@@ -250,9 +250,12 @@ def limits_text(result: Result) -> str:
     """The design-limit table of a run, for the screen and summary.txt."""
     atm = result.network.atmosphere
     crossed = result.limits_crossed
-    L = [f"Design limits: {len(result.limits) - len(crossed)} met, {len(crossed)} CROSSED"]
+    counted = result.limits_counted
+    info = len(result.limits) - len(counted)
+    L = [f"Design limits: {len(counted) - len(crossed)} met, {len(crossed)} CROSSED"
+         + (f" ({info} more shown for information)" if info else "")]
     for c in result.limits:
-        state = "met    " if c.met else "CROSSED"
+        state = "info   " if c.informative else ("met    " if c.met else "CROSSED")
         when = f" at {_t(c.time)}" if c.unit != "s" and c.time == c.time else ""
         L.append(f"  [{state}] {c.vessel}: {c.name}")
         L.append(f"            limit {_limit_value(c.limit, c.unit, atm)}, reached "

@@ -113,9 +113,9 @@ def render_run_report(result: Result, scenario=None, plots=None) -> str:
         Section("sign-off", "Check and review", sign_off()),
     ]
     crossed = len(result.limits_crossed)
+    counted = len(result.limits_counted)
     limits = ("none stated in the scenario" if not result.limits else
-              f"{len(result.limits)} checked: {len(result.limits) - crossed} met, "
-              f"{crossed} CROSSED")
+              f"{counted} checked: {counted - crossed} met, {crossed} CROSSED")
     head = [("Scenario file", prov.get("scenario", "(network built in code)")),
             ("Scenario SHA-256", tag("span", prov.get("scenario_sha256", "-"), cls="mono")),
             ("Run", f"{_status_line(result)}; started {prov.get('run_started', '-')}"),
@@ -236,7 +236,8 @@ def _glance(result: Result, s: dict) -> list:
         f": {esc(result.message)}" if result.message else ""))]
     if result.limits:
         crossed = result.limits_crossed
-        text = (f"{len(result.limits)} checked, {len(result.limits) - len(crossed)} met, "
+        counted = result.limits_counted
+        text = (f"{len(counted)} checked, {len(counted) - len(crossed)} met, "
                 f"{len(crossed)} crossed")
         if crossed:
             names = "; ".join(f"{c.vessel}: {c.name}" for c in crossed)
@@ -448,19 +449,27 @@ def _limits(result: Result) -> Html:
                    "each vessel to have them checked.")
     atm = result.network.atmosphere
     crossed = result.limits_crossed
+    counted = result.limits_counted
     rows, classes = [], []
     for i, c in enumerate(result.limits, 1):
-        state = (Html('<span class="state-crossed">✗ CROSSED</span>') if not c.met else
+        state = (esc("for information") if c.informative else
+                 Html('<span class="state-crossed">✗ CROSSED</span>') if not c.met else
                  Html('<span class="state-met">✓ met</span>'))
         when = _t(c.time) if c.unit != "s" and c.time == c.time else "-"
         practice = c.practice + (f"; {c.note}" if c.note else "")
         rows.append([str(i), state, c.vessel, c.name, _limit_value(c.limit, c.unit, atm),
                      _limit_value(c.actual, c.unit, atm), when, _margin(c.margin, c.unit),
                      practice])
-        classes.append("crossed" if not c.met else None)
-    verdict = (Html(f'<span class="state-crossed">{len(crossed)} of {len(result.limits)} '
+        classes.append("crossed" if c.crossed else None)
+    verdict = (Html(f'<span class="state-crossed">{len(crossed)} of {len(counted)} '
                     "CROSSED</span> (rows marked ✗ CROSSED).") if crossed else
-               esc(f"All {len(result.limits)} met."))
+               esc(f"All {len(counted)} met."))
+    info = len(result.limits) - len(counted)
+    if info:
+        verdict = join([verdict, esc(f" {info} more row{'s' if info != 1 else ''} shown for "
+                                     "information only, not counted (the gas temperature "
+                                     "against the minimum design metal temperature, which "
+                                     "is checked on the wall's metal).")])
     intro = tag("p", Html("Each limit stated in the scenario against the extreme the run "
                           "reached. The margin is positive when the limit is met and negative "
                           "when it is crossed. " + verdict))

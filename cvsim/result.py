@@ -13,6 +13,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from .flow.exponent import EXPONENT_ASSUMPTION
 from .limits import check_vessel, first_time_at_or_below
 from .model import ACC_PER_LINK, Model
 from .network import Network
@@ -48,9 +49,15 @@ class Result:
         return [c for c in self.checks if not c.passed]
 
     @property
+    def limits_counted(self) -> list:
+        """The design limits that count (met or crossed), without those shown for
+        information only (:attr:`cvsim.limits.LimitCheck.informative`)."""
+        return [c for c in self.limits if not c.informative]
+
+    @property
     def limits_crossed(self) -> list:
         """The design limits this run crosses."""
-        return [c for c in self.limits if not c.met]
+        return [c for c in self.limits if c.crossed]
 
     # -------------------------------------------------------------- access
     @property
@@ -93,9 +100,13 @@ class Result:
         return [k.name for k in self.network.links]
 
     def to_dataframe(self):
-        """The recorded histories as a pandas DataFrame (SI units; needs pandas)."""
+        """The recorded histories as a pandas DataFrame (SI units; needs pandas), with
+        the caution and provenance in ``df.attrs``."""
         import pandas as pd
-        return pd.DataFrame(self.data, columns=[f"{n} [{u}]" for n, u, _ in self.columns])
+        df = pd.DataFrame(self.data, columns=[f"{n} [{u}]" for n, u, _ in self.columns])
+        df.attrs.update({"caution": CAUTION, "title": self.network.title,
+                         "provenance": dict(self.provenance)})
+        return df
 
     # -------------------------------------------------------------- summary
     def extreme(self, name: str, kind: str) -> tuple[float, float]:
@@ -250,14 +261,18 @@ def check_limits(result: Result) -> list:
         return out
     rows = result._all()
     t = rows[:, 0]
+    steps = result.fine_data if len(result.fine_data) else result.data
     for v in result.network.vessels:
         if v.limits is None:
             continue
         walls = {name: rows[:, i] for i, (name, unit, kind) in enumerate(result.columns)
                  if name.startswith(f"{v.name}.wall.") and unit == "K"}
-        out += check_vessel(v.name, v.limits, result.network.atmosphere, t,
-                            rows[:, result._col(f"{v.name}.pressure")],
-                            rows[:, result._col(f"{v.name}.temperature")], walls)
+        i_p = result._col(f"{v.name}.pressure")
+        thickness = [h.thickness for h in v.heat if hasattr(h, "layers")]
+        out += check_vessel(v.name, v.limits, result.network.atmosphere, t, rows[:, i_p],
+                            rows[:, result._col(f"{v.name}.temperature")], walls,
+                            steps=(steps[:, 0], steps[:, i_p]),
+                            wall_thickness=max(thickness) if thickness else None)
     return out
 
 
@@ -374,9 +389,8 @@ def assumptions(model: Model) -> list[str]:
                            "state, choked at the maximum mass flux, times the discharge "
                            "coefficient.")
             else:
-                out.append("Orifices (ideal-gas form): perfect-gas nozzle with the upstream "
-                           "heat-capacity ratio cp/cv and density, times the discharge "
-                           "coefficient.")
+                out.append("Orifices (ideal-gas form): perfect-gas nozzle times the discharge "
+                           f"coefficient; {EXPONENT_ASSUMPTION}.")
         out.append("Below a relative pressure difference of 1e-4 the orifice flow is taken "
                    "linear in the difference (regularisation of the square-root law).")
     if "FixedFlow" in kinds:

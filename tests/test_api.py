@@ -29,6 +29,7 @@ def test_load_change_run_and_read_results():
     assert res.unit("vent.mass_flow") == "kg/s"
     df = res.to_dataframe()
     assert len(df) == len(res.time)
+    assert "Screening estimate" in df.attrs["caution"]  # the caution travels with it
 
 
 def test_overrides_with_problems_are_reported_together():

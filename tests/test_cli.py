@@ -122,3 +122,16 @@ def test_refuses_to_replace_a_folder_it_did_not_write(tmp_path, capsys):
 def test_fluids_lists_coolprop_names(capsys):
     assert main(["fluids", "--search", "nitro"]) == 0
     assert "Nitrogen" in capsys.readouterr().out
+
+
+def test_relief_sizing_json_carries_the_caution(tmp_path, capsys):
+    # every output a person could act on carries cvsim.result.CAUTION (DEVELOPERS.md)
+    from cvsim.result import CAUTION
+    scenario = Path(__file__).resolve().parents[1] / "scenarios" / "relief-blocked-outlet.yaml"
+    out = tmp_path / "psv"
+    code = main(["relief", str(scenario), "--valve", "psv", "--load", "8 t/h", "--out",
+                 str(out)])
+    capsys.readouterr()
+    assert code in (0, 3)
+    record = json.loads((out / "relief-sizing.json").read_text())
+    assert record["caution"] == CAUTION

@@ -152,3 +152,59 @@ links:
     k = int(np.searchsorted(t, 150.0))
     assert t[k] == 150.0
     assert heat_out[k] == pytest.approx(4.5 * A_out * (303.15 - Tw[k]), rel=1e-9)
+
+
+# ------------------------------------------------ the lumped-wall check with a fire
+
+def test_fire_equivalent_coefficient_is_the_radiative_coefficient_of_a_black_flame():
+    # source: Incropera et al., Fundamentals of Heat and Mass Transfer, 7th ed., eq. 1.9:
+    # h_r = sigma (T_s + T_sur)(T_s^2 + T_sur^2) for exchange with black surroundings at
+    # T_sur; a black flame at 1100 K on a wall at 300 K gives q = sigma (T_f^4 - T_s^4)
+    from cvsim.heat.walls import fire_equivalent_coefficient
+    sigma = 5.670374419e-8  # CODATA 2018
+    Tf, Ts = 1100.0, 300.0
+    q = sigma * (Tf**4 - Ts**4)
+    h_r = sigma * (Tf + Ts) * (Tf * Tf + Ts * Ts)
+    assert fire_equivalent_coefficient(q, Ts) == pytest.approx(h_r, rel=1e-12)
+    # vanishing flux: the linearised black-body coefficient 4 sigma T^3 (eq. 1.9 at T_sur = T_s)
+    assert fire_equivalent_coefficient(1e-6, Ts) == pytest.approx(4 * sigma * Ts**3, rel=1e-6)
+    assert fire_equivalent_coefficient(0.0, Ts) == pytest.approx(4 * sigma * Ts**3, rel=1e-15)
+
+
+def _lumped_wall_in_fire(fire: str) -> str:
+    return _vessel_text(f"""
+      wall:
+        model: lumped
+        layers: {{material: stainless-steel, thickness: 25 mm}}
+        inside: {{model: natural}}
+        outside:
+          model: natural
+          ambient: 20 degC
+          emissivity: 0.8
+{fire}
+""", end="3 min")
+
+
+def test_lumped_wall_biot_check_counts_the_fires_heat_flux():
+    # source: Incropera 7th ed., sec. 5.1-5.2, eq. 5.10: a lumped wall needs Bi = h L/k < 0.1
+    # for the coefficient acting on its faces. 25 mm of stainless steel (k = 17 W/(m K),
+    # EN 12524): natural convection and radiation stay far below 0.1, but the API 521
+    # pool fire without drainage (70 900 F A^0.82 W, SI form) on the exposed 9 m2 is
+    # 48 kW/m2, whose black-flame coefficient (Incropera eq. 1.9) is 72 W/(m2 K) at 20 degC:
+    # Bi = 0.105, and more as the wall heats
+    from cvsim import load_scenario_text, run
+    from cvsim.heat.walls import fire_equivalent_coefficient
+
+    quiet = run(load_scenario_text(_lumped_wall_in_fire("")))
+    assert quiet.ok and not any("Biot" in w for w in quiet.warnings)
+    sc = load_scenario_text(_lumped_wall_in_fire("""
+          fire: {model: pool, drainage_and_firefighting: inadequate, environment_factor: 1}
+"""))
+    res = run(sc)
+    assert res.ok
+    biot = [w for w in res.warnings if "Biot number" in w]
+    assert len(biot) == 1 and "fire" in biot[0]
+    area = sc.network.vessels[0].heat[0].fire.area
+    q = 70900.0 * area**0.82 / area
+    h = fire_equivalent_coefficient(q, 293.15)
+    assert 0.1 < h * 0.025 / 17.0 < 0.2

@@ -59,6 +59,11 @@ def test_cylinder_with_hemispherical_heads_and_no_shell_is_a_sphere():
 
 
 def test_cylinder_flat_heads_and_orientation():
+    # source: closed forms of a right circular cylinder with flat ends, V = pi D^2 L / 4,
+    # A = pi D L + 2 pi D^2 / 4 (e.g. Perry's Chemical Engineers' Handbook, 8th ed.,
+    # mathematics section, mensuration formulas; from memory); 2:1 ellipsoidal heads are
+    # D/4 deep (ASME VIII-1 UG-32(d): semi-ellipsoidal heads with a 2:1 axis ratio; from
+    # memory)
     V, A, H = geo.cylinder(1.0, 2.0, "flat", "vertical")
     assert V == pytest.approx(math.pi / 4 * 2.0)
     assert A == pytest.approx(math.pi * 2.0 + 2 * math.pi / 4)

@@ -234,3 +234,57 @@ def test_capacity_at_the_joint_of_the_linear_piece_for_any_pressure():
         w_above, _ = relief.api520_mass_flow(1e-4, p1, p1 * (1.0 - 1.0001e-4), 300.0, 1.0,
                                              0.029, 1.4)
         assert w == pytest.approx(w_above, rel=2e-4)
+
+
+# --------------------------------------- balanced-bellows valves in subcritical flow
+
+def test_balanced_bellows_valve_in_subcritical_flow_takes_the_critical_equation_with_kb():
+    # source: API 520 Part I, sec. 5.6.3.2 (from memory): balanced valves in subcritical
+    # flow are sized with the critical-flow equations and the back-pressure correction
+    # factor Kb from the maker; conventional and pilot-operated valves with F2 (5.6.3.1).
+    # Reference values: fluids library, fluids.safety_valve.API520_A_g (its critical
+    # branch, which does not depend on P2) at the conditions of API 520 Example 2
+    # (P2 = 532 kPa a, subcritical: A = 4248 mm2 for a conventional valve)
+    from fluids.safety_valve import API520_A_g
+    W, T, Z, M, k, p1, p2, kb = 24270 / 3600, 348.0, 0.90, 0.051, 1.11, 670e3, 532e3, 0.80
+    assert not relief.is_critical(p1, p2, k)
+    assert relief.uses_critical_equation(p2 / p1, k, balanced=True)
+    assert not relief.uses_critical_equation(p2 / p1, k, balanced=False)
+    critical_form = API520_A_g(m=W, T=T, Z=Z, MW=51.0, k=k, P1=p1, P2=101325.0, Kd=0.975,
+                               Kb=kb, Kc=1.0)
+    balanced = relief.api520_area(W, p1, p2, T, Z, M, k, kb=kb, balanced=True)
+    assert balanced == pytest.approx(critical_form, rel=1e-12)
+    conventional = relief.api520_area(W, p1, p2, T, Z, M, k, kb=kb)
+    assert round(conventional * 1e6) == 4248  # Kb does not enter the F2 equation
+    # a balanced valve never passes more than the isentropic nozzle (the F2 capacity):
+    # with Kb = 1 it is the conventional valve's, and it vanishes as P2 reaches P1
+    assert relief.api520_area(W, p1, p2, T, Z, M, k, kb=1.0, balanced=True) == pytest.approx(
+        conventional, rel=1e-12)
+    w_near, _ = relief.api520_mass_flow(1e-3, p1, p1 * (1 - 1e-6), T, Z, M, k, kb=0.8,
+                                        balanced=True)
+    w_conv, _ = relief.api520_mass_flow(1e-3, p1, p1 * (1 - 1e-6), T, Z, M, k)
+    assert w_near == pytest.approx(w_conv, rel=1e-12)
+
+
+def test_balanced_bellows_kb_from_the_standards_figure_in_a_run():
+    # source: API 520 Part I, Figure 30 (Kb of balanced-bellows valves, vapours and gases),
+    # as tabulated by the fluids library (fluids.safety_valve.API520_B): 0.793 at 50 %
+    # gauge back pressure and 10 % overpressure; the capacity of a balanced valve in
+    # subcritical flow is the critical-flow capacity times Kb (sec. 5.6.3.2, from memory)
+    from fluids.safety_valve import API520_B
+    kb = API520_B(1e6, 5e5)
+    assert round(kb, 3) == 0.793
+    from cvsim import network as nw
+    from cvsim.fluid import RealFluid
+    f = RealFluid("Nitrogen")
+    valve = nw.ReliefValve(area=1e-4, set_pressure=10e5, reseat_pressure=9e5, kb=kb,
+                           design="balanced-bellows")
+    dev = relief.ReliefValveDevice(valve, f, 0, 0, 1)
+    up, down = f.state_pt(11e5, 300.0), f.state_pt(7e5, 300.0)   # r = 0.64, subcritical
+    flow = dev.flow(0.0, up, down, type("Seg", (), {"discrete": {dev.key("open"): True}}))
+    Z = relief.compressibility_factor(up.p, up.rho, up.T, f.molar_mass)
+    k = f.ideal_gas_gamma(up.rho, up.T)
+    assert not relief.is_critical(up.p, down.p, k)
+    w_crit, _ = relief.api520_mass_flow(1e-4, up.p, 1e5, up.T, Z, f.molar_mass, k, kb=kb)
+    assert flow.mdot == pytest.approx(w_crit, rel=1e-12)
+    assert not flow.choked

@@ -53,6 +53,8 @@ def test_a_type_iv_wall_builds_with_layers_materials_and_jets():
     assert isinstance(wall, Wall)
     assert [la.divisions for la in wall.layers] == [3, 4]  # default 4 slices
     assert wall.layers[1].material.conductivity(300.0) == 0.7
+    # source: EN 12524:2000 Table 1, high-density polyethylene 980 kg/m3 (as tabulated in
+    # the ht library, ht.insulation; the same value test_materials.py checks against it)
     assert wall.layers[0].material.density == 980.0
     assert wall.thickness == pytest.approx(0.025)
     assert wall.inside.model == "natural+jet" and wall.inside.inlet_diameter == 0.004

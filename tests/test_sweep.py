@@ -239,6 +239,10 @@ def test_dataframe_has_one_row_per_case_in_si(nitrogen):
     assert list(df["case"]) == [1, 2]
     assert df["bottle.min_temperature"].iloc[0] == result.rows[0]["bottle.min_temperature"]
     assert list(df.columns) == [c.name for c in result.columns]
+    # every output a person could act on carries the caution (DEVELOPERS.md)
+    assert df.attrs["caution"] == cvsim.result.CAUTION
+    assert df.attrs["units"]["bottle.min_temperature"] == "K"
+    assert df.attrs["provenance"]["cvsim"] == result.provenance["cvsim"]
 
 
 # -------------------------------------------------------------- Dask

@@ -25,9 +25,16 @@ def test_units_error_is_cvsim_and_value_error():
     assert issubclass(UnitsError, CvsimError) and issubclass(UnitsError, ValueError)
 
 
+# Sources of the unit definitions in these tests: NIST SP 811 (2008), Guide for the Use of
+# the International System of Units, Appendix B (conversion factors: 1 bar = 1e5 Pa,
+# 1 atm = 101 325 Pa, 1 lbf/in2 and 1 kgf/cm2 from the exact pound, inch and standard
+# gravity 9.80665 m/s2, degF and degR, 1 ft = 0.3048 m, 1 L = 1e-3 m3, 1 kWh = 3.6e6 J,
+# 1 Btu_IT/(lb degF) = 4186.8 J/(kg K)); BIPM SI Brochure, 9th ed. (2019), Tables 6 and 8.
+
 @pytest.mark.parametrize("text", ["150 barg", "150 bar(g)", "150 bar g", "150 BARG",
                                   "150 bar (gauge)", "15 MPag", "15000 kPag"])
 def test_gauge_pressure_adds_standard_atmosphere(text):
+    # source: NIST SP 811 (2008), App. B: 1 bar = 1e5 Pa; standard atmosphere 101 325 Pa
     assert parse_quantity(text, "pressure") == pytest.approx(15_101_325.0, rel=1e-12)
 
 
@@ -37,10 +44,12 @@ def test_gauge_pressure_adds_standard_atmosphere(text):
     ("10 kg/cm2", 10 * KGF_CM2), ("10 kg/cm2 a", 10 * KGF_CM2),
 ])
 def test_absolute_pressures(text, expected):
+    # source: NIST SP 811 (2008), App. B (bar, atm, psi, kgf/cm2; see the module note)
     assert parse_quantity(text, "pressure") == pytest.approx(expected, rel=1e-12)
 
 
 def test_psig_and_kg_per_cm2_gauge():
+    # source: NIST SP 811 (2008), App. B: psi and kgf/cm2 (exact, see PSI and KGF_CM2)
     assert parse_quantity("100 psig", "pressure") == pytest.approx(100 * PSI + 101325.0, rel=1e-12)
     for text in ("10 kg/cm2g", "10 kg/cm2 g", "10 kgf/cm2g", "10 kgf/cm2 (g)", "10 kg/cm²g"):
         assert parse_quantity(text, "pressure") == pytest.approx(10 * KGF_CM2 + 101325.0,
@@ -65,10 +74,14 @@ def test_plain_bar_and_psi_are_absolute_with_a_note():
     ("59 degF", 288.15), ("59 °F", 288.15), ("518.67 degR", 288.15), ("300 K", 300.0),
 ])
 def test_temperatures(text, expected):
+    # source: NIST SP 811 (2008), App. B: T/K = t/degC + 273.15 = (t/degF + 459.67)/1.8
+    # = (T/degR)/1.8
     assert parse_quantity(text, "temperature") == pytest.approx(expected, abs=1e-9)
 
 
 def test_degrees_in_compound_units_are_differences():
+    # source: NIST SP 811 (2008), App. B: a temperature interval of 1 degC is 1 K;
+    # 1 Btu_IT/(lb degF) = 4186.8 J/(kg K) exactly
     assert parse_quantity("10 degC", "temperature_difference") == pytest.approx(10.0)
     assert parse_quantity("5 W/(m2 degC)", "heat_transfer_coefficient") == pytest.approx(5.0)
     assert parse_quantity("1 BTU/lb/degF", "specific_heat") == pytest.approx(4186.8, rel=1e-4)
@@ -85,6 +98,8 @@ def test_degrees_in_compound_units_are_differences():
     (0.07, "fraction", 0.07), ("1e-6", "dimensionless", 1e-6), (0.84, "dimensionless", 0.84),
 ])
 def test_dimensions(text, dimension, expected):
+    # source: SI prefixes and accepted units (BIPM SI Brochure, 9th ed., 2019, Tables 7-8:
+    # L, h, min, kWh) and NIST SP 811 (2008), App. B
     assert parse_quantity(text, dimension) == pytest.approx(expected, rel=1e-12)
 
 
@@ -127,6 +142,8 @@ def test_standard_flow_unit_is_not_a_mass_flow():
 
 def test_scfm_is_a_cubic_foot_per_minute_at_us_standard():
     # 1 ft3/min = 0.3048^3 m3 / 60 s = 4.71947443e-4 m3/s, exact by the definitions of ft and min
+    # source of the basis: US standard conditions of the gas trade, 14.696 psia and 60 degF
+    # (e.g. API MPMS ch. 14; from memory)
     q, basis, p, T = parse_standard_flow("1 SCFM")
     assert q == pytest.approx(4.71947443e-4, rel=1e-9)
     assert basis == "us-standard"
@@ -134,6 +151,9 @@ def test_scfm_is_a_cubic_foot_per_minute_at_us_standard():
 
 
 def test_named_metric_bases():
+    # source: normal conditions 0 degC, 101.325 kPa (DIN 1343) and the ISO standard
+    # reference conditions 15 degC, 101.325 kPa (ISO 13443:1996); MMSCFD = 1e6 ft3/d
+    # with 1 ft = 0.3048 m (NIST SP 811, App. B); basis names from memory
     assert parse_standard_flow("3600 Nm3/h") == pytest.approx((1.0, "normal", 101325.0, 273.15))
     q, basis, p, T = parse_standard_flow("86400 Sm3/d")
     assert (q, basis, p, T) == pytest.approx((1.0, "iso-standard", 101325.0, 288.15))

@@ -15,7 +15,15 @@ with C the flow coefficient (Kv), Fp the piping geometry factor (1 without
 reducers; with reducers give the combined xTP in place of xT, IEC 60534-2-1
 eq. 24), rho1 the upstream density and gamma the upstream heat-capacity ratio.
 cvsim uses the real upstream density (which holds the compressibility factor
-Z of the standard's density form rho1 = p1 M / (Z R T1)) and the local cp/cv.
+Z of the standard's density form rho1 = p1 M / (Z R T1)) and for gamma the
+ideal-gas heat-capacity ratio at the upstream temperature, the one exponent of
+all cvsim's perfect-gas flow equations (:mod:`cvsim.flow.exponent`; the real
+cp/cv, 8.3 for carbon dioxide at 80 bar and 310 K, would make Fg xT exceed 1 and
+the valve never choke).
+
+The gas path is :func:`gas_mass_flow` (pure) and
+:meth:`ControlValveDevice._gas_flow` (the upstream state to a flow); another
+service (liquid) adds its own pair beside them.
 
 Constants in SI. IEC 60534-2-1 Table 1 gives N6 = 3.16 for Kv with W in kg/h,
 p in kPa and rho in kg/m3. With W in kg/s and p in Pa:
@@ -34,6 +42,7 @@ from __future__ import annotations
 import math
 
 from .base import NO_FLOW, Device, Flow
+from .exponent import EXPONENT_ASSUMPTION, perfect_gas_exponent
 from .nozzle import LINEAR_BELOW
 from .schedule import clip01, level_crossings, schedule_texts
 
@@ -94,8 +103,8 @@ def is_choked(x: float, f_gamma: float, xt: float) -> bool:
     return x >= f_gamma * xt
 
 
-def mass_flow(kv: float, p1: float, rho1: float, p2: float, gamma: float, xt: float,
-              fp: float = 1.0) -> tuple[float, bool]:
+def gas_mass_flow(kv: float, p1: float, rho1: float, p2: float, gamma: float, xt: float,
+                  fp: float = 1.0) -> tuple[float, bool]:
     """Mass flow of a gas through a control valve, IEC 60534-2-1, turbulent.
 
         W = N6 Fp Kv Y sqrt(x p1 rho1),   x = min((p1 - p2)/p1, Fg xT)
@@ -106,7 +115,8 @@ def mass_flow(kv: float, p1: float, rho1: float, p2: float, gamma: float, xt: fl
     p1 : upstream pressure [Pa] (absolute)
     rho1 : upstream density [kg/m3]
     p2 : downstream pressure [Pa] (absolute)
-    gamma : upstream heat-capacity ratio cp/cv [-]
+    gamma : upstream heat-capacity ratio [-]; cvsim passes the ideal-gas k at the
+        upstream temperature (:func:`cvsim.flow.exponent.perfect_gas_exponent`)
     xt : pressure differential ratio factor xT (xTP with fittings) [-]
     fp : piping geometry factor Fp [-]
 
@@ -119,6 +129,10 @@ def mass_flow(kv: float, p1: float, rho1: float, p2: float, gamma: float, xt: fl
     Validity: turbulent flow (valve Reynolds number above 10 000), single-phase
     gas or vapour; the standard's equations are not meant for two-phase flow.
     Source: IEC 60534-2-1:2011, eqs. 14, 16, 17, 19, 20 and Table 1.
+
+    >>> w, choked = gas_mass_flow(10.0, 80e5, 327.71, 1e5, 1.2832, 0.7)  # CO2 80 bar, 310 K
+    >>> round(w, 2), choked
+    (7.59, True)
     """
     if p2 >= p1 or kv <= 0.0:
         return 0.0, False
@@ -129,8 +143,12 @@ def mass_flow(kv: float, p1: float, rho1: float, p2: float, gamma: float, xt: fl
     return _mass_flow_at(kv, p1, rho1, x, gamma, xt, fp)
 
 
+#: the gas-service flow equation under its former name
+mass_flow = gas_mass_flow
+
+
 def _mass_flow_at(kv, p1, rho1, x, gamma, xt, fp):
-    """W [kg/s] and choked at pressure differential ratio x (see :func:`mass_flow`)."""
+    """W [kg/s] and choked at pressure differential ratio x (see :func:`gas_mass_flow`)."""
     f_gamma = specific_heat_ratio_factor(gamma)
     choked = is_choked(x, f_gamma, xt)
     x_eff = f_gamma * xt if choked else x
@@ -214,8 +232,8 @@ def relative_flow_coefficient(s: float, characteristic: str, rangeability: float
       below s0 = 1/R the curve is bridged by the straight line from the origin
       to (s0, R^(s0 - 1)). The joint is a kink, continuous in f; the solver
       breaks its steps where the travel passes s0.
-    * ``quick-opening``: f = sqrt(s) (a common idealisation of the quick-opening
-      curve; common practice, no source).
+    * ``quick-opening``: f = sqrt(s), the usual idealisation of the quick-opening
+      curve (Seborg, Edgar & Mellichamp, same chapter; from memory).
 
     s is clipped to [0, 1].
     """
@@ -230,16 +248,6 @@ def relative_flow_coefficient(s: float, characteristic: str, rangeability: float
     if characteristic == "quick-opening":
         return math.sqrt(s)
     raise ValueError(f"unknown characteristic {characteristic!r}")
-
-
-def upstream_gamma(fluid, up) -> float:
-    """Heat-capacity ratio of the upstream state: its cp/cv, or where that is not
-    defined (saturated vapour drawn from a two-phase vessel) the ideal-gas ratio
-    at its temperature."""
-    g = up.gamma
-    if g == g and g > 1.0:
-        return g
-    return fluid.ideal_gas_gamma(up.rho, up.T)
 
 
 class ControlValveDevice(Device):
@@ -277,22 +285,28 @@ class ControlValveDevice(Device):
             return NO_FLOW
         kv = d.kv * f
         if a.p > b.p:
-            w, choked = mass_flow(kv, a.p, a.rho, b.p, upstream_gamma(self.fluid, a), d.xt,
-                                  d.piping_factor)
+            w, choked = self._gas_flow(kv, a, b.p)
             return Flow(w, a.h, a.h, choked)
-        w, choked = mass_flow(kv, b.p, b.rho, a.p, upstream_gamma(self.fluid, b), d.xt,
-                              d.piping_factor)
+        w, choked = self._gas_flow(kv, b, a.p)
         return Flow(-w, b.h, b.h, choked)
+
+    def _gas_flow(self, kv: float, up, p_down: float) -> tuple[float, bool]:
+        """(W [kg/s], choked) of gas from the upstream state ``up`` to ``p_down`` [Pa]
+        at flow coefficient ``kv`` [m3/h]: IEC 60534-2-1 with the real density and
+        the ideal-gas k at the upstream temperature."""
+        d = self.d
+        return gas_mass_flow(kv, up.p, up.rho, p_down, perfect_gas_exponent(self.fluid, up),
+                             d.xt, d.piping_factor)
 
     @classmethod
     def assumptions(cls, definitions):
-        return ["Control valves: IEC 60534-2-1 compressible-flow equation, turbulent, with the "
-                "real upstream density and local cp/cv; xT (or xTP) and Fp constant over the "
+        return ["Control valves: IEC 60534-2-1 compressible-flow equation, turbulent, "
+                f"{EXPONENT_ASSUMPTION}; xT (or xTP) and Fp constant over the "
                 "travel; flow coefficient scaled by the inherent characteristic; "
                 "isenthalpic throttling."]
 
 
 __all__ = ["CHARACTERISTICS", "ControlValveDevice", "KV_PER_CV", "N6_SI", "expansion_factor",
-           "fitting_loss_coefficients", "is_choked", "kv_from_cv", "mass_flow",
+           "fitting_loss_coefficients", "gas_mass_flow", "is_choked", "kv_from_cv", "mass_flow",
            "piping_geometry_factor", "relative_flow_coefficient", "specific_heat_ratio_factor",
            "xt_with_fittings"]

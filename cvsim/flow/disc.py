@@ -13,6 +13,7 @@ coefficient). What moves them is a discrete state switched by solver events:
 from __future__ import annotations
 
 from .base import NO_FLOW, Flow, Switch
+from .exponent import EXPONENT_ASSUMPTION
 from .orifice import OrificeDevice
 
 
@@ -25,6 +26,15 @@ class _PressureMovedOrifice(OrificeDevice):
         return ()
 
     def schedule(self):
+        return []
+
+    @staticmethod
+    def flow_model_assumptions(kind: str, definitions) -> list[str]:
+        """The perfect-gas exponent in words, when any of ``definitions`` uses the
+        ideal-gas flow model."""
+        if any(d.flow_model == "ideal-gas" for d in definitions):
+            return [f"{kind} with the ideal-gas flow model: perfect-gas nozzle, "
+                    f"{EXPONENT_ASSUMPTION}."]
         return []
 
 
@@ -64,7 +74,8 @@ class BurstingDiscDevice(_PressureMovedOrifice):
     def assumptions(cls, definitions):
         return ["Bursting discs burst when the absolute pressure of the protected node "
                 "reaches the burst pressure (back pressure does not shift it) and then flow "
-                "as an orifice with the stated discharge coefficient, both ways, for good."]
+                "as an orifice with the stated discharge coefficient, both ways, for good."
+                ] + cls.flow_model_assumptions("Bursting discs", definitions)
 
 
 class CheckValveDevice(_PressureMovedOrifice):
@@ -100,4 +111,5 @@ class CheckValveDevice(_PressureMovedOrifice):
     def assumptions(cls, definitions):
         return ["Check valves open when the forward pressure difference reaches the cracking "
                 "pressure and shut when it falls to zero; open, they flow as an orifice in the "
-                "forward direction only (no pressure loss for holding the disc open)."]
+                "forward direction only (no pressure loss for holding the disc open)."
+                ] + cls.flow_model_assumptions("Check valves", definitions)

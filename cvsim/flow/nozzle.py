@@ -12,7 +12,9 @@ Ideal-gas form (perfect-gas nozzle, e.g. Anderson, *Modern Compressible Flow*,
         G = sqrt(2 g/(g-1) p0 rho0 (r^(2/g) - r^((g+1)/g)))
 
 with the stagnation density rho0 standing for p0/(Z R T0), so the real
-compressibility of the upstream gas is kept, and g the local heat-capacity ratio.
+compressibility of the upstream gas is kept, and g the exponent: cvsim passes the
+ideal-gas heat-capacity ratio at the upstream temperature, never the real cp/cv
+(:mod:`cvsim.flow.exponent`).
 
 Real-gas form (isentropic nozzle on the real equation of state; the homogeneous
 equilibrium model where the expansion enters the two-phase region): along the
@@ -39,8 +41,11 @@ from ..errors import StateError
 from ..fluid import State
 
 #: Relative pressure difference (p0 - pb)/p0 below which the flux is linear in
-#: the difference instead of following the square root (regularisation). At
-#: 1e-4 the flux changes by less than 1 % of its value at 1 % difference.
+#: the difference instead of following the square root (regularisation). Since
+#: G ~ sqrt(dp) there, the flux at 1e-4 is 10 % of its value at 1 % difference
+#: (sqrt(1e-4/1e-2) = 0.1); below the joint the linear piece passes less than the
+#: square root would, by at most a quarter of the flux at the joint (the largest
+#: value of sqrt(u) - u), i.e. 2.5 % of the flux at 1 % difference.
 LINEAR_BELOW = 1e-4
 
 #: relative tolerance on the throat temperature of a two-phase throat search
@@ -81,7 +86,8 @@ def ideal_gas_mass_flux(p0: float, rho0: float, gamma: float, pb: float) -> tupl
     ----------
     p0 : upstream stagnation pressure [Pa]
     rho0 : upstream stagnation density [kg/m3] (p0/(Z R T0) for a real gas)
-    gamma : heat-capacity ratio [-]
+    gamma : exponent [-]: the ideal-gas heat-capacity ratio at the upstream temperature
+        (:func:`cvsim.flow.exponent.perfect_gas_exponent`)
     pb : back pressure [Pa]
 
     Returns

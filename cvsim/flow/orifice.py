@@ -4,6 +4,7 @@ from __future__ import annotations
 import math
 
 from .base import NO_FLOW, Device, Flow
+from .exponent import perfect_gas_exponent
 from .nozzle import NozzleHint, at_triple_point, ideal_gas_mass_flux, real_gas_mass_flux
 
 
@@ -11,7 +12,10 @@ class OrificeDevice(Device):
     """Compressible flow through an orifice: mdot = Cd * A * G(upstream, p_back).
 
     G is the isentropic throat mass flux of :mod:`cvsim.flow.nozzle`, real-gas
-    (default) or ideal-gas form. The flow goes from the node at the higher
+    (default) or ideal-gas form; the ideal-gas form takes the real upstream density
+    and the ideal-gas k at the upstream temperature
+    (:func:`cvsim.flow.exponent.perfect_gas_exponent`), also from a saturated or
+    two-phase source. The flow goes from the node at the higher
     pressure to the other; the upstream node gives the stagnation state.
     Outside ``[open_from, open_until)`` the orifice passes nothing (an isolation
     valve that opens or closes at once; both times are solver breakpoints).
@@ -68,7 +72,7 @@ class OrificeDevice(Device):
                     self.solid_from is None or self._t < self.solid_from):
                 self.solid_from = self._t
             return g, choked
-        return ideal_gas_mass_flux(up.p, up.rho, _gamma(up), pb)
+        return ideal_gas_mass_flux(up.p, up.rho, perfect_gas_exponent(self.fluid, up), pb)
 
     def solid_warning(self) -> list[str]:
         """The warning when the expansion through the device reached the triple point."""
@@ -81,13 +85,3 @@ class OrificeDevice(Device):
 
     def report(self, initial, switches, t_end):
         return {}, self.solid_warning()
-
-
-def _gamma(up) -> float:
-    """Heat-capacity ratio of the upstream state; for a two-phase or saturated
-    upstream state (cp undefined) the isentropic exponent of the vapour is not
-    available either, so the ideal-gas form uses 1.0 + R/cv as a floor."""
-    g = up.gamma
-    if g == g and g > 1.0:
-        return g
-    return 1.3  # pragma: no cover - ideal-gas form on a two-phase source is flagged elsewhere

@@ -117,14 +117,41 @@ def is_critical(p1: float, p2: float, k: float) -> bool:
     return p2 / p1 <= critical_pressure_ratio(k)
 
 
+def uses_critical_equation(r: float, k: float, balanced: bool) -> bool:
+    """Whether a valve's gas capacity takes API 520 Part I's critical-flow equation
+    (with Kb) at pressure ratio r = P2/P1 [-], else the subcritical (F2) equation.
+
+    * critical flow, r <= (2/(k+1))^(k/(k-1)): the critical-flow equation, any valve;
+    * subcritical flow, conventional and pilot-operated valves: the subcritical
+      equation with F2 (Kb does not enter it; the back pressure acts through F2);
+    * subcritical flow, balanced-bellows valves: the critical-flow equation with the
+      back-pressure correction factor Kb (from the valve's maker).
+
+    Parameters
+    ----------
+    r : back pressure over relieving pressure, P2/P1 [-]
+    k : ideal-gas heat-capacity ratio at relieving temperature [-]
+    balanced : the valve is a balanced-bellows valve
+
+    Source: API 520 Part I, sec. 5.6.3 (sizing for subcritical flow): 5.6.3.1
+    conventional and pilot-operated valves by the F2 equations, 5.6.3.2 balanced
+    valves in subcritical flow by the critical-flow equations with Kb obtained from
+    the manufacturer (section numbers of the 9th/10th editions, from memory).
+
+    >>> uses_critical_equation(0.794, 1.11, False), uses_critical_equation(0.794, 1.11, True)
+    (False, True)
+    """
+    return balanced or r <= critical_pressure_ratio(k)
+
+
 def compressibility_factor(p: float, rho: float, T: float, molar_mass: float) -> float:
     """Z = p M / (rho R T) [-] of a state: p [Pa], rho [kg/m3], T [K], M [kg/mol]."""
     return p * molar_mass / (rho * R_UNIVERSAL * T)
 
 
 def api520_mass_flow(area: float, p1: float, p2: float, T: float, Z: float, M: float,
-                     k: float, kd: float = KD_GAS, kb: float = 1.0, kc: float = 1.0
-                     ) -> tuple[float, bool]:
+                     k: float, kd: float = KD_GAS, kb: float = 1.0, kc: float = 1.0,
+                     balanced: bool = False) -> tuple[float, bool]:
     """Gas capacity of a relief valve by API 520 Part I (critical or subcritical).
 
     Parameters
@@ -137,13 +164,19 @@ def api520_mass_flow(area: float, p1: float, p2: float, T: float, Z: float, M: f
     M : molar mass [kg/mol]
     k : ideal-gas heat-capacity ratio at relieving temperature [-]
     kd : effective coefficient of discharge [-] (0.975 for preliminary gas sizing)
-    kb : back-pressure correction factor [-] (critical flow only, as in API 520)
+    kb : back-pressure correction factor [-] (critical flow; for balanced-bellows
+        valves also subcritical flow, as in API 520: :func:`uses_critical_equation`)
     kc : combination correction factor [-] (0.9 with an uncertified rupture disc)
+    balanced : a balanced-bellows valve
 
     Returns
     -------
     (W [kg/s], critical). W = 0 for p2 >= p1; below a relative pressure
-    difference of 1e-4 W is linear in the difference (regularisation).
+    difference of 1e-4 W is linear in the difference (regularisation). A
+    balanced-bellows valve in subcritical flow passes the critical-flow capacity
+    times Kb, but never more than the subcritical (F2) capacity, the isentropic
+    nozzle's at that back pressure: with a constant Kb the flow still falls to zero
+    as P2 reaches P1 (a maker's Kb falls with back pressure by itself).
 
     Source: API 520 Part I, sec. 5.6, SI-form equations (see module docstring).
     """
@@ -151,34 +184,40 @@ def api520_mass_flow(area: float, p1: float, p2: float, T: float, Z: float, M: f
         return 0.0, False
     frac = (p1 - p2) / p1
     if frac < LINEAR_BELOW:
-        w_lin, _ = _api520_at(area, p1, 1.0 - LINEAR_BELOW, T, Z, M, k, kd, kb, kc)
+        w_lin, _ = _api520_at(area, p1, 1.0 - LINEAR_BELOW, T, Z, M, k, kd, kb, kc, balanced)
         return w_lin * frac / LINEAR_BELOW, False
-    return _api520_at(area, p1, p2 / p1, T, Z, M, k, kd, kb, kc)
+    return _api520_at(area, p1, p2 / p1, T, Z, M, k, kd, kb, kc, balanced)
 
 
-def _api520_at(area, p1, r, T, Z, M, k, kd, kb, kc):
+def _api520_at(area, p1, r, T, Z, M, k, kd, kb, kc, balanced=False):
     """W [kg/s] and critical at pressure ratio r = P2/P1 (see :func:`api520_mass_flow`)."""
     a_mm2 = area * 1e6
     m_kmol = M * 1e3
     p1_kpa = p1 * 1e-3
-    if r <= critical_pressure_ratio(k):
-        w_h = a_mm2 * api520_c(k) * kd * p1_kpa * kb * kc * math.sqrt(m_kmol / (T * Z))
-        return w_h / 3600.0, True
+    critical = r <= critical_pressure_ratio(k)
+    w_crit = None
+    if uses_critical_equation(r, k, balanced):
+        w_crit = a_mm2 * api520_c(k) * kd * p1_kpa * kb * kc * math.sqrt(m_kmol / (T * Z))
+        if critical:
+            return w_crit / 3600.0, True
     f2 = api520_f2(k, r)
     w_h = a_mm2 * f2 * kd * kc / API_SUBCRITICAL_CONSTANT * math.sqrt(
         m_kmol * p1_kpa * p1_kpa * (1.0 - r) / (T * Z))
+    if w_crit is not None:  # balanced bellows, subcritical: Kb form, nozzle-limited
+        w_h = min(w_crit, w_h)
     return w_h / 3600.0, False
 
 
 def api520_area(mass_flow: float, p1: float, p2: float, T: float, Z: float, M: float,
-                k: float, kd: float = KD_GAS, kb: float = 1.0, kc: float = 1.0) -> float:
+                k: float, kd: float = KD_GAS, kb: float = 1.0, kc: float = 1.0,
+                balanced: bool = False) -> float:
     """Required effective discharge area [m2] for a gas relief load ``mass_flow`` [kg/s]
     (API 520 Part I sizing equations; arguments as :func:`api520_mass_flow`).
 
     >>> round(api520_area(24270 / 3600, 670e3, 101.325e3, 348.0, 0.90, 0.051, 1.11) * 1e6)
     3699
     """
-    w_unit, _ = api520_mass_flow(1.0, p1, p2, T, Z, M, k, kd, kb, kc)
+    w_unit, _ = api520_mass_flow(1.0, p1, p2, T, Z, M, k, kd, kb, kc, balanced)
     return mass_flow / w_unit
 
 
@@ -271,7 +310,8 @@ class ReliefValveDevice(Device):
         M = self.molar_mass
         Z = compressibility_factor(a.p, a.rho, a.T, M)
         k = self.fluid.ideal_gas_gamma(a.rho, a.T)
-        w, critical = api520_mass_flow(d.area, a.p, b.p, a.T, Z, M, k, d.kd, d.kb, d.kc)
+        w, critical = api520_mass_flow(d.area, a.p, b.p, a.T, Z, M, k, d.kd, d.kb, d.kc,
+                                       d.design == "balanced-bellows")
         return Flow(lift * w, a.h, a.h, critical)
 
     # --------------------------------------------------------------- summary
@@ -316,6 +356,10 @@ class ReliefValveDevice(Device):
                "ideal-gas k at the relieving temperature; set, reseat and full-lift pressures "
                "compare the absolute pressure of the protected node (back pressure does not "
                "shift them)."]
+        if any(d.design == "balanced-bellows" for d in definitions):
+            out.append("Balanced-bellows relief valves in subcritical flow: the critical-flow "
+                       "equation with the stated Kb (API 520 Part I), at most the "
+                       "subcritical (F2) capacity.")
         actions = {d.action for d in definitions}
         if "pop" in actions:
             out.append("Pop-action relief valves reach full lift (full rated capacity) at set "
@@ -341,4 +385,4 @@ def _most_within(times: list[float], window: float) -> tuple[int, float]:
 __all__ = ["API526_AREAS_IN2", "API526_LETTERS", "KC_RUPTURE_DISC", "KD_GAS",
            "ReliefValveDevice", "api520_area", "api520_c", "api520_f2", "api520_mass_flow",
            "api526_area", "compressibility_factor", "flow_function", "is_critical",
-           "modulating_lift"]
+           "modulating_lift", "uses_critical_equation"]

@@ -211,6 +211,18 @@ FILL_JET = Validity(
 JET_C = 0.56
 JET_N = 0.67
 
+#: what every run that uses the fill-jet correlation says (its warnings)
+JET_CAUTION = (
+    "inside coefficient while filling from the fill-jet correlation Nu_D = 0.56 Re_d^0.67 "
+    "(Woodfield, Monde & Mitsutake 2007 form), whose coefficients are quoted from memory "
+    "and whose range is not confirmed. A higher inside coefficient moves heat from the gas "
+    "into the wall, so the peak gas temperature of this run may be optimistic: for a "
+    "limit on the peak gas temperature use 'inside: {model: natural}' (jets not counted, "
+    "the conservative choice) or a fixed coefficient with a 'while_filling' value from a "
+    "measurement of the vessel type (e.g. 500 W/(m2 K) fitted for 39-205 L hydrogen "
+    "cylinders filled to 35-70 MPa in 5-20 min, Woodfield, Monde & Takano, J. Thermal "
+    "Science and Technology 3(2) (2008) 241)")
+
 
 def nu_fill_jet(Re_d: float) -> float:
     """Nusselt number on the vessel's inside diameter from the jet of a filling stream.
@@ -230,8 +242,12 @@ def nu_fill_jet(Re_d: float) -> float:
     of averaged heat transfer coefficients in high-pressure vessel during charging
     with hydrogen, nitrogen or argon gas", J. Thermal Science and Technology 2(2)
     (2007) 180-191). The coefficients here are from memory of later papers that quote
-    it; the original with its range of Re_d was not available: verify before relying
-    on it. Every run that uses it says so in its assumptions.
+    it; the original with its range of Re_d was not available, and a search of the
+    fast-filling literature at hand did not turn up a source that prints it: verify
+    before relying on it. Every run that uses it says so in its assumptions and
+    warnings (:data:`JET_CAUTION`); the conservative choice for a fill's peak gas
+    temperature is natural convection alone (the jet can only add to the
+    coefficient), which is what ``inside: {model: natural}`` gives.
     """
     return JET_C * Re_d**JET_N
 
@@ -269,7 +285,8 @@ def mixed(h_forced: float, h_natural: float, n: float = MIXED_EXPONENT) -> float
 
 
 __all__ = [
-    "FILL_JET", "G", "HORIZONTAL_CYLINDER", "JET_C", "JET_N", "MIXED_EXPONENT", "NATURAL",
+    "FILL_JET", "G", "HORIZONTAL_CYLINDER", "JET_C", "JET_CAUTION", "JET_N", "MIXED_EXPONENT",
+    "NATURAL",
     "RangeWatch", "SPHERE", "VERTICAL_PLATE", "Validity", "jet_reynolds", "mixed",
     "nu_fill_jet", "nu_horizontal_cylinder", "nu_sphere", "nu_vertical_plate", "prandtl",
     "rayleigh",

@@ -1,13 +1,17 @@
 """Transport and thermal properties for convection: the gas in a vessel and the air outside.
 
 * :class:`GasProperties` reads density, heat capacity, viscosity, conductivity and
-  expansion coefficient of a vessel's gas from CoolProp at the gas's (density,
-  temperature), with its own AbstractState (the fluid layer's is busy with the
-  vessel and nozzle states). A two-phase vessel gives its saturated vapour's
-  properties (the gas space). The last state is kept: evaluations that change only
-  wall temperatures (the Jacobian columns of a wall) cost nothing. Cost measured on
-  the 2-core machine with CoolProp 7.2: 6 us (hydrogen) to 28 us (carbon dioxide)
-  per new state.
+  expansion coefficient of a vessel's gas from CoolProp, with its own AbstractState
+  (the fluid layer's is busy with the vessel and nozzle states): at the gas's own
+  (density, temperature) (:meth:`GasProperties.at`, for the jet of a fill) or at the
+  film temperature (T_gas + T_wall)/2 and the gas's pressure
+  (:meth:`GasProperties.film`, for natural convection: Incropera et al., 7th ed.,
+  sec. 9.6, evaluate the fluid's properties at the film temperature). A two-phase
+  vessel gives its saturated vapour's properties (the gas space). The last state of
+  each is kept. Cost measured on the 2-core machine with CoolProp 7.2: 6 us
+  (hydrogen) to 28 us (carbon dioxide) per new (density, temperature) state; the film
+  state is a (pressure, temperature) flash, 5 to 45 us more, paid again whenever the
+  wall's inside temperature changes (the Jacobian columns of the inside node).
 * :class:`AirTable` tabulates air at the local atmospheric pressure once per run
   (CoolProp's pseudo-pure Air) and interpolates linearly in temperature: a film
   temperature costs about a microsecond instead of a CoolProp call.
@@ -35,8 +39,11 @@ class GasProperties:
         self._DT = CP.DmassT_INPUTS
         self._PT = CP.PT_INPUTS
         self._PQ = CP.PQ_INPUTS
+        self._liquid = CP.iphase_liquid
         self._key = None
         self._value = None
+        self._film_key = None
+        self._film_value = None
         self.evaluations = 0
 
     def at(self, gas) -> tuple[float, float, float, float, float]:
@@ -57,6 +64,43 @@ class GasProperties:
             value = (a.rhomass(), a.cpmass(), a.viscosity(), a.conductivity(),
                      a.isobaric_expansion_coefficient())
         self._key, self._value = key, value
+        return value
+
+    def film(self, gas, T_wall: float) -> tuple[float, float, float, float, float]:
+        """Properties at the film temperature T_f = (T_gas + T_wall)/2 [K] and the
+        gas's pressure, the state natural-convection correlations are evaluated at
+        (Incropera et al., *Fundamentals of Heat and Mass Transfer*, 7th ed., sec. 9.6
+        and eq. 9.26 ff.: properties at the film temperature).
+
+        Two-phase gas space: the saturated vapour at the gas's pressure, as
+        :meth:`at`. Below the critical pressure a film colder than the dew point
+        (where the (p, T_f) state would be liquid: condensation on the wall, which
+        cvsim does not model) also takes the saturated vapour. Ideal-gas model:
+        rho = p/(R T_f), beta = 1/T_f, constant cp; viscosity and conductivity from
+        CoolProp at (p, T_f).
+        """
+        T_f = 0.5 * (gas.T + T_wall)
+        key = (gas.p, T_f, gas.two_phase)
+        if key == self._film_key:
+            return self._film_value
+        if gas.two_phase:
+            value = self.at(gas)
+        else:
+            self.evaluations += 1
+            a = self._as
+            try:
+                a.update(self._PT, gas.p, T_f)
+                if self.fluid.model == "ideal-gas":
+                    value = (gas.p / (self.fluid.R * T_f), gas.cp, a.viscosity(),
+                             a.conductivity(), 1.0 / T_f)
+                else:
+                    if a.phase() == self._liquid:  # film below the dew point
+                        a.update(self._PQ, gas.p, 1.0)
+                    value = (a.rhomass(), a.cpmass(), a.viscosity(), a.conductivity(),
+                             a.isobaric_expansion_coefficient())
+            except ValueError:  # beyond the equation of state's range: the gas's own state
+                value = self.at(gas)
+        self._film_key, self._film_value = key, value
         return value
 
 

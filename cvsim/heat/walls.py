@@ -39,7 +39,8 @@ import math
 
 import numpy as np
 
-from .convection import NATURAL, RangeWatch, jet_reynolds, nu_fill_jet, prandtl, rayleigh
+from .convection import (JET_CAUTION, NATURAL, RangeWatch, jet_reynolds, nu_fill_jet,
+                         prandtl, rayleigh)
 from .definitions import FlameExposure, PoolFire, Wall
 from .fire import SIGMA, api521_pool_fire_heat, flame_heat_flux
 from .loads import HeatComponent
@@ -52,6 +53,55 @@ BIOT_LIMIT = 0.1      # lumped-wall criterion (Incropera 7th ed., eq. 5.10)
 #: differ by more than this (at smaller differences the heat flux is negligible
 #: whatever the correlation, and the Rayleigh number tends to zero)
 WATCH_MIN_DIFFERENCE = 0.1
+
+
+def fire_equivalent_coefficient(q_flux: float, T_wall: float) -> float:
+    """Coefficient [W/(m2 K)] that stands for a fire's heat flux in a Biot number.
+
+        h_fire = q / (T_e - T_w),    T_e = (q / sigma + T_w^4)^(1/4)
+
+    T_e is the temperature of a black-body flame that would give the heat flux q at
+    the present wall temperature; h_fire is that flame's radiative coefficient. For
+    a radiant flame of emissivity below one it is larger than q/(T_flame - T_w)
+    (T_e is lower), so the check errs on the strict side; as q -> 0 it tends to the
+    black-body radiative coefficient 4 sigma T_w^3.
+
+    Parameters
+    ----------
+    q_flux : heat flux into the exposed surface [W/m2] (API 521 pool fire: its heat
+        input over the exposed area; flame model: its flux)
+    T_wall : outer wall temperature [K]
+
+    Validity: a way to put a heat flux that does not depend on a fluid temperature
+    (the API 521 empirical heat input) into the lumped-wall criterion; with q <= 0
+    the radiative coefficient 4 sigma T_w^3 is returned.
+
+    Source: Stefan-Boltzmann law and the radiative coefficient
+    h_r = sigma (T_s + T_sur)(T_s^2 + T_sur^2) of Incropera et al., *Fundamentals of
+    Heat and Mass Transfer*, 7th ed., eqs. 1.7-1.9, with the surroundings at T_e.
+
+    >>> round(fire_equivalent_coefficient(82561.0, 300.0), 1)  # black flame at 1100 K
+    103.2
+    """
+    if not q_flux > 0.0:
+        return 4.0 * SIGMA * T_wall**3
+    T_e = (q_flux / SIGMA + T_wall**4) ** 0.25
+    return q_flux / (T_e - T_wall)
+
+
+def lumped_biot_number(h: float, resistance: float) -> float:
+    """Biot number of a lumped wall, Bi = h R [-], R = sum of L_i/k_i [m2 K/W].
+
+    The lumped (one-temperature) wall holds when Bi < 0.1 with h the largest
+    coefficient acting on either face (Incropera et al., 7th ed., sec. 5.1-5.2,
+    eq. 5.10, with L_c the thickness for a wall heated from one side): cvsim takes the
+    largest of the inside coefficient, the outside convective plus radiative one and,
+    in a fire, the fire's equivalent coefficient (:func:`fire_equivalent_coefficient`).
+
+    >>> lumped_biot_number(50.0, 0.01 / 50.0)   # 10 mm of steel, k = 50 W/(m K)
+    0.01
+    """
+    return h * resistance
 
 
 class WallGrid:
@@ -219,7 +269,8 @@ class WallTerm(HeatComponent):
         self.exposed = 0.0 if d.fire is None else min(d.fire.area, self.A_out)
         self.watch = RangeWatch()
         self._T_range = {}      # layer index -> [min, t, max, t]
-        self._biot = [0.0, 0.0]  # largest Biot number of a lumped wall and its time
+        self._biot = [0.0, 0.0, 0.0]  # largest Biot number of a lumped wall, time, h
+        self._h_biot_out = 0.0   # outside coefficient for the Biot number (fire included)
         self._jets = []          # (device index, +1/-1 for flow into the vessel, diameter)
         self._gas = None
         self._air = None
@@ -311,7 +362,7 @@ class WallTerm(HeatComponent):
         dydt[o + N] = q_out
         dydt[o + N + 1] = q_fire
         self._last = ((t, gas.rho, gas.T, own.tobytes()), T, h_in, h_out, q_out, q_fire,
-                      self._in_groups, self._out_groups)
+                      self._in_groups, self._out_groups, max(h_in, self._h_biot_out))
         return -q_in
 
     def _inflows(self, segment):
@@ -327,7 +378,8 @@ class WallTerm(HeatComponent):
             if ins.while_filling is not None and any(True for _ in self._inflows(segment)):
                 return ins.while_filling
             return ins.coefficient
-        rho, cp, mu, k, beta = self._gas.at(gas)
+        # natural convection: properties at the film temperature (Incropera 7th ed. 9.6)
+        rho, cp, mu, k, beta = self._gas.film(gas, Tw)
         L = self.d.inside_length
         Ra = rayleigh(abs(beta), gas.T - Tw, L, rho, mu, k, cp)
         Pr = prandtl(mu, k, cp)
@@ -340,7 +392,9 @@ class WallTerm(HeatComponent):
         cubes = h**3
         for mdot, diameter in self._inflows(segment):
             if diameter > 0.0:
-                cubes += (nu_fill_jet(jet_reynolds(mdot, diameter, mu)) * k / D) ** 3
+                # the jet's Reynolds number and Nusselt number on the gas's own properties
+                _, _, mu_g, k_g, _ = self._gas.at(gas)
+                cubes += (nu_fill_jet(jet_reynolds(mdot, diameter, mu_g)) * k_g / D) ** 3
         # several jets and natural convection: h^3 = sum h_F^3 + h_N^3 (see convection.mixed)
         return cubes ** (1.0 / 3.0) if cubes > h**3 else h
 
@@ -349,6 +403,7 @@ class WallTerm(HeatComponent):
         fire = self.d.fire
         burning = fire is not None and segment.midpoint >= fire.starts_at
         q_fire = 0.0
+        self._h_biot_out = 0.0
         if burning:
             if isinstance(fire, PoolFire):
                 q_fire = api521_pool_fire_heat(fire.area, fire.environment_factor,
@@ -357,6 +412,8 @@ class WallTerm(HeatComponent):
                 q_fire = self.exposed * flame_heat_flux(
                     Tw, fire.flame_temperature, fire.flame_emissivity,
                     fire.surface_emissivity, fire.convective_coefficient)
+            if self.exposed > 0.0:
+                self._h_biot_out = fire_equivalent_coefficient(q_fire / self.exposed, Tw)
         if out.model == "insulated":
             return q_fire, q_fire, 0.0
         T_amb = segment.signal(out.ambient, t)
@@ -372,8 +429,12 @@ class WallTerm(HeatComponent):
             self._out_groups = (validity, Ra, Pr, Tw - T_amb)
         area = self.A_out - (self.exposed if burning else 0.0)
         q = h * (T_amb - Tw)
+        h_surface = h
         if out.emissivity > 0.0:
             q += out.emissivity * SIGMA * (T_amb**4 - Tw**4)
+            # radiative coefficient (Incropera 7th ed., eq. 1.9), for the Biot number
+            h_surface += out.emissivity * SIGMA * (Tw + T_amb) * (Tw * Tw + T_amb * T_amb)
+        self._h_biot_out = max(self._h_biot_out, h_surface)
         return area * q + q_fire, q_fire, h
 
     # ------------------------------------------------------------------ energy
@@ -399,8 +460,8 @@ class WallTerm(HeatComponent):
     def values(self, t, gas, own, segment) -> list[float]:
         if self._last is None or self._last[0] != (t, gas.rho, gas.T, own.tobytes()):
             self.evaluate(t, gas, own, segment, np.zeros(self.offset + self.n_states))
-        _, T, h_in, h_out, q_out, q_fire, inside, outside = self._last
-        self._watch(t, T, h_in, h_out, inside, outside)
+        _, T, h_in, h_out, q_out, q_fire, inside, outside, h_biot = self._last
+        self._watch(t, T, h_biot, inside, outside)
         row = [float(T[0]), float(T[-1])]
         if self.d.model == "layered":
             row += [float(v) for v in T]
@@ -409,7 +470,7 @@ class WallTerm(HeatComponent):
             row.append(q_fire)
         return row
 
-    def _watch(self, t, T, h_in, h_out, inside, outside):
+    def _watch(self, t, T, h_biot, inside, outside):
         for groups in (inside, outside):
             if groups is not None:
                 validity, Ra, Pr, dT = groups
@@ -431,9 +492,9 @@ class WallTerm(HeatComponent):
         if self.d.model == "lumped":
             resistance = sum(la.thickness / la.material.conductivity(T[0])
                              for la in self.d.layers)
-            bi = max(h_in, h_out) * resistance
+            bi = lumped_biot_number(h_biot, resistance)
             if bi > self._biot[0]:
-                self._biot = [bi, t]
+                self._biot = [bi, t, h_biot]
 
     def warnings(self) -> list[str]:
         where = f"vessel '{self.vessel}' wall"
@@ -452,9 +513,12 @@ class WallTerm(HeatComponent):
                            f"range of its property data ({rng}); {mat.beyond}")
         if self.d.model == "lumped" and self._biot[0] > BIOT_LIMIT:
             out.append(f"{where}: lumped wall with Biot number up to {self._biot[0]:.3g} "
-                       f"(at t = {self._biot[1]:.4g} s), above {BIOT_LIMIT:g}: the wall's "
-                       "temperature is not uniform through its thickness (Incropera 7th ed., "
-                       "sec. 5.2); use a layered wall")
+                       f"(at t = {self._biot[1]:.4g} s, coefficient {self._biot[2]:.4g} "
+                       "W/(m2 K), the largest of inside, outside and fire), above "
+                       f"{BIOT_LIMIT:g}: the wall's temperature is not uniform through its "
+                       "thickness (Incropera 7th ed., sec. 5.2); use a layered wall")
+        if self.d.inside.model == "natural+jet":
+            out.append(f"{where}: {JET_CAUTION}")
         return out
 
     def assumptions(self) -> list[str]:
@@ -478,12 +542,19 @@ class WallTerm(HeatComponent):
                 text += f", {ins.while_filling:g} W/(m2 K) while a stream enters"
         else:
             text = (f"natural convection (Churchill & Chu, {shape}) with the gas's CoolProp "
-                    "transport properties (saturated vapour's when two phases are present), "
+                    "transport properties at the film temperature (T_gas + T_wall)/2 and the "
+                    "gas's pressure (saturated vapour's when two phases are present), "
                     "correlations for a surface in an extensive fluid applied inside")
             if ins.model == "natural+jet":
                 text += ("; combined (h^3 = h_F^3 + h_N^3) with the forced convection of each "
-                         "entering jet, Nu_D = 0.56 Re_d^0.67 (Woodfield et al. 2007 form; "
-                         "coefficients from memory and range not confirmed: verify)")
+                         "entering jet, Nu_D = 0.56 Re_d^0.67 on the gas's own properties "
+                         "(Woodfield et al. 2007 form; coefficients from memory and range not "
+                         "confirmed: verify; the peak gas temperature may be optimistic, see "
+                         "the warnings)")
+            else:
+                text += ("; streams entering the vessel add no forced convection (jets not "
+                         "counted: the conservative choice for the peak gas temperature of a "
+                         "fill, which a higher coefficient would lower)")
         out.append(f"Vessel '{v}': gas to wall by {text}.")
         o = d.outside
         if o.model == "insulated":
@@ -536,4 +607,5 @@ class GasFireTerm(HeatComponent):
                 "into the contents directly, no wall modelled."]
 
 
-__all__ = ["GasFireTerm", "WallGrid", "WallTerm"]
+__all__ = ["GasFireTerm", "WallGrid", "WallTerm", "fire_equivalent_coefficient",
+           "lumped_biot_number"]

@@ -57,7 +57,8 @@ ORIFICE = register_device(Variant(
                   "0.95 to 0.99).", required=True),
             Field("flow_model", Choice(("real-gas", "ideal-gas")),
                   "`real-gas`: isentropic nozzle on the real equation of state; "
-                  "`ideal-gas`: perfect-gas nozzle with the local heat-capacity ratio.",
+                  "`ideal-gas`: perfect-gas nozzle with the real upstream density and the "
+                  "ideal-gas k at the upstream temperature (docs/theory.md, section 2a).",
                   default="real-gas"),
             Field("opens_at", Quantity("time", at_least=0.0),
                   "Time the orifice opens (an isolation valve opening instantly).",

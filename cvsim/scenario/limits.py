@@ -37,9 +37,14 @@ class Accumulation(Kind):
 
 @dataclass(frozen=True)
 class PressureOrFraction(Kind):
-    """A pressure (``6.9 barg``) or a percentage of the design gauge pressure (``50 %``)."""
+    """A pressure (``6.9 barg``), a percentage of the design gauge pressure (``50 %``)
+    or ``guideline`` (the API 521 guideline's target)."""
 
     def read(self, raw, at, ctx):
+        if raw == "guideline":
+            ctx.record(at, raw, "guideline", "", "690 kPa g or 50 % of design, whichever "
+                       "is lower")
+            return ("guideline", None)
         if isinstance(raw, str) and raw.strip().endswith("%"):
             try:
                 frac = units.parse_quantity(raw, "fraction")
@@ -52,17 +57,24 @@ class PressureOrFraction(Kind):
         return BAD if value is BAD else ("pressure", value)
 
     def describe(self) -> str:
-        return "pressure [Pa], or a percentage of the design gauge pressure (`50 %`)"
+        return ("pressure [Pa], a percentage of the design gauge pressure (`50 %`) or "
+                "`guideline`")
 
 
 DEPRESSURE = Section(
     "limits: depressure",
-    "Depressuring target: reach a pressure within a time. `depressure: guideline` "
-    "stands for 690 kPa gauge or 50 % of the design gauge pressure, whichever is lower, "
-    "within 15 min (API 521 practice; needs `design_pressure`).",
+    "Depressuring target: reach a pressure within a time, counted from the start of "
+    "depressuring. `depressure: guideline` stands for 690 kPa gauge or 50 % of the "
+    "design gauge pressure, whichever is lower, within 15 min (API 521 practice for "
+    "walls about 25 mm or thicker; needs `design_pressure`).",
     fields=(
-        Field("to", PressureOrFraction(), "Target pressure.", required=True),
+        Field("to", PressureOrFraction(), "Target pressure (`guideline`: the guideline's "
+              "target).", required=True),
         Field("within", Quantity("time", above=0.0), "Time allowed.", required=True),
+        Field("from", Quantity("time", at_least=0.0),
+              "Time depressuring starts; not given: found from the run, at the last "
+              "pressure peak before the target is reached (a valve opening after a "
+              "fire has raised the pressure)."),
     ),
 )
 
@@ -97,7 +109,7 @@ def _check_limits(values, ctx) -> None:
             ctx.problem(values.where["accumulation"],
                         "accumulation needs design_pressure (the pressure it is added to)")
         if dep == "guideline" or (isinstance(dep, dict) and isinstance(dep.get("to"), tuple)
-                                  and dep["to"][0] == "fraction"):
+                                  and dep["to"][0] in ("fraction", "guideline")):
             ctx.problem(values.where["depressure"], "a depressuring target given as the "
                         "guideline or as a percentage needs design_pressure")
 
@@ -139,7 +151,7 @@ def build_limits(values, ctx) -> VesselLimits | None:
         case, acc = "single-device", ACCUMULATION["single-device"][0]
         ctx.record(values.where["accumulation"], "(not given)", acc, "-",
                    "default: single relief device, 10 % (or 3 psi)")
-    to = within = None
+    to = within = start = None
     basis = ""
     dep = values["depressure"]
     if dep == "guideline":
@@ -149,12 +161,21 @@ def build_limits(values, ctx) -> VesselLimits | None:
                    "computed")
     elif dep is not None:
         kind, v = dep["to"]
-        to = atm + v * (design - atm) if kind == "fraction" else v
         within = dep["within"]
-        basis = (f"{v * 100:g} % of the design gauge pressure" if kind == "fraction"
-                 else "stated pressure")
+        start = dep["from"]
+        if kind == "guideline":
+            to = guideline_target(design, atm)
+            basis = ("API 521 guideline target (690 kPa g or 50 % of design pressure), "
+                     f"{within / 60:g} min")
+            ctx.record(values.where["depressure"].child("to", None), "guideline", to, "Pa",
+                       "computed")
+        else:
+            to = atm + v * (design - atm) if kind == "fraction" else v
+            basis = (f"{v * 100:g} % of the design gauge pressure" if kind == "fraction"
+                     else "stated pressure")
     return VesselLimits(design_pressure=design, accumulation=acc,
                         accumulation_case=case or "stated",
                         min_metal_temperature=values["min_metal_temperature"],
                         max_temperature=values["max_temperature"], depressure_to=to,
-                        depressure_within=within, depressure_basis=basis)
+                        depressure_within=within, depressure_basis=basis,
+                        depressure_start=start)

@@ -268,7 +268,7 @@ def _build_relief(values, ctx) -> ReliefValve:
     return ReliefValve(area=area, set_pressure=p_set, action=values["action"],
                        reseat_pressure=reseat, full_lift_pressure=full,
                        kd=values["discharge_coefficient"], kb=values["back_pressure_factor"],
-                       kc=values["combination_factor"])
+                       kc=values["combination_factor"], design=values["design"])
 
 
 RELIEF_VALVE = register_device(Variant(
@@ -305,7 +305,14 @@ RELIEF_VALVE = register_device(Variant(
                   default=str(KD_GAS)),
             Field("back_pressure_factor", Quantity("dimensionless", above=0.0, at_most=1.0),
                   "Kb, capacity correction for back pressure (from the valve maker or API 520 "
-                  "Part I; critical flow only).", default="1"),
+                  "Part I): in critical flow; for `balanced-bellows` valves also in "
+                  "subcritical flow.", default="1"),
+            Field("design", Choice(("conventional", "balanced-bellows", "pilot-operated")),
+                  "Valve design. In subcritical flow `conventional` and `pilot-operated` "
+                  "valves take API 520 Part I's subcritical (F2) equation, "
+                  "`balanced-bellows` valves its critical-flow equation with Kb, at most "
+                  "the F2 capacity (API 520 Part I, subcritical flow).",
+                  default="conventional"),
             Field("combination_factor", Quantity("dimensionless", above=0.0, at_most=1.0),
                   f"Kc: {KC_RUPTURE_DISC} with a rupture disc upstream when the combination is "
                   "not certified, else 1 (API 520 Part I).", default="1"),

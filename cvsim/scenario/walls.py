@@ -111,11 +111,14 @@ LAYER = Section(
 INSIDE_MODELS: dict[str, Variant] = {}
 for _variant in (
     Variant("natural", "Natural convection from the Churchill & Chu correlations with the "
-            "gas's transport properties (vertical surface, horizontal cylinder or sphere by "
-            "the vessel's shape).", Section("inside: natural", "No further keys.")),
+            "gas's transport properties at the film temperature (vertical surface, "
+            "horizontal cylinder or sphere by the vessel's shape). Filling jets are not "
+            "counted: the conservative choice for a fill's peak gas temperature.",
+            Section("inside: natural", "No further keys.")),
     Variant("natural+jet", "Natural convection combined (h^3 = h_F^3 + h_N^3) with the forced "
             "convection of every stream entering the vessel, Nu_D = 0.56 Re_d^0.67 on the "
-            "jet's Reynolds number (coefficients from memory: see docs/theory.md).",
+            "jet's Reynolds number (coefficients from memory: see docs/theory.md; every "
+            "run that uses it warns that its peak gas temperature may be optimistic).",
             Section("inside: natural+jet", "Keys of `inside` with `model: natural+jet`.",
                     fields=(Field("inlet_diameter", Quantity("length", above=0.0),
                                   "Diameter of the jets entering the vessel; default: each "

@@ -16,6 +16,10 @@ vessel (see :attr:`cvsim.limits.LimitCheck.key`)::
     L.mass_passed  L.peak_flow  L.peak_flow_time
     end_time  limits_crossed
     V.limit.K.met  V.limit.K.limit  V.limit.K.actual  V.limit.K.margin
+
+A check shown for information only (the gas temperature beside the wall's metal
+against the minimum design metal temperature, ``V.limit.min_metal_temperature.gas``)
+has no ``.met``: it never counts in ``limits_crossed`` or as a requirement.
 """
 from __future__ import annotations
 
@@ -88,16 +92,20 @@ def limit_key(check) -> str:
     return key or re.sub(r"[^a-z0-9]+", "_", check.name.lower()).strip("_")
 
 
-def limit_outcomes(vessel: str, key: str, unit: str, words: str = "") -> list[Outcome]:
+def limit_outcomes(vessel: str, key: str, unit: str, words: str = "",
+                   informative: bool = False) -> list[Outcome]:
     """The four outcomes of one limit check: met (1/0), the limit, the value
-    reached, the margin."""
+    reached, the margin. A check shown for information only
+    (:attr:`cvsim.limits.LimitCheck.informative`) has no ``met``: it is never a
+    requirement of ``--meet limits``."""
     base = f"{vessel}.limit.{key}"
     what = words or f"design limit '{key}' of {vessel}"
     dimension = _LIMIT_QUANTITY.get(unit, "dimensionless")
     diff_dimension = "temperature_difference" if unit == "K" else dimension
-    return [
+    met = [] if informative else [
         Outcome(f"{base}.met", "", "dimensionless", f"{what}: met (1) or crossed (0)",
-                kind="limit-met"),
+                kind="limit-met")]
+    return met + [
         Outcome(f"{base}.limit", unit, dimension, f"{what}: the limit", kind="limit-value"),
         Outcome(f"{base}.actual", unit, dimension,
                 f"{what}: {'time taken' if unit == 's' else 'value reached'}",
@@ -158,14 +166,15 @@ def outcome_values(result) -> tuple[list[Outcome], dict]:
     where = {o.name: i for i, o in enumerate(outcomes)}
     for c in result.limits:
         key = limit_key(c)
-        for o in limit_outcomes(c.vessel, key, c.unit, c.name):
+        for o in limit_outcomes(c.vessel, key, c.unit, c.name, c.informative):
             if o.name in where:  # the run's words for it ("depressured to ... within ...")
                 outcomes[where[o.name]] = o
             else:
                 where[o.name] = len(outcomes)
                 outcomes.append(o)
         base = f"{c.vessel}.limit.{key}"
-        values[f"{base}.met"] = 1.0 if c.met else 0.0
+        if not c.informative:
+            values[f"{base}.met"] = 1.0 if c.met else 0.0
         values[f"{base}.limit"] = c.limit
         values[f"{base}.actual"] = c.actual
         values[f"{base}.margin"] = c.margin

@@ -181,7 +181,8 @@ class SweepResult:
 
     def to_dataframe(self):
         """The rows as a pandas DataFrame (SI values; needs pandas:
-        ``pip install cvsim[dataframe]``)."""
+        ``pip install cvsim[dataframe]``), with ``df.attrs``: ``caution``, ``title``,
+        ``provenance`` and ``units`` (column name -> SI unit)."""
         try:
             import pandas as pd
         except ImportError:
@@ -189,7 +190,13 @@ class SweepResult:
             raise StudyError("to_dataframe() needs pandas: pip install 'cvsim[dataframe]'"
                              ) from None
         names = [c.name for c in self.columns]
-        return pd.DataFrame([[r.get(n) for n in names] for r in self.rows], columns=names)
+        df = pd.DataFrame([[r.get(n) for n in names] for r in self.rows], columns=names)
+        # every output a person could act on carries the caution (pandas keeps attrs
+        # through most operations; to_csv does not write them)
+        df.attrs.update({"caution": CAUTION, "title": self.title,
+                         "provenance": dict(self.provenance),
+                         "units": {c.name: c.unit for c in self.columns}})
+        return df
 
     def as_dict(self) -> dict:
         """Everything, as plain data (what sweep.json holds)."""
@@ -345,7 +352,8 @@ def default_outcomes(result: SweepResult, reference) -> list[str]:
     """Outcomes drawn when none are chosen: for every vessel the lowest and
     highest gas temperature and the highest pressure, every stated limit's
     value reached (a depressuring target's time; the metal temperature only
-    where a wall is modelled, else it is the gas temperature), and the end time
+    where a wall is modelled, else it is the gas temperature; not the gas
+    temperature shown for information beside the metal), and the end time
     unless a depressuring time is drawn - leaving out those that do not change
     from case to case (a flat line tells nothing), but keeping at least one."""
     if reference is None:
@@ -357,6 +365,7 @@ def default_outcomes(result: SweepResult, reference) -> list[str]:
                    f"{v.name}.max_pressure"]
     wanted += [c.name for c in result.columns if c.kind == "limit-actual"
                and not c.name.endswith(".design_pressure.actual")
+               and not c.name.endswith(".min_metal_temperature.gas.actual")  # information
                and not c.name.startswith(tuple(f"{v.name}.limit.min_metal_temperature"
                                                 for v in reference.network.vessels
                                                 if not _has_walls(result, v.name)))]
