@@ -214,6 +214,8 @@ class ControlValve:
     characteristic ``linear``, ``equal-percentage`` or ``quick-opening``
     rangeability   [-] R of the equal-percentage characteristic (> 1)
     piping_factor  [-] piping geometry factor Fp (1: no fittings)
+    fl             [-] liquid pressure recovery factor FL (with fittings: FLP), needed
+                   when the valve passes liquid; ``None``: not given
     """
 
     kv: float
@@ -222,6 +224,7 @@ class ControlValve:
     characteristic: str = "linear"
     rangeability: float = 50.0
     piping_factor: float = 1.0
+    fl: float | None = None
 
 
 @dataclass(frozen=True)
@@ -236,6 +239,8 @@ class ReliefValve:
     full_lift_pressure [Pa] modulating action: full lift from this pressure on
     kd, kb, kc    [-] effective discharge coefficient, back-pressure correction,
                   combination correction (rupture disc upstream)
+    kd_liquid, kw [-] effective discharge coefficient and back-pressure correction for
+                  liquid (API 520 Part I liquid sizing)
     """
 
     area: float
@@ -246,6 +251,8 @@ class ReliefValve:
     kd: float = 0.975
     kb: float = 1.0
     kc: float = 1.0
+    kd_liquid: float = 0.65
+    kw: float = 1.0
 
 
 @dataclass(frozen=True)
