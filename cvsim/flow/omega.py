@@ -41,6 +41,7 @@ from __future__ import annotations
 import math
 
 from ..fluid import root_on_bracket
+from .liquid import LiquidProperties
 
 #: pressure at which the second state of the two-point omega is taken, as a share
 #: of the inlet (or saturation) pressure (API 520 Part I, Annex C)
@@ -205,7 +206,8 @@ def omega_of_state(fluid, up, isentropic: bool = True):
     if up.phase == "liquid" and not up.two_phase:   # subcooled (compressed) liquid
         if up.T >= fluid.t_crit:
             return None
-        sat = fluid.saturated_liquid_at_p(_psat(fluid, up.T))
+        ps = LiquidProperties(fluid.name).saturation_pressure(up.T)
+        sat = fluid.saturated_liquid_at_p(ps)
         ps = sat.p
         if ps >= p0:
             ps = p0
@@ -219,11 +221,6 @@ def omega_of_state(fluid, up, isentropic: bool = True):
     if rho9 is None:
         return None
     return omega_two_point(up.rho, rho9), ps / p0
-
-
-def _psat(fluid, T: float) -> float:
-    import CoolProp.CoolProp as CP
-    return CP.PropsSI("P", "T", T, "Q", 0, fluid.name)
 
 
 __all__ = ["OMEGA_POINT", "flash_density", "omega_choke_ratio", "omega_critical_ratio",
