@@ -283,3 +283,26 @@ def test_relief_sizing_output_carries_method_and_caution(capsys):
     assert "Screening estimate" in d["caution"]
     assert "API 520 Part I gas equation" in d["areas"]
     json.dumps(d)   # plain data
+
+
+@pytest.mark.slow
+def test_propane_bullet_valve_is_confirmed_by_simulation_and_a_smaller_letter_is_not():
+    # independent check by simulation (the two-phase vessel model with the relief valve
+    # drawing vapour): the J valve sized for the heat holds the pressure within P1; the
+    # next smaller letter (H) does not. The heat is a stated load, the same as the sizing's.
+    import dataclasses
+    from cvsim.api import run_network
+    text = BULLET.replace(" DRAWS", "").replace(
+        "    limits:", f"    heat: {{load: {FIRE_HEAT / 1e3:.6f} kW}}\n    limits:").replace(
+        "run: {end: 10 s, record_every: 1 s}", "run: {end: 25 min, record_every: 10 s}")
+    sc = load_scenario_text(text)
+    s = size_relief(sc.network, "psv", heat=FIRE_HEAT, scenario=sc)
+    assert s.letter == "J" and s.confirm.ok and s.met
+    assert s.peak_pressure > sc.network.links[0].device.set_pressure   # the valve worked
+    net = sc.network
+    smaller = 0.785 * INCH ** 2   # H
+    links = tuple(dataclasses.replace(k, device=dataclasses.replace(k.device, area=smaller))
+                  for k in net.links)
+    res = run_network(dataclasses.replace(net, links=links))
+    assert res.ok
+    assert res.extreme("bullet.pressure", "max")[0] > s.allowed_pressure
