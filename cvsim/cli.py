@@ -74,11 +74,14 @@ def _parser() -> argparse.ArgumentParser:
 
     rv = sub.add_parser(
         "relief", help="size a relief valve by API 520 and confirm it with a run",
-        description="Required effective area of a relief valve in the scenario (API 520 "
-        "Part I, gas) for one relief load, the next API 526 orifice letter, and a "
-        "confirming run with that valve whose peak pressure is compared with the allowed "
-        "accumulation. Relieving pressure: set pressure plus the allowed overpressure of "
-        "the protected vessel's limits (default single device, 10 %).",
+        description="Required effective area of a relief valve in the scenario for one "
+        "relief load (API 520 Part I: gas or vapour, liquid, or flashing liquid by "
+        "homogeneous equilibrium and the Annex C omega method; fire loads by API 521), the "
+        "next API 526 orifice letter, and a confirming run with that valve whose peak "
+        "pressure is compared with the relieving pressure. Relieving pressure: the "
+        "protected vessel's MAWP (design pressure) plus its allowed accumulation (default "
+        "single device, 10 %); a vessel holding liquid relieves at the saturation "
+        "temperature there.",
         epilog="examples:\n"
         "  cvsim relief scenarios/relief-blocked-outlet.yaml --valve psv --blocked-outlet\n"
         "  cvsim relief scenarios/gas-vessel-pool-fire.yaml --valve psv --fire "
@@ -98,8 +101,12 @@ def _parser() -> argparse.ArgumentParser:
     load.add_argument("--blocked-outlet", action="store_true",
                       help="the largest forced inflow (fixed-flow links) into the vessel")
     rv.add_argument("--relieving-temperature", metavar="TEMPERATURE",
-                    help="gas temperature at relieving conditions (default: the vessel's "
-                    "initial temperature)")
+                    help="gas temperature at relieving conditions of a gas-filled vessel "
+                    "(default: the vessel's initial temperature; with --fire the gas heated "
+                    "at constant density to the relieving pressure)")
+    rv.add_argument("--wall-temperature", metavar="TEMPERATURE",
+                    help="with --fire on a gas-filled vessel: the wall temperature of API "
+                    "521's unwetted-vessel method (default 593 degC, carbon steel)")
     rv.add_argument("--set", dest="overrides", action="append", default=[], metavar="KEY=VALUE",
                     help="change one scenario value first (repeatable)")
     rv.add_argument("--out", type=Path, default=None,
@@ -211,9 +218,11 @@ def cmd_relief(args) -> int:
             kw["blocked_outlet"] = True
         T1 = (parse_quantity(args.relieving_temperature, "temperature")
               if args.relieving_temperature else None)
+        Tw = (parse_quantity(args.wall_temperature, "temperature")
+              if args.wall_temperature else None)
     except CvsimError as exc:
         raise CvsimError(f"relief: {exc}") from None
-    sizing = size_relief(net, args.valve, relieving_temperature=T1,
+    sizing = size_relief(net, args.valve, relieving_temperature=T1, wall_temperature=Tw,
                          confirm=not args.no_confirm, scenario=scenario, **kw)
     text = sizing_text(sizing, net.atmosphere)
     print(text, end="")

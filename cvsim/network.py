@@ -219,6 +219,8 @@ class ControlValve:
     characteristic ``linear``, ``equal-percentage`` or ``quick-opening``
     rangeability   [-] R of the equal-percentage characteristic (> 1)
     piping_factor  [-] piping geometry factor Fp (1: no fittings)
+    fl             [-] liquid pressure recovery factor FL (with fittings: FLP), needed
+                   when the valve passes liquid; ``None``: not given
     """
 
     kv: float
@@ -227,6 +229,7 @@ class ControlValve:
     characteristic: str = "linear"
     rangeability: float = 50.0
     piping_factor: float = 1.0
+    fl: float | None = None
 
 
 @dataclass(frozen=True)
@@ -244,6 +247,8 @@ class ReliefValve:
     design        ``conventional``, ``balanced-bellows`` or ``pilot-operated``: a
                   balanced-bellows valve in subcritical flow takes the critical-flow
                   equation with Kb (API 520 Part I)
+    kd_liquid, kw [-] effective discharge coefficient and back-pressure correction for
+                  liquid (API 520 Part I liquid sizing)
     """
 
     area: float
@@ -255,6 +260,8 @@ class ReliefValve:
     kb: float = 1.0
     kc: float = 1.0
     design: str = "conventional"
+    kd_liquid: float = 0.65
+    kw: float = 1.0
 
 
 @dataclass(frozen=True)

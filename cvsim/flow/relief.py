@@ -27,6 +27,23 @@ by Z; the real cp/cv near the critical point would mix two models).
 
 API 526 (*Flanged Steel Pressure-relief Valves*) lettered effective orifice
 areas are in :data:`API526_AREAS_IN2`.
+
+Liquid and flashing service (the valve draws liquid, or the protected vessel is
+liquid-full): API 520 Part I, 10th ed., sec. 5.9 "Sizing for liquid relief"
+(certified valves), SI form with A [mm2], Q [L/min], P [kPa], mu [cP]:
+
+    A  = 11.78 Q / (Kd Kw Kc Kv) sqrt(G1 / (P1 - P2))
+    Re = Q (18 800 G1) / (mu sqrt(A)),   Kv = (1 + 170/Re)^(-1/2)   (10th ed.)
+
+with G1 the specific gravity referred to water at 60 degF, Kd = 0.65 for
+preliminary sizing, Kw the back-pressure correction of balanced-bellows valves
+(1 for conventional and pilot-operated valves). That equation holds while the
+stream stays liquid through the throat. A liquid that flashes (its saturation
+pressure above the back pressure: saturated liquid drawn from a two-phase vessel,
+or a hot subcooled liquid) passes the homogeneous-equilibrium (HEM) flux of
+:func:`cvsim.flow.nozzle.real_gas_mass_flux`, the model the API 520 Part I Annex C
+omega method approximates (:mod:`cvsim.flow.omega`), with the coefficient of
+discharge weighted by the throat's vapour share (:func:`two_phase_discharge_coefficient`).
 """
 from __future__ import annotations
 
@@ -34,7 +51,8 @@ import math
 
 from ..fluid import R_UNIVERSAL
 from .base import NO_FLOW, Device, Flow, Switch
-from .nozzle import LINEAR_BELOW, critical_pressure_ratio
+from .liquid import LiquidProperties, passes_liquid
+from .nozzle import LINEAR_BELOW, NozzleHint, critical_pressure_ratio, real_gas_mass_flux
 
 #: constant of the API 520 Part I SI-form critical-flow coefficient C
 API_C_CONSTANT = 0.03948
@@ -44,6 +62,19 @@ API_SUBCRITICAL_CONSTANT = 17.9
 KD_GAS = 0.975
 #: combination correction with an uncertified rupture disc upstream (API 520 Part I)
 KC_RUPTURE_DISC = 0.9
+#: effective coefficient of discharge for preliminary liquid sizing of valves whose
+#: liquid capacity is certified (API 520 Part I, 10th ed., sec. 5.9)
+KD_LIQUID = 0.65
+#: constants of the API 520 Part I liquid equations in the SI form (Q [L/min], P [kPa],
+#: A [mm2], mu [cP]): area constant and Reynolds-number constant, as printed
+API_LIQUID_CONSTANT = 11.78
+API_REYNOLDS_CONSTANT = 18800.0
+#: constant of the 10th-edition viscosity correction Kv = (1 + 170/Re)^(-1/2)
+KV_REYNOLDS = 170.0
+#: density of water at 60 degF (15.56 degC) and 1 atm [kg/m3], the reference of the
+#: specific gravity G1 (API 520 Part I: water at standard conditions); IAPWS-95 by
+#: CoolProp gives 999.01. With it, 11.78 is the exact unit conversion 11.779.
+WATER_DENSITY_60F = 999.0
 
 INCH = 0.0254  # [m] exact by definition
 
@@ -221,6 +252,127 @@ def api520_area(mass_flow: float, p1: float, p2: float, T: float, Z: float, M: f
     return mass_flow / w_unit
 
 
+# ------------------------------------------------------------ API 520, liquid
+
+def api520_liquid_area(mass_flow: float, rho: float, p1: float, p2: float,
+                       kd: float = KD_LIQUID, kw: float = 1.0, kc: float = 1.0,
+                       kv: float = 1.0) -> float:
+    """Required effective discharge area [m2] for a liquid relief load (API 520 Part I).
+
+        A [mm2] = 11.78 Q / (Kd Kw Kc Kv) sqrt(G1 / (P1 - P2)),   Q [L/min], P [kPa]
+
+    Parameters
+    ----------
+    mass_flow : relief load [kg/s]
+    rho : liquid density at relieving conditions [kg/m3] (G1 = rho / 999.0)
+    p1 : relieving pressure [Pa]; p2 : back pressure [Pa] (absolute, p2 < p1)
+    kd : effective coefficient of discharge [-] (0.65 for preliminary sizing)
+    kw : back-pressure correction [-] (balanced-bellows valves; 1 for conventional
+        and pilot-operated valves, whose back pressure enters through P2)
+    kc : combination correction [-] (0.9 with an uncertified rupture disc upstream)
+    kv : viscosity correction [-] (:func:`api520_viscosity_correction`)
+
+    Validity: liquid that stays liquid through the valve (no flashing: its saturation
+    pressure is below the back pressure); valves with certified liquid capacity.
+    Source: API 520 Part I, 10th ed. (2020), sec. 5.9, SI form as printed.
+
+    >>> round(api520_liquid_area(6814 / 60000 * 0.9 * 999.0, 0.9 * 999.0,
+    ...       1.1 * 1724e3 + 101325, 0.2 * 1724e3 + 101325, kw=0.97) * 1e6)   # API 520 Ex. 5
+    3066
+    """
+    q_lpm = mass_flow / rho * 60000.0
+    g1 = rho / WATER_DENSITY_60F
+    a_mm2 = API_LIQUID_CONSTANT * q_lpm / (kd * kw * kc * kv) * math.sqrt(
+        g1 / ((p1 - p2) * 1e-3))
+    return a_mm2 * 1e-6
+
+
+def api520_liquid_mass_flow(area: float, rho: float, p1: float, p2: float,
+                            kd: float = KD_LIQUID, kw: float = 1.0, kc: float = 1.0,
+                            kv: float = 1.0) -> float:
+    """Liquid capacity [kg/s] of a relief valve of effective area ``area`` [m2], the
+    API 520 Part I liquid equation solved for the flow (arguments as
+    :func:`api520_liquid_area`). 0 for p2 >= p1; below a relative pressure difference
+    of 1e-4 linear in the difference (regularisation, as the gas equations)."""
+    if p2 >= p1:
+        return 0.0
+    frac = (p1 - p2) / p1
+    if frac < LINEAR_BELOW:
+        w_lin = api520_liquid_mass_flow(area, rho, p1, p1 * (1.0 - LINEAR_BELOW), kd, kw, kc,
+                                        kv)
+        return w_lin * frac / LINEAR_BELOW
+    return area / api520_liquid_area(1.0, rho, p1, p2, kd, kw, kc, kv)
+
+
+def api520_reynolds(mass_flow: float, rho: float, mu: float, area: float) -> float:
+    """Reynolds number of the liquid relief equation [-] (API 520 Part I, SI form):
+
+        Re = Q (18 800 G1) / (mu sqrt(A)),   Q [L/min], mu [cP], A [mm2]
+
+    Parameters
+    ----------
+    mass_flow : [kg/s]; rho : liquid density [kg/m3]; mu : dynamic viscosity [Pa s];
+    area : effective discharge area [m2]
+
+    Source: API 520 Part I, 10th ed., sec. 5.9 (the constant 18 800 is 60000/1000 x
+    sqrt(4/pi) x 1e3 in these units, rounded; the exact value is 18 806).
+    """
+    q_lpm = mass_flow / rho * 60000.0
+    g1 = rho / WATER_DENSITY_60F
+    return q_lpm * API_REYNOLDS_CONSTANT * g1 / (mu * 1e3 * math.sqrt(area * 1e6))
+
+
+def api520_viscosity_correction(Re: float) -> float:
+    """Viscosity correction Kv = (1 + 170/Re)^(-1/2) [-] of the liquid relief equation.
+
+    Source: API 520 Part I, 10th ed. (2020), sec. 5.9 (the 9th and earlier editions used
+    Kv = (0.9935 + 2.878/Re^0.5 + 342.75/Re^1.5)^-1). Valid for Re above about 80.
+
+    >>> round(api520_viscosity_correction(4525), 4)   # API 520 Part I Example 5
+    0.9817
+    """
+    return 1.0 / math.sqrt(1.0 + KV_REYNOLDS / Re)
+
+
+def viscosity_correction_at_area(mass_flow_kv1: float, rho: float, mu: float,
+                                 area: float) -> float:
+    """Kv [-] of a valve of area ``area`` [m2] passing ``mass_flow_kv1`` [kg/s] when
+    Kv = 1, consistent with its own flow: the flow scales with Kv, so Re = Re1 Kv and
+    Kv^2 (1 + 170/(Re1 Kv)) = 1, whose root is
+
+        Kv = (-a + sqrt(a^2 + 4)) / 2,   a = 170 / Re1
+
+    (Re1: :func:`api520_reynolds` at the Kv = 1 flow; mu [Pa s])."""
+    a = KV_REYNOLDS / api520_reynolds(mass_flow_kv1, rho, mu, area)
+    return 0.5 * (-a + math.sqrt(a * a + 4.0))
+
+
+def two_phase_discharge_coefficient(void: float, kd_gas: float, kd_liquid: float) -> float:
+    """Coefficient of discharge [-] of a flashing or two-phase stream, weighted by the
+    share of the throat's cross-section the vapour takes (homogeneous flow: the void
+    fraction alpha of the throat state):
+
+        Kd = (1 - alpha) Kd_liquid + alpha Kd_gas
+
+    It is the liquid value where the stream reaches the throat as liquid and the gas
+    value where it reaches it as vapour, and continuous in between. API 520 Part I
+    Annex C leaves the two-phase Kd to the valve's certification; this interpolation
+    is cvsim's preliminary choice (docs/decisions.md), no published source.
+    """
+    return (1.0 - void) * kd_liquid + void * kd_gas
+
+
+def throat_void_fraction(fluid, up, p_throat: float) -> float:
+    """Vapour share of the volume [-] at the HEM throat pressure ``p_throat`` [Pa] on the
+    isentrope of ``up``: 0 where the throat is still liquid."""
+    if not hasattr(fluid, "two_phase_isentrope_at_T") or p_throat >= fluid.p_crit:
+        return 1.0 if up.phase in ("gas", "supercritical") else 0.0
+    st = fluid.two_phase_isentrope_at_T(up.s, fluid.saturation_temperature(p_throat))
+    if st is None:
+        return 0.0 if up.phase == "liquid" else 1.0
+    return 1.0 - st.liquid_fraction
+
+
 def modulating_lift(p: float, p_set: float, p_full: float) -> float:
     """Lift [-] of a modulating valve: 0 below set, rising linearly to 1 at full-lift
     pressure: clip((p - p_set)/(p_full - p_set), 0, 1). Capacity is taken
@@ -253,6 +405,8 @@ class ReliefValveDevice(Device):
         super().__init__(definition, fluid, index, source, target)
         self.molar_mass = fluid.molar_mass
         self.pop = definition.action == "pop"
+        self._liquid = LiquidProperties(fluid.name)
+        self._hint = NozzleHint()
 
     # ---------------------------------------------------------- discrete state
     def _regime(self, p: float) -> int:
@@ -306,6 +460,9 @@ class ReliefValveDevice(Device):
         lift = self._lift(a.p, segment.discrete)
         if lift <= 0.0 or a.p <= b.p:
             return NO_FLOW
+        if passes_liquid(a):
+            w, critical = self.liquid_flow(a, b.p)
+            return Flow(lift * w, a.h, a.h, critical)
         d = self.d
         M = self.molar_mass
         Z = compressibility_factor(a.p, a.rho, a.T, M)
@@ -313,6 +470,33 @@ class ReliefValveDevice(Device):
         w, critical = api520_mass_flow(d.area, a.p, b.p, a.T, Z, M, k, d.kd, d.kb, d.kc,
                                        d.design == "balanced-bellows")
         return Flow(lift * w, a.h, a.h, critical)
+
+    def liquid_flow(self, up, p2: float) -> tuple[float, bool]:
+        """(W [kg/s], choked) at full lift of a liquid or flashing stream ``up`` into the
+        back pressure ``p2`` [Pa].
+
+        * Liquid whose saturation pressure is at or below p2 does not flash: API 520
+          Part I liquid equation with the liquid Kd, Kw, Kc and the viscosity
+          correction Kv at the valve's own flow (:func:`viscosity_correction_at_area`).
+        * Otherwise the stream flashes: W = A Kc Kd G, with G the homogeneous-equilibrium
+          flux (:func:`cvsim.flow.nozzle.real_gas_mass_flux`) and Kd weighted by the
+          throat's vapour share (:func:`two_phase_discharge_coefficient`; Kw on the liquid
+          share, Kb on the vapour share when choked).
+        """
+        d = self.d
+        if up.p <= p2:
+            return 0.0, False
+        if not up.two_phase and up.T < self.fluid.t_crit and \
+                self._liquid.saturation_pressure(up.T) <= p2:
+            w1 = api520_liquid_mass_flow(d.area, up.rho, up.p, p2, d.kd_liquid, d.kw, d.kc)
+            mu = self._liquid.viscosity(up.rho, up.T)
+            kv = viscosity_correction_at_area(w1, up.rho, mu, d.area) if mu and w1 > 0 else 1.0
+            return w1 * kv, False
+        g, choked, p_throat = real_gas_mass_flux(self.fluid, up, p2, self._hint)
+        void = throat_void_fraction(self.fluid, up, p_throat)
+        kd = two_phase_discharge_coefficient(void, d.kd * (d.kb if choked else 1.0),
+                                             d.kd_liquid * d.kw)
+        return d.area * d.kc * kd * g, choked
 
     # --------------------------------------------------------------- summary
     def report(self, initial, switches, t_end):
@@ -355,7 +539,11 @@ class ReliefValveDevice(Device):
                "present upstream state and back pressure, with Z from the real fluid and the "
                "ideal-gas k at the relieving temperature; set, reseat and full-lift pressures "
                "compare the absolute pressure of the protected node (back pressure does not "
-               "shift them)."]
+               "shift them).",
+               "Relief valves passing liquid: API 520 Part I liquid equation (liquid Kd, Kw, "
+               "Kc, Kv) while the liquid does not flash; a flashing or two-phase stream passes "
+               "the homogeneous-equilibrium flux with Kd weighted by the throat's vapour share "
+               "between the liquid and the gas Kd."]
         if any(d.design == "balanced-bellows" for d in definitions):
             out.append("Balanced-bellows relief valves in subcritical flow: the critical-flow "
                        "equation with the stated Kb (API 520 Part I), at most the "
@@ -382,7 +570,10 @@ def _most_within(times: list[float], window: float) -> tuple[int, float]:
     return best, start
 
 
-__all__ = ["API526_AREAS_IN2", "API526_LETTERS", "KC_RUPTURE_DISC", "KD_GAS",
-           "ReliefValveDevice", "api520_area", "api520_c", "api520_f2", "api520_mass_flow",
-           "api526_area", "compressibility_factor", "flow_function", "is_critical",
-           "modulating_lift", "uses_critical_equation"]
+__all__ = ["API526_AREAS_IN2", "API526_LETTERS", "KC_RUPTURE_DISC", "KD_GAS", "KD_LIQUID",
+           "ReliefValveDevice", "api520_area", "api520_c", "api520_f2",
+           "api520_liquid_area", "api520_liquid_mass_flow", "api520_mass_flow",
+           "api520_reynolds", "api520_viscosity_correction", "api526_area",
+           "compressibility_factor", "flow_function", "is_critical", "modulating_lift",
+           "throat_void_fraction", "two_phase_discharge_coefficient", "uses_critical_equation",
+           "viscosity_correction_at_area"]

@@ -16,6 +16,7 @@ from ..network import FluidSpec, Link, Network, RunSettings, StopCondition
 from . import properties, schema, tree
 from . import vessels as vessels_
 from .sequences import build_sequence
+from .service import check_liquid_service
 from .spec import BAD, At, Context, EchoRow
 
 
@@ -160,6 +161,8 @@ def build_network(values, ctx: Context) -> Network | None:
         device = v.variant.build(v, ctx)
         links.append(Link(name=name, source=v["from"], target=v["to"], device=device,
                           draws=v["draws"]))
+    check_liquid_service(fluid, vessels, reservoirs, links,
+                         {name: v.at for name, v in (values["links"] or {}).items()}, ctx)
     linked = {n for link in links for n in (link.source, link.target)}
     for vessel in vessels:
         if vessel.name not in linked:

@@ -15,7 +15,7 @@ from ..errors import FluidError
 from ..network import FixedFlow, Orifice
 from ..signals import Constant, Signal, Table
 from . import properties
-from .registry import register_device
+from .registry import register_device, register_liquid_service
 from .spec import BAD, Choice, Field, Kind, Quantity, Section, Variant, read_section
 
 # ------------------------------------------------------------------- orifice
@@ -71,6 +71,20 @@ ORIFICE = register_device(Variant(
     ),
     _build_orifice,
 ))
+
+
+def nozzle_liquid_service(device) -> tuple[str, str]:
+    """How an orifice-like device (orifice, bursting disc, check valve) passes liquid:
+    the real-gas nozzle is the homogeneous-equilibrium model through two phases; the
+    perfect-gas form is not a model of liquid."""
+    if device.flow_model == "ideal-gas":
+        return ("its perfect-gas nozzle (flow_model: ideal-gas) is no model of liquid or "
+                "flashing flow: write flow_model: real-gas (homogeneous equilibrium through "
+                "two phases) or draw vapour", "")
+    return "", "homogeneous-equilibrium nozzle (isentropic, flashing through two phases)"
+
+
+register_liquid_service(Orifice, nozzle_liquid_service)
 
 
 # ---------------------------------------------------------------- fixed flow

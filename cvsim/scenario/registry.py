@@ -46,6 +46,12 @@ class HeatTermKind:
 
 HEAT_TERMS: dict[str, HeatTermKind] = {}
 
+#: ``LIQUID_SERVICE[device class]``: ``fn(device) -> (problem, model)`` for a device of
+#: :mod:`cvsim.network` that will pass liquid: ``problem`` says what to change when the
+#: device cannot model liquid ("" when it can), ``model`` names the equations it uses.
+#: Device kinds not listed pass liquid as they pass anything (a forced flow).
+LIQUID_SERVICE: dict[type, Callable] = {}
+
 
 def register_device(variant: Variant) -> Variant:
     """Add a flow device kind (``device: <name>`` in a link)."""
@@ -63,3 +69,9 @@ def register_heat_term(kind: HeatTermKind) -> HeatTermKind:
     """Add a heat term (a key under a vessel's ``heat``)."""
     HEAT_TERMS[kind.name] = kind
     return kind
+
+
+def register_liquid_service(device_type: type, check: Callable) -> Callable:
+    """Say how a device kind passes liquid (see :data:`LIQUID_SERVICE`)."""
+    LIQUID_SERVICE[device_type] = check
+    return check

@@ -13,10 +13,12 @@ from dataclasses import dataclass
 
 from .. import units
 from ..flow.control_valve import CHARACTERISTICS, KV_PER_CV
-from ..flow.relief import API526_AREAS_IN2, API526_LETTERS, KC_RUPTURE_DISC, KD_GAS, api526_area
+from ..flow.relief import (API526_AREAS_IN2, API526_LETTERS, KC_RUPTURE_DISC, KD_GAS, KD_LIQUID,
+                           api526_area)
 from ..flow.schedule import stroke_table
 from ..network import BurstingDisc, CheckValve, ControlValve, ReliefValve
-from .registry import register_device
+from .devices import nozzle_liquid_service
+from .registry import register_device, register_liquid_service
 from .spec import BAD, Choice, Field, Kind, Quantity, Section, Sub, Variant, as_text
 
 # -------------------------------------------------------------------- kinds
@@ -153,12 +155,13 @@ def _build_control_valve(values, ctx) -> ControlValve:
     return ControlValve(kv=kv, xt=values["xT"], opening=opening,
                         characteristic=values["characteristic"],
                         rangeability=rangeability if rangeability is not None else 50.0,
-                        piping_factor=values["piping_geometry_factor"])
+                        piping_factor=values["piping_geometry_factor"], fl=values["FL"])
 
 
 CONTROL_VALVE = register_device(Variant(
     "control-valve",
-    "A control valve sized by IEC 60534-2-1 for compressible flow (Cv or Kv, xT, Fp), "
+    "A control valve sized by IEC 60534-2-1 for compressible flow (Cv or Kv, xT, Fp) and "
+    "for liquid (FL), "
     "with an inherent characteristic and an opening that follows a schedule; flow in "
     "either direction.",
     Section(
@@ -178,6 +181,11 @@ CONTROL_VALVE = register_device(Variant(
             Field("piping_geometry_factor", Quantity("dimensionless", above=0.0, at_most=1.0),
                   "Fp of IEC 60534-2-1 for reducers or fittings at the valve (1: none).",
                   default="1"),
+            Field("FL", Quantity("dimensionless", above=0.0, at_most=1.0),
+                  "Liquid pressure recovery factor from the valve maker (with reducers: the "
+                  "combined FLP); needed when the valve passes liquid (`draws: liquid`, or a "
+                  "liquid-full vessel or liquid reservoir upstream): IEC 60534-2-1 "
+                  "incompressible-flow equations, choked at (FL/Fp)^2 (p1 - FF pv)."),
             Field("characteristic", Choice(CHARACTERISTICS),
                   "Inherent characteristic: flow coefficient vs travel.", default="linear"),
             Field("rangeability", Quantity("dimensionless", above=1.0),
@@ -268,20 +276,26 @@ def _build_relief(values, ctx) -> ReliefValve:
     return ReliefValve(area=area, set_pressure=p_set, action=values["action"],
                        reseat_pressure=reseat, full_lift_pressure=full,
                        kd=values["discharge_coefficient"], kb=values["back_pressure_factor"],
-                       kc=values["combination_factor"], design=values["design"])
+                       kc=values["combination_factor"], design=values["design"],
+                       kd_liquid=values["liquid_discharge_coefficient"],
+                       kw=values["liquid_back_pressure_factor"])
 
 
 RELIEF_VALVE = register_device(Variant(
     "relief-valve",
     "A spring-loaded pressure relief valve protecting the `from` node, discharging to the "
-    "`to` node: pop or modulating action, capacity by API 520 Part I for gas.",
+    "`to` node: pop or modulating action, capacity by API 520 Part I for gas and liquid, "
+    "homogeneous equilibrium for flashing liquid.",
     Section(
         "device: relief-valve",
         "Keys of a link with `device: relief-valve`, besides `from` (the protected node), "
         "`to` (where it discharges) and `device`. Set, reseat and full-lift pressures are "
         "compared with the pressure of the `from` node. Capacity: API 520 Part I gas "
         "equations (critical or subcritical) at the present pressures, with Z from the real "
-        "fluid and the ideal-gas k at the relieving temperature.",
+        "fluid and the ideal-gas k at the relieving temperature; liquid that does not "
+        "flash by the API 520 Part I liquid equation; flashing liquid (drawn from a "
+        "two-phase vessel with `draws: liquid`, or a hot liquid-full vessel) by the "
+        "homogeneous-equilibrium flux.",
         fields=(
             Field("set_pressure", Quantity("pressure"), "Set pressure (gauge values refer to "
                   "the scenario's atmosphere).", required=True),
@@ -316,6 +330,17 @@ RELIEF_VALVE = register_device(Variant(
             Field("combination_factor", Quantity("dimensionless", above=0.0, at_most=1.0),
                   f"Kc: {KC_RUPTURE_DISC} with a rupture disc upstream when the combination is "
                   "not certified, else 1 (API 520 Part I).", default="1"),
+            Field("liquid_discharge_coefficient",
+                  Quantity("dimensionless", above=0.0, at_most=1.0),
+                  f"Kd for liquid ({KD_LIQUID} for preliminary sizing of valves with certified "
+                  "liquid capacity, API 520 Part I); a flashing stream takes a Kd between this "
+                  "and `discharge_coefficient`, weighted by the vapour share at the throat.",
+                  default=str(KD_LIQUID)),
+            Field("liquid_back_pressure_factor",
+                  Quantity("dimensionless", above=0.0, at_most=1.0),
+                  "Kw, capacity correction for back pressure in liquid service (balanced-"
+                  "bellows valves, from the maker or API 520 Part I; 1 for conventional and "
+                  "pilot-operated valves).", default="1"),
         ),
         one_of=(("orifice_letter", "area"),),
         checks=(_check_relief,),
@@ -382,3 +407,28 @@ CHECK_VALVE = register_device(Variant(
 
 __all__ = ["BURSTING_DISC", "CHECK_VALVE", "CONTROL_VALVE", "PressureDifference",
            "RELIEF_VALVE", "ShareOrDifference"]
+
+
+# ------------------------------------------------------------ liquid service
+
+
+def _control_valve_liquid(device: ControlValve) -> tuple[str, str]:
+    if device.fl is None:
+        return ("the IEC 60534-2-1 liquid equations need the liquid pressure recovery factor: "
+                "state FL from the valve maker (about 0.9 for globe valves, 0.6 for ball "
+                "valves), or draw vapour", "")
+    return "", (f"IEC 60534-2-1 incompressible-flow equations, FL = {device.fl:g}, choked at "
+                "(FL/Fp)^2 (p1 - FF pv)")
+
+
+def _relief_valve_liquid(device: ReliefValve) -> tuple[str, str]:
+    return "", (f"API 520 Part I liquid equation (Kd {device.kd_liquid:g}, Kw {device.kw:g}, "
+                "Kv) while the liquid does not flash; homogeneous-equilibrium flux with Kd "
+                f"between {device.kd_liquid:g} and {device.kd:g} by the throat's vapour share "
+                "when it flashes")
+
+
+register_liquid_service(ControlValve, _control_valve_liquid)
+register_liquid_service(ReliefValve, _relief_valve_liquid)
+register_liquid_service(BurstingDisc, nozzle_liquid_service)
+register_liquid_service(CheckValve, nozzle_liquid_service)
