@@ -527,40 +527,84 @@ class MixtureFluid:
         """Equilibrium state from density [kg/m3] and temperature [K]."""
         self._check_rho(rho, "density-temperature state")
         self._check_T(T, "density-temperature state")
-        e, z = self.engine, self.z
-        v = self.molar_mass / rho
-        ph = e._phase_tv(T, v, z)
-        if ph.p > 0.0 and ph.dpdv < 0.0:
-            if self._surely_single(T, ph.p):
-                return self._single(ph)
-            fl = e.flash_tp(T, ph.p, z)
-            if self._same_root(fl, v):
-                return self._single(ph, fl)
-        if self._pure:
-            T_, p, fl = self._pure_split_at(T, v)
-            return e.make_state(z, T, p, fl)
-        # two phases: v(T, p) = v, v falls as p rises; secant in ln p, bracketed
         hint = self._hints["T"]
-        p0 = hint.p if (hint.two_phase and math.isfinite(hint.p)) else (
-            ph.p if ph.p > 0.0 else 1e5)
-        tol = MIX_RTOL
-
-        def f(lnp):
-            vv, _, _, fl = e.equilibrium_tp(T, math.exp(lnp), z)
-            f.last = fl
-            return (v - vv) / v          # rises with p
-
-        f.last = None
-        lnp = _solve_increasing(f, math.log(p0), 0.05, math.log(1e2), math.log(self.p_max), tol)
-        if lnp is None:
+        out = self._equilibrium_tv(T, self.molar_mass / rho,
+                                   hint.p if hint.two_phase else None)
+        if out is None:
             raise StateError(f"the {self.name} state at rho = {rho:.6g} kg/m3, T = {T:.6g} K "
                              "could not be solved (two-phase density-temperature flash); "
                              "please report it with the scenario.")
-        p = math.exp(lnp)
+        p, fl = out
         self._check_p(p)
-        fl = f.last
         hint.T, hint.p, hint.two_phase = T, p, fl[3] is not None and fl[4] is not None
-        return e.make_state(z, T, p, fl)
+        return self.engine.make_state(self.z, T, p, fl)
+
+    def _equilibrium_tv(self, T: float, v: float, p_guess: float | None = None):
+        """Equilibrium at (T [K], v [m3/mol]): (p [Pa], flash tuple), or None.
+
+        One phase when p(T, v) of the equation of state is mechanically stable and
+        the (T, p) flash finds that same root; else two phases: v(T, p) = v, with v
+        falling as p rises, by a bracketed secant in ln p (lever rule on the
+        saturation curve for a single component)."""
+        e, z = self.engine, self.z
+        ph = e._phase_tv(T, v, z)
+        if ph.p > 0.0 and ph.dpdv < 0.0:
+            if self._surely_single(T, ph.p):
+                return ph.p, (1.0, z, z, ph, None)
+            fl = e.flash_tp(T, ph.p, z)
+            if self._same_root(fl, v):
+                return ph.p, ((0.0, z, z, None, ph) if fl[3] is None else (1.0, z, z, ph, None))
+        if self._pure:
+            _, p, fl = self._pure_split_at(T, v)
+            return (p, fl) if 0.0 <= fl[0] <= 1.0 else None
+        p0 = p_guess if p_guess else (ph.p if ph.p > 0.0 else 1e5)
+        seen = {}
+
+        def f(lnp):
+            vv, _, _, fl = e.equilibrium_tp(T, math.exp(lnp), z)
+            seen[lnp] = fl
+            return (v - vv) / v          # rises with p
+
+        lnp = _solve_increasing(f, math.log(p0), 0.05, math.log(1e2), math.log(self.p_max),
+                                MIX_RTOL)
+        if lnp is None:
+            return None
+        p = math.exp(lnp)
+        fl = seen.get(lnp) or e.flash_tp(T, p, z)
+        return p, fl
+
+    def _nested(self, v: float, target: float, kind: str, T0: float, tol: float):
+        """(v, u) or (v, s) by nested one-dimensional solves, the robust fallback:
+        outer bracketed secant in T on y(T, v) - y (u and s rise with T at fixed v,
+        also in two phases), inner (T, v) equilibrium (:meth:`_equilibrium_tv`).
+        Returns (T, p, flash) or None."""
+        seen = {}
+
+        def f(T):
+            out = self._equilibrium_tv(T, v, f.p)
+            if out is None:
+                raise StateError("inner (T, v) equilibrium failed")
+            p, fl = out
+            f.p = p
+            seen[T] = (p, fl)
+            beta, _, _, V, L = fl
+            if V is not None and L is not None:
+                y = beta * (V.u if kind == "u" else V.s) + (1 - beta) * (L.u if kind == "u" else L.s)
+            else:
+                ph = V if V is not None else L
+                y = ph.u if kind == "u" else ph.s
+            return y - target
+
+        f.p = None
+        T0 = min(max(T0, self.t_min), self.t_max)
+        try:
+            T = _solve_increasing(f, T0, 0.02 * T0, self.t_min, self.t_max, tol)
+        except StateError:
+            return None
+        if T is None:
+            return None
+        p, fl = seen[T] if T in seen else self._equilibrium_tv(T, v, f.p)
+        return T, p, fl
 
     def _single(self, ph: _Phase, fl=None) -> MixtureState:
         e = self.engine
@@ -601,6 +645,7 @@ class MixtureFluid:
         v = self.molar_mass / rho
         scale = self._u_scale if kind == "u" else self._s_scale
         tol = MIX_RTOL * (abs(target) + scale)
+        good_start = True
         if not hint.two_phase:
             ph = self._single_T(v, target, T_guess, kind, tol)
             if ph is not None and ph.p > 0.0 and ph.dpdv < 0.0:
@@ -613,7 +658,9 @@ class MixtureFluid:
                     return self._single(ph, fl)
                 T0, p0 = ph.T, ph.p
             else:
-                T0 = ph.T if ph is not None else (T_guess or 250.0)
+                # the one-phase root is mechanically unstable or missing: no good start
+                good_start = False
+                T0 = T_guess if T_guess else (hint.T if math.isfinite(hint.T) else 250.0)
                 p0 = hint.p if math.isfinite(hint.p) else 1e6
         else:
             T0 = T_guess if T_guess else hint.T
@@ -621,7 +668,14 @@ class MixtureFluid:
         if self._pure:
             out = self._pure_two_phase(v, target, kind, T0, tol)
         else:
-            out = self._newton_tp(v, target, kind, T0, p0, hint, tol)
+            out = self._newton_tp(v, target, kind, T0, p0, hint, tol) if good_start else None
+            if out is None:
+                # no good start (or Newton failed): nested solves, then Newton to polish
+                # and to leave a fresh Jacobian in the hint
+                out = self._nested(v, target, kind, T0, tol)
+                if out is not None:
+                    hint.jac = None
+                    out = self._newton_tp(v, target, kind, out[0], out[1], hint, tol) or out
         if out is None:
             raise self._unsolved(rho, target / self.molar_mass, kind)
         T, p, fl = out
