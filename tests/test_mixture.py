@@ -118,7 +118,7 @@ def test_pure_methane_equals_the_pure_path_within_the_equation_difference():
 def test_gerg2008_agrees_with_coolprop_heos_in_one_phase():
     # source: CoolProp HEOS mixture (reference pure-fluid equations + GERG-2008 departure
     # functions), an independent engine, at (rho, T) in the gas; the two differ by their
-    # pure-fluid equations only: 0.1 % in pressure, 0.5 % in speed of sound here.
+    # pure-fluid equations only: measured 6e-5 in pressure, 3e-4 in speed of sound here.
     import CoolProp.CoolProp as CP
     names = list(LEAN)
     a = CP.AbstractState("HEOS", "&".join(names))
@@ -128,8 +128,8 @@ def test_gerg2008_agrees_with_coolprop_heos_in_one_phase():
     for rho_molar, T in ((2000.0, 300.0), (6000.0, 288.15), (1000.0, 240.0)):
         a.update(CP.DmolarT_INPUTS, rho_molar, T)
         st = f.state_dt(rho_molar * f.molar_mass, T)
-        assert st.p == pytest.approx(a.p(), rel=1e-3)
-        assert st.c == pytest.approx(a.speed_sound(), rel=5e-3)
+        assert st.p == pytest.approx(a.p(), rel=3e-4)
+        assert st.c == pytest.approx(a.speed_sound(), rel=1e-3)
     # energy differences are reference-free: u(300 K) - u(240 K) at 1000 mol/m3
     a.update(CP.DmolarT_INPUTS, 1000.0, 300.0)
     u1 = a.umolar()
