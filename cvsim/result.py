@@ -13,6 +13,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from .contents import run_figures
 from .limits import check_vessel, first_time_at_or_below
 from .model import ACC_PER_LINK, Model
 from .network import Network
@@ -40,6 +41,7 @@ class Result:
     limits: list = field(default_factory=list)      # LimitCheck per vessel limit
     warnings: list = field(default_factory=list)    # sentences: what to look at (chatter, ...)
     device_figures: dict = field(default_factory=dict)  # per link: figures of its device
+    contents: dict = field(default_factory=dict)  # per vessel: phase, liquid share, level
 
     @property
     def limits_crossed(self) -> list:
@@ -165,6 +167,7 @@ class Result:
                 first = int(np.argmax(~np.isnan(q)))
                 d["two_phase_from_s"] = float(t_all[first])
                 d["min_vapour_quality"] = float(np.nanmin(q))
+            d.update(self.contents.get(n, {}))
             out["vessels"][n] = d
         for link in self.network.links:
             n = link.name
@@ -221,6 +224,8 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
                     assumptions=assumptions(model), provenance=dict(provenance or {}),
                     warnings=warnings, device_figures=figures)
     result.limits = check_limits(result)
+    result.contents, liquid_full = run_figures(model, result)
+    result.warnings += liquid_full
     return result
 
 
