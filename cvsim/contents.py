@@ -49,9 +49,7 @@ def liquid_level(geometry: Geometry, liquid_fraction: float) -> float:
     if not has_level(geometry):
         return math.nan
     t = _tank(geometry)
-    h = t.level(liquid_fraction * t.volume, getattr(t, "last_level", None))
-    t.last_level = h
-    return h
+    return t.level(liquid_fraction * t.volume)
 
 
 def columns(vessel: Vessel) -> list[tuple[str, str, str]]:

@@ -96,6 +96,10 @@ def test_check_states_the_initial_contents_and_warns_of_a_liquid_full_vessel(tmp
     assert "liquid-full" in lines["drum"]
     assert "two-phase" in lines["sphere"] and "liquid 30 % of the volume" in lines["sphere"]
     assert "WARNING: vessel 'drum' starts liquid-full" in out
+    # source: CoolProp's (dp/dT) at constant density of the liquid: the pressure rise of
+    # the liquid-full drum per kelvin
+    rise = CP.PropsSI("d(P)/d(T)|Dmass", "D", rho, "T", 293.15, "CarbonDioxide")
+    assert f"about {rise / 1e5:.3g} bar per K" in out
     assert "sphere" not in out.split("WARNING")[1]
 
 

@@ -64,8 +64,9 @@ def test_volume_level_and_area_match_the_fluids_library(heads, orientation):
 
 def test_nearly_empty_and_nearly_full_keep_their_precision():
     # source: circular segment R^2 (theta - sin theta)/2, theta = 4 asin(sqrt(h/2R)) (CRC
-    # Standard Mathematical Tables and Formulae, 31st ed., sec. 4.5), summed in 50-digit
-    # decimal arithmetic in the test; spherical cap pi h^2 (3R - h)/3 (sec. 4.8)
+    # Standard Mathematical Tables and Formulae, 31st ed., ch. 4; section from memory),
+    # summed in 50-digit decimal arithmetic in the test; spherical cap pi h^2 (3R - h)/3
+    # (sec. 4.8)
     getcontext().prec = 50
     R, L, h = 0.9, 4.0, 1.8e-6
     x = (Decimal(h) / (2 * Decimal(R))).sqrt()
@@ -197,7 +198,7 @@ def test_outside_level_bounds_the_wall_behind_the_wetted_inside():
     # sphere and horizontal shell: the mapped plane cuts the outside exactly where the
     # wall's normals from the wetted inside end, so the areas scale as (R + t)/R per unit
     # (zone 2 pi R h; arc R angle) - closed forms, CRC Standard Mathematical Tables,
-    # sec. 4.5 and 4.8
+    # ch. 4 (sections from memory)
     D, t = 2.0, 0.03
     for h in (0.1, 0.9, 1.7):
         out = lv.outside_level(h, "sphere", D, offset=t)

@@ -55,8 +55,7 @@ def api521_pool_fire_heat(A: float, F: float = 1.0, drainage: bool = True) -> fl
     return POOL_FIRE_C1_SI[drainage] * F * A**0.82
 
 
-def pool_fire_area(fire, liquid_fraction: float, guess: float | None = None
-                   ) -> tuple[float, float]:
+def pool_fire_area(fire, liquid_fraction: float) -> tuple[float, float]:
     """The area A [m2] of API 521's pool-fire heat input for a vessel whose contents take
     the share ``liquid_fraction`` [-] of its volume as liquid, and the liquid level [m]
     (NaN when none is computed).
@@ -64,7 +63,7 @@ def pool_fire_area(fire, liquid_fraction: float, guess: float | None = None
     * two phases (0 < share < 1): the wetted area - the outside surface below the
       liquid level and within 7.6 m above the base of the fire:
       A = A_out(min(h_out, reach)), with h the liquid's height that holds share x V
-      (:func:`cvsim.heat.level.height_from_volume`, warm-started from ``guess``), h_out
+      (:meth:`cvsim.heat.level.Tank.level`, warm-started from the last level), h_out
       that level on the outside surface (:func:`cvsim.heat.level.outside_level`) and
       A_out(z) the outside area below the height z (:func:`cvsim.heat.level.area_below`);
     * no liquid level (gas or supercritical contents, share 0) or liquid-full (share 1):
@@ -76,7 +75,6 @@ def pool_fire_area(fire, liquid_fraction: float, guess: float | None = None
     ----------
     fire : :class:`cvsim.heat.definitions.PoolFire`
     liquid_fraction : [-] share of the vessel's volume taken by liquid
-    guess : [m] the last liquid level (warm start), or ``None``
 
     Source: API Standard 521 (ISO 23251), fire-exposure section: the wetted surface is
     the area wetted by the vessel's internal liquid up to 7.6 m (25 ft) above the base of
@@ -87,7 +85,7 @@ def pool_fire_area(fire, liquid_fraction: float, guess: float | None = None
         return fire.area, math.nan
     from .level import outside_level, tank
     inside = tank(w.kind, w.inner_diameter, w.length, w.heads, w.orientation)
-    h = inside.level(liquid_fraction * inside.volume, guess)
+    h = inside.level(liquid_fraction * inside.volume)
     h_out = outside_level(h, w.kind, w.inner_diameter, w.length, w.heads, w.orientation,
                           w.offset)
     outside = tank(w.kind, w.inner_diameter, w.length, w.heads, w.orientation, w.offset)

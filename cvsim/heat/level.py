@@ -20,8 +20,8 @@ horizontal vessel; ``D_s = D + 2 offset``):
   2 pi R_k z (Archimedes; CRC Standard Mathematical Tables and Formulae, 31st ed.,
   sec. 4.8);
 * circular segment: A = R^2 acos(d/R) - d sqrt(R^2 - d^2), arc 2 R acos(d/R)
-  (CRC, sec. 4.5); a horizontal shell holds L times the segment and is wetted on L
-  times the arc;
+  (CRC, ch. 4, plane figures; section from memory); a horizontal shell holds L times
+  the segment and is wetted on L times the arc;
 * 2:1 ellipsoidal head (semi-axes a = R, b = D/4) on a vertical axis: V = pi a^2 z^2
   (3 b - z)/(3 b^2) from the pole; its area from the tangent line to the parameter
   u = sin(s) of the point (a cos s, b sin s) and its parallel surface at depth t, with
@@ -105,6 +105,11 @@ class _Arc:
     def speed(self, s):
         return self.R_k
 
+    def ring(self, s: float) -> tuple[float, float, float]:
+        """(rho, ds/d(param), |dx/d(param)|) at s."""
+        c = math.cos(s)
+        return self.rho_c + self.R_k * c, self.R_k, self.R_k * c
+
     def s_at_rho(self, rho: float) -> float:
         return math.acos(min(max((rho - self.rho_c) / self.R_k, -1.0), 1.0))
 
@@ -159,17 +164,44 @@ class _Ellipse:
         w = self._w(s)
         return w + self.t * self.a * self.b / (w * w)
 
+    def ring(self, s: float) -> tuple[float, float, float]:
+        """(rho, ds/d(param), |dx/d(param)|) at s (dx of the inside profile)."""
+        c = math.cos(s)
+        w = math.sqrt(self.b * self.b + self.k * (1.0 - c * c))
+        return (c * (self.a + self.t * self.b / w), w + self.t * self.a * self.b / (w * w),
+                self.b * c)
+
+    def _newton(self, fn, target: float, s: float, sign: float) -> float:
+        """Root of fn(s) = target on [0, pi/2] (fn monotone, increasing for sign > 0) by
+        Newton steps with a numerical slope from a close first guess, falling back on
+        the bracketed search."""
+        tol = 1e-15 * self.a
+        for _ in range(8):
+            f = fn(s) - target
+            if abs(f) <= tol:
+                return s
+            step = 1e-7
+            slope = (fn(min(s + step, self.s1)) - fn(max(s - step, self.s0))) / (
+                min(s + step, self.s1) - max(s - step, self.s0))
+            if slope == 0.0:
+                break
+            s_new = s - f / slope
+            if not self.s0 <= s_new <= self.s1:
+                break
+            s = s_new
+        return _monotone_root(lambda v: fn(v) - target, self.s0, self.s1, sign, tol)
+
     def s_at_rho(self, rho: float) -> float:
+        guess = math.acos(min(max(rho / self.a, -1.0), 1.0))  # the inside profile's
         if self.t == 0.0:
-            return math.acos(min(max(rho / self.a, -1.0), 1.0))
-        return _monotone_root(lambda s: self.rho(s) - rho, self.s0, self.s1, -1.0,
-                              1e-15 * self.a)
+            return guess
+        return self._newton(self.rho, rho, guess, -1.0)
 
     def s_at_x(self, x: float) -> float:
+        guess = math.asin(min(max(x / self.b, -1.0), 1.0))
         if self.t == 0.0:
-            return math.asin(min(max(x / self.b, -1.0), 1.0))
-        return _monotone_root(lambda s: self.x(s) - x, self.s0, self.s1, 1.0,
-                              1e-15 * self.a)
+            return guess
+        return self._newton(self.x, x, guess, 1.0)
 
     def from_tangent(self, s: float, what: str) -> float:
         """Area or volume (inside) of the head from the tangent line to s, in closed form
@@ -304,7 +336,8 @@ class Tank:
             L, heads, orientation = 0.0, "hemispherical", "vertical"
         if heads not in HEADS:
             raise ValueError(f"unknown head '{heads}'")
-        self.D, self.L, self.heads, self.orientation, self.offset = D, L, heads, orientation, offset
+        self.D, self.L, self.heads = D, L, heads
+        self.orientation, self.offset = orientation, offset
         self.R = D / 2.0
         self.Rs = self.R + offset                  # radius of the shell surface considered
         self.flat = heads == "flat"
@@ -318,6 +351,7 @@ class Tank:
                             sum(p.from_tangent(p.s1, "volume") for p in self.pieces))
         self.area = 2.0 * math.pi * self.Rs * L + 2.0 * self.head_area
         self.volume = math.pi * self.R**2 * L + 2.0 * self.head_volume
+        self._last = None  # (h, V(h), dV/dh) of the last level found: the warm start
 
     # --------------------------------------------------------- vertical axis
     def _head_from_pole(self, z: float, what: str) -> float:
@@ -375,15 +409,17 @@ class Tank:
                 span = sk - s0
                 acc = 0.0
                 for v2, w in _KINK:
-                    s = sk - span * v2
-                    rho = p.rho(s)
-                    acc += w * rho * _acos_ratio(d, rho) * p.speed(s)
+                    rho, speed, _ = p.ring(sk - span * v2)
+                    acc += w * rho * _acos_ratio(d, rho) * speed
                 total += 2.0 * span * acc
             if whole is not None:
                 s0, s1 = whole
                 span = s1 - s0
-                total += 2.0 * math.pi * span * sum(
-                    w * p.rho(s0 + span * v) * p.speed(s0 + span * v) for v, w in _NODES)
+                acc = 0.0
+                for v, w in _NODES:
+                    rho, speed, _ = p.ring(s0 + span * v)
+                    acc += w * rho * speed
+                total += 2.0 * math.pi * span * acc
         return total
 
     def _horizontal_head_volume(self, d: float) -> tuple[float, float]:
@@ -401,18 +437,26 @@ class Tank:
                 span = sk - s0
                 acc_v = acc_s = 0.0
                 for v2, w in _KINK:
-                    s = sk - span * v2
-                    rho = p.rho(s)
-                    dx = abs(p.dx(s))
-                    acc_v += w * _segment(rho, d) * dx
-                    acc_s += w * math.sqrt(max(rho * rho - d * d, 0.0)) * dx
+                    rho, _, dx = p.ring(sk - span * v2)
+                    # the ring's disc below the chord: half-angle a = acos(d/rho)/2 ...
+                    r = min(max((rho - d) / (2.0 * rho), 0.0), 1.0)   # sin^2(a)
+                    theta = 4.0 * math.asin(math.sqrt(r))             # whole angle
+                    if theta < SERIES_BELOW:
+                        tms = _theta_minus_sin(theta)
+                    else:
+                        tms = theta - math.sin(theta)
+                    acc_v += w * 0.5 * rho * rho * tms * dx            # segment area
+                    acc_s += w * 2.0 * rho * math.sqrt(r * (1.0 - r)) * dx  # half chord
                 volume += span * acc_v
                 surface += 2.0 * span * acc_s
             if whole is not None:
                 s0, s1 = whole
                 span = s1 - s0
-                volume += math.pi * span * sum(
-                    w * p.rho(s0 + span * v) ** 2 * abs(p.dx(s0 + span * v)) for v, w in _NODES)
+                acc = 0.0
+                for v, w in _NODES:
+                    rho, _, dx = p.ring(s0 + span * v)
+                    acc += w * rho * rho * dx
+                volume += math.pi * span * acc
         return volume, surface
 
     # --------------------------------------------------------- public
@@ -475,8 +519,10 @@ class Tank:
 
         Newton steps on V(h) - V with the slope dV/dh (the area of the liquid's
         surface), kept inside a shrinking bracket (bisection when a step leaves it),
-        from ``guess`` (the last level: a warm start) or from the height at the same
-        share of the volume; stops on the residual |V(h) - V| <= LEVEL_RTOL V_total.
+        stopped on the residual |V(h) - V| <= LEVEL_RTOL V_total. Warm start: from
+        ``guess`` [m] if given, else by a Newton step from the last level this shape
+        found (its volume and slope are kept, so a small change of V often needs one
+        evaluation), else from the height at the same share of the volume.
         """
         H, Vt = self.height, self.volume
         if V <= 0.0:
@@ -485,11 +531,19 @@ class Tank:
             return H
         tol = LEVEL_RTOL * Vt
         lo, hi = 0.0, H
-        h = guess if guess is not None and 0.0 < guess < H else H * V / Vt
+        h = H * V / Vt
+        if guess is not None and 0.0 < guess < H:
+            h = guess
+        elif self._last is not None:
+            h_l, v_l, s_l = self._last
+            step = h_l + (V - v_l) / s_l if s_l > 0.0 else h_l
+            if 0.0 < step < H:
+                h = step
         for _ in range(MAX_LEVEL_ITERATIONS):
             v, slope = self.volume_and_surface(h)
             f = v - V
             if abs(f) <= tol:
+                self._last = (h, v, slope)
                 return h
             if f > 0.0:
                 hi = h

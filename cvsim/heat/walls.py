@@ -56,16 +56,15 @@ WATCH_MIN_DIFFERENCE = 0.1
 
 class FireArea:
     """The area of a pool fire's heat input as the liquid level moves (API 521 wetted
-    area, :func:`cvsim.heat.fire.pool_fire_area`): keeps the last level as the warm
-    start and the last answer (the Jacobian's perturbations of wall states leave the
-    liquid share as it was). Watches, while the fire burns, the steps between the wetted
+    area, :func:`cvsim.heat.fire.pool_fire_area`, whose level solve is warm-started from
+    the last level): keeps the last answer (the Jacobian's perturbations of wall states
+    leave the liquid share as it was). Watches, while the fire burns, the steps between the wetted
     area and the whole area within the fire's reach: the vessel's last liquid
     evaporating (or liquid forming in a vessel that held none) for the warnings; the
     change from two phases to liquid-full is continuous (the level reaches the top)."""
 
     def __init__(self, fire: PoolFire):
         self.fire = fire
-        self._level = None
         self._last = (math.nan, fire.area)
         self._liquid_before = None
         self._area_before = fire.area
@@ -75,9 +74,7 @@ class FireArea:
         """A [m2] for the vessel's liquid share [-]."""
         if liquid_fraction == self._last[0]:
             return self._last[1]
-        A, h = pool_fire_area(self.fire, liquid_fraction, self._level)
-        if h == h:
-            self._level = h
+        A = pool_fire_area(self.fire, liquid_fraction)[0]
         self._last = (liquid_fraction, A)
         return A
 
