@@ -173,14 +173,13 @@ def run_figures(model, result) -> tuple[dict, list[str]]:
         initial = {}
     if not len(result.data):
         return out, warnings
-    rows = result._all()
-    t = rows[:, 0]
+    t = result.fine("time")
     for v in model.network.vessels:
         n = v.name
         d = {f"initial_{k}": val for k, val in initial.get(n, {}).items()
              if k in ("phase", "density_kg_m3", "liquid_fraction", "liquid_level_m",
                       "mass_kg")}
-        lf = rows[:, result._col(f"{n}.liquid_fraction")]
+        lf = result.fine(f"{n}.liquid_fraction")
         if (lf > 0.0).any():
             column, key, unit = ((f"{n}.liquid_level", "liquid_level", "_m")
                                  if has_level(v.geometry) else
@@ -192,8 +191,8 @@ def run_figures(model, result) -> tuple[dict, list[str]]:
         full = lf >= LIQUID_FULL
         if full.any():
             k = int(full.argmax())
-            rho = float(rows[k, result._col(f"{n}.density")])
-            T = float(rows[k, result._col(f"{n}.temperature")])
+            rho = float(result.fine(f"{n}.density")[k])
+            T = float(result.fine(f"{n}.temperature")[k])
             d["liquid_full_from_s"] = float(t[k])
             after = ~full[k:]
             if after.any():

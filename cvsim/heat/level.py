@@ -48,13 +48,13 @@ horizontal vessel; ``D_s = D + 2 offset``):
   by Gauss-Legendre quadrature (:data:`GAUSS_POINTS` points) on each smooth piece of
   the profile, split where the plane meets the ring (rho = |d|) and with the
   substitution s = s* - (s* - s0) v^2 there, which makes the square-root behaviour of
-  the integrand at that point smooth in v: the quadrature is then exact to round-off
-  (relative error below 1e-12 against the closed forms where they exist).
+  the integrand at that point smooth in v: the quadrature then converges fast
+  (relative error about 1e-11 against 120 points, and against the closed forms where
+  they exist).
 
-These are the partially-filled tank formulas of the tank-volume literature (e.g.
+The ``fluids`` library computes the same quantities for partially filled tanks (after
 D. Jones, *Calculating Tank Volume* and *Calculating Tank Wetted Area*, Chemical
-Processing, 2003 and 2017, as implemented in the ``fluids`` library, against which the
-tests check every head and orientation).
+Processing); the tests check every head and orientation against it.
 """
 from __future__ import annotations
 

@@ -58,8 +58,8 @@ class FireArea:
     """The area of a pool fire's heat input as the liquid level moves (API 521 wetted
     area, :func:`cvsim.heat.fire.pool_fire_area`, whose level solve is warm-started from
     the last level): keeps the last answer (the Jacobian's perturbations of wall states
-    leave the liquid share as it was). Watches, while the fire burns, the steps between the wetted
-    area and the whole area within the fire's reach: the vessel's last liquid
+    leave the liquid share as it was). Watches, while the fire burns, the steps between
+    the wetted area and the whole area within the fire's reach: the vessel's last liquid
     evaporating (or liquid forming in a vessel that held none) for the warnings; the
     change from two phases to liquid-full is continuous (the level reaches the top)."""
 
@@ -97,8 +97,8 @@ class FireArea:
         more = f" ({len(self.switches)} such changes in all)" if len(self.switches) > 1 else ""
         return [f"{where}: at t = {t:.4g} s {what}, so the API 521 heat-input area stepped "
                 f"from {a0:.4g} to {a1:.4g} m2{more}. The API 521 wetted-surface heat input "
-                "is meant for liquid-wetted walls; look at the wall temperatures when "
-                "walls are dry."]
+                "is meant for liquid-wetted walls; a dry wall heats up instead and may "
+                "fail by overheating (model the wall to see its temperature)."]
 
     def assumption(self) -> str:
         f, w = self.fire, self.fire.wetted
