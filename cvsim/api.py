@@ -41,12 +41,34 @@ def run_network(network: Network, scenario=None, progress=None) -> Result:
     return build_result(model, raw, {**provenance(scenario), "run_started": started})
 
 
-def run(scenario, overrides: dict | None = None, progress=None, check: bool = False) -> Result:
+def verify(result: Result, scenario=None) -> Result:
+    """Rerun ``result``'s network with tolerances 100 times tighter and add the
+    comparison of their key figures to ``result.checks`` (a warning if it fails).
+    Returns ``result``."""
+    import dataclasses
+
+    from .checks import VERIFY_FACTOR, rerun_check
+    net = result.network
+    tight_run = dataclasses.replace(net.run, rtol=net.run.rtol / VERIFY_FACTOR,
+                                    atol_scale=net.run.atol_scale / VERIFY_FACTOR)
+    tight = run_network(dataclasses.replace(net, run=tight_run), scenario)
+    check = rerun_check(result, tight)
+    result.checks.append(check)
+    if not check.passed:
+        result.warnings.append(f"SELF-CHECK FAILED - do not use these results: {check.text()}")
+    return result
+
+
+def run(scenario, overrides: dict | None = None, progress=None, check: bool = False,
+        verify_tolerance: bool = False) -> Result:
     """Run a scenario given as a file path, a loaded Scenario or a Network.
 
     ``overrides`` maps dotted key paths to values (e.g. ``{"links.vent.diameter":
     "12 mm"}``). With ``check=True`` a failed run raises :class:`SolverError`
-    instead of returning a result with status 'failed'.
+    instead of returning a result with status 'failed'. With
+    ``verify_tolerance=True`` the run is repeated at tolerances 100 times tighter
+    and the largest difference of its key figures becomes one of its self-checks
+    (:func:`verify`).
     """
     from .scenario import Scenario, load_scenario
     if isinstance(scenario, (str, Path)):
@@ -61,6 +83,8 @@ def run(scenario, overrides: dict | None = None, progress=None, check: bool = Fa
     else:
         raise TypeError(f"cannot run a {type(scenario).__name__}: give a path, a Scenario "
                         "or a Network")
+    if verify_tolerance and result.ok:
+        verify(result, scenario if isinstance(scenario, Scenario) else None)
     if check and not result.ok:
         raise SolverError(result.message)
     return result

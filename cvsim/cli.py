@@ -58,6 +58,9 @@ def _parser() -> argparse.ArgumentParser:
                    help="if the run fails part-way, still write what was computed (every "
                    "file then says the run failed)")
     r.add_argument("--quiet", action="store_true", help="do not print the summary")
+    r.add_argument("--verify", action="store_true",
+                   help="run again at tolerances 100 times tighter and report the largest "
+                   "difference of the key figures as a self-check (about twice the time)")
     r.add_argument("--fail-on-limits", action="store_true",
                    help="exit with status 3 when a design limit stated in the scenario is "
                    "crossed (for scripted studies)")
@@ -149,7 +152,7 @@ def cmd_run(args) -> int:
         def progress(t, t_end):
             bar.update(t - bar.n)
     try:
-        result = run(scenario, progress=progress)
+        result = run(scenario, progress=progress, verify_tolerance=args.verify)
     finally:
         if bar is not None:
             bar.close()

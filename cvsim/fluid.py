@@ -190,12 +190,20 @@ class RealFluid:
             self.t_triple = a.Ttriple()
         except ValueError:
             self.t_triple = self.t_min
+        try:
+            self._sat.update(CP.QT_INPUTS, 0.0, self.t_triple)
+            #: [Pa] saturation pressure at the triple point (None: not available)
+            self.p_triple = self._sat.p()
+        except ValueError:
+            self.p_triple = None
         self.evaluations = 0  # count of equation-of-state evaluations (for benchmarks)
         R = R_UNIVERSAL / self.molar_mass
         #: residual tolerances of the state solves (see :meth:`_solve_T`): an
         #: energy [J/kg] and an entropy [J/(kg K)] scale of this fluid
         self._u_scale = R * max(self.t_crit, 100.0)
         self._s_scale = R
+        #: the energy scale of the residual tolerances [J/kg] (R T_c)
+        self.energy_scale = self._u_scale
 
     # ------------------------------------------------------------- reading
     def _read(self) -> State:
@@ -264,6 +272,23 @@ class RealFluid:
             raise StateError(f"{self.name} properties failed at p = {p:.6g} Pa, "
                              f"T = {T:.6g} K: {exc}") from None
         return self._read()
+
+    def state_ph(self, p: float, h: float) -> State:
+        """State from pressure [Pa] and specific enthalpy [J/kg] (CoolProp's own
+        flash; used by the self-checks, not on the solver's path)."""
+        if not (p > 0.0):
+            raise StateError(f"pressure {p:.6g} Pa is not positive")
+        self.evaluations += 1
+        try:
+            self._as.update(self._CP.HmassP_INPUTS, h, p)
+        except ValueError as exc:
+            raise StateError(f"{self.name} properties failed at p = {p:.6g} Pa, "
+                             f"h = {h:.6g} J/kg: {exc}") from None
+        st = self._read()
+        if st.T < self.t_min:
+            raise StateError(f"{self.name} at p = {p:.6g} Pa, h = {h:.6g} J/kg lies below "
+                             "the lowest temperature of its equation of state")
+        return st
 
     def state_du(self, rho: float, u: float, T_guess: float | None = None) -> State:
         """State from density [kg/m3] and specific internal energy [J/kg].
@@ -569,6 +594,7 @@ class IdealGas:
         self.cv = cp - self.R
         self.gamma = cp / self.cv
         self.evaluations = 0
+        self.energy_scale = self.R * 300.0
 
     @classmethod
     def from_coolprop(cls, name: str, molar_mass: float | None = None,
@@ -606,6 +632,10 @@ class IdealGas:
         self._check(p / (self.R * T) if T > 0 else NAN, T)
         self.evaluations += 1
         return self._state(p / (self.R * T), T)
+
+    def state_ph(self, p: float, h: float) -> State:
+        T = h / self.cp
+        return self.state_pt(p, T)
 
     def state_du(self, rho: float, u: float, T_guess: float | None = None) -> State:
         T = u / self.cv

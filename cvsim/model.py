@@ -285,6 +285,9 @@ class Model:
             cols += contents.columns(self.network.vessels[v.index])
             for term in v.heat:
                 cols.append((f"{v.name}.heat.{term.name}", "W", "heat"))
+                if term.has_source:
+                    cols.append((f"{v.name}.heat.{term.name}.source_temperature", "K",
+                                 "heat-source"))
                 cols += term.columns(v.name)
         for r in self.reservoirs:
             cols.append((f"{r.name}.pressure", "Pa", "reservoir"))
@@ -563,11 +566,17 @@ class Segment:
         nv = m.n_vessels
         for v in m.vessels:
             st = s.states[v.index]
-            row += [st.p, st.T, y[v.i_m], st.rho, st.h, st.u, st.s, st.quality]
+            # the specific internal energy recorded is the conserved U/m (the state's
+            # own u agrees with it to the solve's residual: the self-checks verify it)
+            mass = y[v.i_m]
+            row += [st.p, st.T, mass, st.rho, st.h, y[v.i_U] / mass if mass > 0 else st.u,
+                    st.s, st.quality]
             row += contents.values(m.network.vessels[v.index], st)
             for term in v.heat:
                 own = y[term.offset:term.offset + term.n_states]
                 row.append(term.evaluate(t, st, own, self, np.zeros(m.n_states)))
+                if term.has_source:
+                    row.append(term.source_temperature(t, st, own, self))
                 row += term.values(t, st, own, self)
         for k, r in enumerate(m.reservoirs):
             st = s.states[nv + k]

@@ -195,11 +195,19 @@ def summary_text(result: Result) -> str:
     if result.limits:
         L.append("")
         L.append(limits_text(result))
+    if result.checks:
+        L.append("")
+        n_bad = len(result.checks_failed)
+        L.append(f"Self-checks ({len(result.checks)}, "
+                 + (f"{n_bad} FAILED - do not use these results" if n_bad else "all passed")
+                 + "): recomputed from the recorded histories")
+        L += [f"  {c.text()}" for c in result.checks]
     b = s["balance"]
     if b:
         L.append("")
-        L.append(f"Balances of the whole run: mass closure {b['mass_closure_relative']:.2e}, "
-                 f"energy closure {b['energy_closure_relative']:.2e} (relative)")
+        L.append(f"Bookkeeping of the whole run (integrator round-off only, not a model check): "
+                 f"mass {b['mass_closure_relative']:.2e}, energy "
+                 f"{b['energy_closure_relative']:.2e} (relative)")
     st = s["solver"]
     if st:
         L.append(f"Solver: {st.get('steps', 0)} steps, {st.get('rhs_calls', 0)} right-hand-side "

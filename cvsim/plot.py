@@ -200,7 +200,7 @@ class _View:
         out = {v: [] for v in self.vessels}
         by_length = sorted(self.vessels, key=len, reverse=True)
         for name in names:
-            if self.result.unit(name) != "K":
+            if self.result.unit(name) != "K" or name.endswith(".source_temperature"):
                 continue
             owner = next((v for v in by_length if name.startswith(v + ".")), None)
             if (owner is not None and name != f"{owner}.temperature"

@@ -73,6 +73,7 @@ SOLVER_LABELS = {
 #: version adds to :meth:`Result.summary` is listed under "Further results".
 SUMMARY_SHOWN = {"title", "status", "message", "end_time_s", "vessels", "links", "heat",
                  "events", "targets", "limits", "limits_crossed", "balance", "solver",
+                 "self_checks", "self_checks_failed",
                  "assumptions", "provenance", "caution", "warnings"}
 
 VERSION_LABELS = (("cvsim", "cvsim"), ("coolprop", "CoolProp"), ("scipy", "SciPy"),
@@ -258,10 +259,13 @@ def _glance(result: Result, s: dict) -> list:
             f" gas temperature lowest {esc(_degc(v['min_temperature_K']))} at "
             f"{esc(_t(v['min_temperature_time_s']))}, highest "
             f"{esc(_degc(v['max_temperature_K']))} at {esc(_t(v['max_temperature_time_s']))}."))
-    b = s["balance"]
-    if b:
-        out.append(Html(f"<b>Balances:</b> mass closes to {b['mass_closure_relative']:.1e}, "
-                        f"energy to {b['energy_closure_relative']:.1e} (relative)."))
+    if result.checks:
+        bad = result.checks_failed
+        out.append(Html(
+            f"<b>Self-checks:</b> {len(result.checks)} recomputed from the recorded histories "
+            "(state residuals, first law of each vessel, entropy produced by links and heat "
+            "terms): " + (f'<span class="state-crossed">{len(bad)} FAILED - do not use these '
+                          "results</span>." if bad else "all passed.")))
     return out
 
 
@@ -497,7 +501,10 @@ def _checks(result: Result, s: dict) -> Html:
                  number(b["final_internal_energy_J"] / 1e3), number(b["net_energy_in_J"] / 1e3),
                  f"{b['energy_residual_J'] / 1e3:.3g}", f"{b['energy_closure_relative']:.2e}",
                  verdict(b["energy_closure_relative"])]]
-        bal = join([tag("p", "Content of all vessels at the start and end, what crossed the "
+        bal = join([tag("p", "These integrals are carried by the integrator beside the states "
+                        "and close by construction (to its round-off): they confirm the "
+                        "bookkeeping, not the model; the self-checks above test the model. "
+                        "Content of all vessels at the start and end, what crossed the "
                         "boundary of the vessels (flows to and from reservoirs, heat, energy "
                         "added by devices; flows between vessels cancel), and the residual: "
                         "change of content minus net inflow. The relative closure divides the "
@@ -508,10 +515,25 @@ def _checks(result: Result, s: dict) -> Html:
                           numeric={1, 2, 3, 4, 5})])
     else:
         bal = tag("p", "No balance: the run failed before its first step.")
+    if result.checks:
+        checks = join([
+            tag("p", "Checks a wrong model would fail, computed after the run from the "
+                "recorded histories with a fresh fluid object: the state residual of every "
+                "vessel, the first law of every vessel with the stream enthalpies recomputed "
+                "from the recorded states (trapezoidal rule; tolerance from its own error "
+                "estimate), and the entropy produced by every passive link and every heat "
+                "term (never negative)."),
+            table(["Check", "Figure", "Value", "Tolerance", "Verdict", "Where"],
+                  [[c.name, c.what, f"{c.value:.3g}", f"{c.tolerance:.3g}",
+                    "passed" if c.passed else Html('<span class="state-crossed">FAILED</span>'),
+                    c.detail] for c in result.checks], numeric={2, 3})])
+    else:
+        checks = tag("p", "No self-checks: the run recorded fewer than two points.")
     st = s["solver"]
     solver = facts([(SOLVER_LABELS.get(k, k), number(v, 4) if k == "wall_time_s" else number(v))
                     for k, v in st.items()]) if st else tag("p", "No statistics recorded.")
-    return join([subsection("balances", "Mass and energy balances", bal),
+    return join([subsection("self-checks", "Self-checks", checks),
+                 subsection("balances", "Bookkeeping of mass and energy", bal),
                  subsection("solver", "Solver statistics", solver)])
 
 

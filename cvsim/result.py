@@ -41,7 +41,13 @@ class Result:
     limits: list = field(default_factory=list)      # LimitCheck per vessel limit
     warnings: list = field(default_factory=list)    # sentences: what to look at (chatter, ...)
     device_figures: dict = field(default_factory=dict)  # per link: figures of its device
+    checks: list = field(default_factory=list)      # self-checks (cvsim.checks.Check)
     contents: dict = field(default_factory=dict)  # per vessel: phase, liquid share, level
+
+    @property
+    def checks_failed(self) -> list:
+        """The self-checks this run fails: its numbers must not be used."""
+        return [c for c in self.checks if not c.passed]
 
     @property
     def limits_crossed(self) -> list:
@@ -137,6 +143,8 @@ class Result:
             "limits": [c.as_dict() for c in self.limits],
             "limits_crossed": len(self.limits_crossed),
             "balance": self.balance,
+            "self_checks": [c.as_dict() for c in self.checks],
+            "self_checks_failed": len(self.checks_failed),
             "solver": self.stats,
             "assumptions": self.assumptions,
             "warnings": self.warnings,
@@ -226,7 +234,18 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
     result.limits = check_limits(result)
     result.contents, liquid_full = run_figures(model, result)
     result.warnings += liquid_full
+    result.checks = self_checks(result)
+    result.warnings += [f"SELF-CHECK FAILED - do not use these results: {c.text()}"
+                        for c in result.checks_failed]
     return result
+
+
+def self_checks(result: Result) -> list:
+    """The self-checks of :mod:`cvsim.checks`, with a fresh fluid object."""
+    from .checks import run_checks
+    from .fluid import make_fluid
+    f = result.network.fluid
+    return run_checks(result, make_fluid(f.name, f.model, f.molar_mass, f.cp, f.cp_temperature))
 
 
 def check_limits(result: Result) -> list:

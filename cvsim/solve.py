@@ -124,7 +124,8 @@ def integrate(model: Model, progress=None) -> RawRun:
         except _Failure as f:
             stats["rhs_calls"] += seg.rhs_calls
             stats["jacobians"] += seg.jac_calls
-            return _finish(raw, "failed", str(f), f.y, f.t, model, evals0, wall0)
+            return _finish(raw, "failed", f"{f} {_last_good(seg, f.t, f.y)}", f.y, f.t, model,
+                           evals0, wall0)
         except StateError as exc:  # observing a recorded point
             return _finish(raw, "failed", str(exc), y, t, model, evals0, wall0)
         stats["rhs_calls"] += seg.rhs_calls
@@ -273,6 +274,24 @@ def _met_at_start(seg, conditions, y):
                 cond.direction == "above" and value >= cond.value):
             return cond
     return None
+
+
+def _last_good(seg, t, y) -> str:
+    """The vessels' states at the last good point, in words, for a failure message."""
+    try:
+        states = seg.states(t, y).states
+    except StateError:
+        return ""
+    parts = []
+    for v in seg.model.vessels:
+        st = states[v.index]
+        text = (f"vessel '{v.name}' {st.p / 1e5:.6g} bar a, {st.T - 273.15:.4g} degC, "
+                f"{st.rho:.5g} kg/m3, {st.phase}")
+        if st.two_phase:
+            text += (f" (vapour quality {st.quality:.4g}, liquid {100 * st.liquid_fraction:.3g} "
+                     "% of the volume)")
+        parts.append(text)
+    return f"Last good state at t = {t:.6g} s: " + "; ".join(parts) + "."
 
 
 def _finish(raw, status, message, y, t, model, evals0, wall0):

@@ -105,7 +105,7 @@ def test_a_run_that_fails_writes_nothing(tmp_path, capsys):
     code = main(["run", str(path), "--out", str(out), "--quiet"])
     err = capsys.readouterr().err
     assert code == 1
-    assert "lowest temperature" in err and "t = " in err and "Traceback" not in err
+    assert "triple point" in err and "t = " in err and "Traceback" not in err
     assert not out.exists()
 
 

@@ -51,13 +51,14 @@ class BurstingDiscDevice(_PressureMovedOrifice):
         return 1.0 if self.is_open(segment) else 0.0
 
     def report(self, initial, switches, t_end):
+        w = self.solid_warning()
         if initial.get(self.key("burst")):
             return {"burst_at_s": 0.0, "notes": ["burst from the start (pressure above burst "
-                                                 "pressure at t = 0)"]}, []
+                                                 "pressure at t = 0)"]}, w
         times = [t for t, key, v in switches if v is True]
         if not times:
-            return {"burst_at_s": None, "notes": ["did not burst"]}, []
-        return {"burst_at_s": times[0], "notes": [f"burst at {times[0]:.4g} s"]}, []
+            return {"burst_at_s": None, "notes": ["did not burst"]}, w
+        return {"burst_at_s": times[0], "notes": [f"burst at {times[0]:.4g} s"]}, w
 
     @classmethod
     def assumptions(cls, definitions):

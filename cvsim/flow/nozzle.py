@@ -46,6 +46,13 @@ LINEAR_BELOW = 1e-4
 #: relative tolerance on the throat temperature of a two-phase throat search
 THROAT_T_TOL = 1e-7
 
+#: TRIPLE_THROAT: when the isentrope from a liquid or two-phase source reaches the
+#: triple point before the flux has peaked (CO2 vented to atmosphere from below
+#: about 10 bar a), solid forms in the jet, which the equation of state does not
+#: cover. The throat is then held at the triple point: the flux there, the largest
+#: reached on the fluid's range, is taken as the choked flux. It underestimates the
+#: flux (the peak lies beyond); the device reports when it happens.
+
 
 def critical_pressure_ratio(gamma: float) -> float:
     """Perfect-gas critical pressure ratio r* = (2/(g+1))^(g/(g-1)) [-].
@@ -175,7 +182,10 @@ def _dome_entry(fluid, up: State) -> float | None:
     if up.two_phase and up.quality < 1.0:
         return up.T
     if up.two_phase:   # saturated vapour: into the dome if it condenses on expansion
-        below = fluid.two_phase_isentrope_at_T(up.s, up.T * (1.0 - 1e-6))
+        if up.T <= fluid.t_triple * (1.0 + 1e-6):
+            return up.T   # at the triple point (the throat search says so)
+        probe = max(up.T * (1.0 - 1e-6), fluid.t_triple * (1.0 + 1e-9))
+        below = fluid.two_phase_isentrope_at_T(up.s, probe)
         return up.T if below is not None else None
     if up.phase == "liquid":
         return fluid.liquid_isentrope_entry(up.s)
@@ -206,7 +216,12 @@ def _dome_throat(fluid, up: State, T_entry: float):
         return (st.rho * math.sqrt(2.0 * dh) if dh > 0.0 else 0.0), st
 
     from scipy.optimize import minimize_scalar
-    a, b = fluid.t_triple * (1.0 + 1e-9), max(T_entry, fluid.t_triple * (1.0 + 2e-9))
+    if T_entry <= fluid.t_triple * (1.0 + 1e-6):
+        raise StateError(f"the {fluid.name} upstream of the device is at its triple point "
+                         f"({fluid.t_triple:.6g} K, {up.p / 1e5:.6g} bar a): solid forms in "
+                         "the vessel, which cvsim does not model. Stop the run before it "
+                         "(a pressure stop above the triple-point pressure) or add heat input.")
+    a, b = fluid.t_triple * (1.0 + 1e-9), T_entry
     seen = {}
 
     def minus_g(T):
@@ -219,15 +234,26 @@ def _dome_throat(fluid, up: State, T_entry: float):
     g_b, st_b = G(b)
     g_x, st_x = seen.get(res.x) or G(res.x)
     T_best, g_best, st_best = (b, g_b, st_b) if g_b >= g_x else (res.x, g_x, st_x)
-    if st_best is None or T_best - a <= 2.0 * THROAT_T_TOL * b:
-        # the flux still rises where the isentrope reaches the triple point
-        raise StateError(f"the expansion of {fluid.name} through the device from "
-                         f"{up.p / 1e5:.6g} bar a, {up.T:.6g} K reaches the lowest temperature "
-                         f"of its equation of state (triple point {fluid.t_triple:.6g} K) "
-                         "before it chokes: solid would form, "
-                         "which cvsim does not model. Stop the run earlier (a pressure or "
-                         "temperature stop) or add heat input.")
+    if st_best is not None and T_best - a <= 2.0 * THROAT_T_TOL * b:
+        # the flux still rises where the isentrope reaches the triple point: solid
+        # forms in the jet; the throat is held at the triple point (see TRIPLE_THROAT)
+        st_best = fluid.two_phase_isentrope_at_T(s0, a)
+        if st_best is not None:
+            dh = h0 - st_best.h
+            g_best = st_best.rho * math.sqrt(2.0 * dh) if dh > 0.0 else 0.0
+            T_best = a
+    if st_best is None:
+        raise StateError(f"no throat state found for {fluid.name} expanding from "
+                         f"{up.p / 1e5:.6g} bar a, {up.T:.6g} K")
     return T_best, st_best, g_best
+
+
+def at_triple_point(fluid, p_throat: float) -> bool:
+    """True when a throat pressure [Pa] is the triple-point pressure, where
+    :func:`real_gas_mass_flux` holds a throat whose expansion would form solid
+    (TRIPLE_THROAT)."""
+    p_t = getattr(fluid, "p_triple", None)
+    return p_t is not None and p_throat <= p_t * (1.0 + 1e-6)
 
 
 def _kappa(up: State) -> float:

@@ -4,7 +4,7 @@ from __future__ import annotations
 import math
 
 from .base import NO_FLOW, Device, Flow
-from .nozzle import NozzleHint, ideal_gas_mass_flux, real_gas_mass_flux
+from .nozzle import NozzleHint, at_triple_point, ideal_gas_mass_flux, real_gas_mass_flux
 
 
 class OrificeDevice(Device):
@@ -24,6 +24,8 @@ class OrificeDevice(Device):
         self.cda = definition.discharge_coefficient * definition.area
         self.real = definition.flow_model == "real-gas"
         self._hints = (NozzleHint(), NozzleHint())
+        #: earliest time [s] a throat was held at the triple point (solid in the jet)
+        self.solid_from = None
 
     def breakpoints(self):
         return tuple(t for t in (self.d.open_from, self.d.open_until)
@@ -50,6 +52,7 @@ class OrificeDevice(Device):
         return 1.0 if self.is_open(segment) else 0.0
 
     def flow(self, t, a, b, segment) -> Flow:
+        self._t = t
         if not self.is_open(segment) or a.p == b.p:
             return NO_FLOW
         if a.p > b.p:
@@ -60,9 +63,24 @@ class OrificeDevice(Device):
 
     def _flux(self, up, pb, hint):
         if self.real:
-            g, choked, _ = real_gas_mass_flux(self.fluid, up, pb, hint)
+            g, choked, p_throat = real_gas_mass_flux(self.fluid, up, pb, hint)
+            if choked and at_triple_point(self.fluid, p_throat) and (
+                    self.solid_from is None or self._t < self.solid_from):
+                self.solid_from = self._t
             return g, choked
         return ideal_gas_mass_flux(up.p, up.rho, _gamma(up), pb)
+
+    def solid_warning(self) -> list[str]:
+        """The warning when the expansion through the device reached the triple point."""
+        if self.solid_from is None:
+            return []
+        return [f"from about t = {self.solid_from:.4g} s the expansion through the device "
+                f"reaches the triple point of {self.fluid.name}: solid forms in the jet "
+                "(and may plug the outlet or the line). The throat is held at the triple "
+                "point, which underestimates the flow from then on."]
+
+    def report(self, initial, switches, t_end):
+        return {}, self.solid_warning()
 
 
 def _gamma(up) -> float:

@@ -46,11 +46,16 @@ class HeatComponent:
       taken at recorded points and accepted steps only, so they may also watch the
       validity of correlations); :meth:`warnings` and :meth:`assumptions` go into
       the summary;
-    * :meth:`bind` is called once the model's links exist.
+    * :meth:`bind` is called once the model's links exist;
+    * :meth:`source_temperature`: the temperature [K] of what gives the heat to the
+      contents (a wall's inner surface, the surroundings), where the term has one
+      (``has_source``); the self-checks verify that heat flows from hot to cold.
     """
 
     n_states = 0
     offset = 0
+    #: the term can say where its heat comes from (:meth:`source_temperature`)
+    has_source = False
 
     def __init__(self, definition, vessel_name: str):
         self.d = definition
@@ -99,6 +104,10 @@ class HeatComponent:
         """Values of :meth:`columns` at a recorded point or accepted step."""
         return []
 
+    def source_temperature(self, t, gas, own, segment) -> float:
+        """Temperature [K] at which the heat into the contents is given (``has_source``)."""
+        raise NotImplementedError  # pragma: no cover - only where has_source
+
     def warnings(self) -> list[str]:
         return []
 
@@ -118,6 +127,11 @@ class HeatLoadTerm(HeatComponent):
 
 class AmbientExchangeTerm(HeatComponent):
     """Q = UA (T_ambient(t) - T_gas), see :func:`ambient_exchange`."""
+
+    has_source = True
+
+    def source_temperature(self, t, gas, own, segment) -> float:
+        return segment.signal(self.d.ambient, t)
 
     def breakpoints(self):
         return self.d.ambient.breakpoints

@@ -261,6 +261,12 @@ class WallTerm(HeatComponent):
     heat into the wall from outside [J] and the part of it from fire [J].
     """
 
+    has_source = True
+
+    def source_temperature(self, t, gas, own, segment) -> float:
+        """The inner surface's temperature [K]: the wall gives heat to the contents there."""
+        return float(self.grid.temperatures(own[:self.n_nodes])[0])
+
     def __init__(self, definition: Wall, vessel_name: str):
         super().__init__(definition, vessel_name)
         d = definition
