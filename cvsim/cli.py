@@ -193,6 +193,9 @@ def cmd_check(args) -> int:
         if getattr(r, "note", ""):
             line += f"   ({r.note})"
         print(line)
+    from .contents import initial_text
+    print()
+    print("\n".join(initial_text(scenario.network)))
     return 0
 
 

@@ -38,6 +38,7 @@ import math
 
 import numpy as np
 
+from . import contents
 from . import network as nw
 from .errors import StateError
 from .flow.base import NO_FLOW, Flow
@@ -281,6 +282,7 @@ class Model:
                          ("specific_internal_energy", "J/kg"), ("specific_entropy", "J/(kg K)"),
                          ("vapour_quality", "-")):
                 cols.append((f"{v.name}.{q}", u, "vessel"))
+            cols += contents.columns(self.network.vessels[v.index])
             for term in v.heat:
                 cols.append((f"{v.name}.heat.{term.name}", "W", "heat"))
                 if term.has_source:
@@ -569,6 +571,7 @@ class Segment:
             mass = y[v.i_m]
             row += [st.p, st.T, mass, st.rho, st.h, y[v.i_U] / mass if mass > 0 else st.u,
                     st.s, st.quality]
+            row += contents.values(m.network.vessels[v.index], st)
             for term in v.heat:
                 own = y[term.offset:term.offset + term.n_states]
                 row.append(term.evaluate(t, st, own, self, np.zeros(m.n_states)))

@@ -16,6 +16,7 @@ import shutil
 import tempfile
 from pathlib import Path
 
+from .contents import summary_lines
 from .errors import OutputError
 from .result import CAUTION, Result
 
@@ -154,6 +155,7 @@ def summary_text(result: Result) -> str:
         if "two_phase_from_s" in v:
             L.append(f"  two phases present from {_t(v['two_phase_from_s'])} "
                      f"(lowest vapour quality {v['min_vapour_quality']:.4f})")
+        L += summary_lines(v, _t)
     if s["targets"]:
         L.append("")
         L.append("Targets (stop conditions):")

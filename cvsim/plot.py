@@ -15,7 +15,10 @@ starts with a vessel's name is drawn with that vessel's gas temperature
 (walls, for instance), and ``<link>.opening`` columns get a figure of their
 own when there are any. The temperatures through a layered wall
 (``<vessel>.wall.node<i>_temperature``) get a figure of their own (``wall.png``);
-the temperature panel keeps only the wall's surfaces.
+the temperature panel keeps only the wall's surfaces. When any vessel holds liquid at
+some time, ``level.png`` shows the liquid level of those vessels (``<vessel>.liquid_level``,
+with each vessel's inside height), or their liquid share of the volume when one of them
+is given by its volume only (no height).
 
 matplotlib (and the rest of cvsim) is imported only inside the functions
 (the command line starts faster) and only through its object interface with the Agg canvas: no
@@ -113,7 +116,8 @@ def plot_run(result: Result, folder: Path) -> list[Path]:
     valve openings across the foot of the page when there are any),
     ``pressure.png``, ``temperature.png``, ``mass.png``, ``flow.png`` and,
     only when the result has ``<link>.opening`` columns, ``opening.png``; only
-    with layered walls, ``wall.png``. Returns the paths written, in that order.
+    with layered walls, ``wall.png``; only when a vessel holds liquid at some time,
+    ``level.png``. Returns the paths written, in that order.
     """
     folder = Path(folder)
     folder.mkdir(parents=True, exist_ok=True)
@@ -124,10 +128,13 @@ def plot_run(result: Result, folder: Path) -> list[Path]:
         panels.append(("opening", _opening))
     if view.wall_nodes:
         panels.append(("wall", _wall))
+    if view.liquid:
+        panels.append(("level", _level))
     written = []
 
-    # the overview holds the four quantities and the openings; walls have their own page
-    overview = [p for p in panels if p[0] != "wall"]
+    # the overview holds the four quantities and the openings; walls and levels have
+    # their own pages
+    overview = [p for p in panels if p[0] not in ("wall", "level")]
     path = folder / "overview.png"
     with _figure(OVERVIEW_SIZE, view) as fig:
         if view.openings:  # valve states under the four quantities, across the page
@@ -180,6 +187,9 @@ class _View:
         self.colour = {o: COLOURS[i % len(COLOURS)] for i, o in enumerate(order)}
         self.dash = {o: DASHES[(i // len(COLOURS)) % len(DASHES)] for i, o in enumerate(order)}
         self.wall_nodes = self._wall_nodes(names)
+        # vessels that hold liquid at some recorded time
+        self.liquid = [v for v in self.vessels if n and f"{v}.liquid_fraction" in names
+                       and bool(np.any(result[f"{v}.liquid_fraction"] > 0.0))]
         self.extra_temperatures = self._extra_temperatures(names)
         self.atmosphere_bar = net.atmosphere / BAR
         self.events = [(float(t) / self.time_size, str(text)) for t, text in result.events]
@@ -347,6 +357,34 @@ def _wall(ax, view: _View, overview: bool):
     ax.set_ylabel("Temperature [°C]")
     _finish(ax, view, "Temperatures through the wall (node 0: inside surface)", floor=1e-2,
             overview=overview)
+
+
+def _level(ax, view: _View, overview: bool):
+    """Liquid level of the vessels that hold liquid, with each one's inside height (a
+    vessel full to it is liquid-full); their liquid share of the volume [%] when one of
+    them has no height (given by its volume)."""
+    r = view.result
+    names = r.names()
+    heights = {v.name: v.geometry.height for v in r.network.vessels}
+    levels = all(f"{v}.liquid_level" in names for v in view.liquid)
+    for v in view.liquid:
+        if levels:
+            _line(ax, view, r[f"{v}.liquid_level"], v, view.colour[v], lw=1.6,
+                  ls=view.dash[v])
+            ax.axhline(heights[v], color=view.colour[v], lw=0.8, ls=":",
+                       label=f"{v}: inside height (liquid-full)")
+        else:
+            _line(ax, view, 100.0 * r[f"{v}.liquid_fraction"], v, view.colour[v], lw=1.6,
+                  ls=view.dash[v])
+    if levels:
+        ax.set_ylabel("Liquid level above the inside bottom [m]")
+        ax.set_ylim(bottom=0.0)
+        title = "Liquid level"
+    else:
+        ax.set_ylabel("Liquid share of the volume [%]")
+        ax.set_ylim(-2.0, 102.0)
+        title = "Liquid share of each vessel's volume (100 %: liquid-full)"
+    _finish(ax, view, title, floor=None, overview=overview)
 
 
 def _line(ax, view: _View, y, label, colour, lw, ls="-"):

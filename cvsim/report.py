@@ -32,6 +32,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING
 
 from . import __version__
+from .contents import summary_lines
 from .htmldoc import (Html, Section, bullets, document, esc, facts, figure, join, notice,
                       number, sign_off, subsection, table, tag, verbatim)
 from .outputs import _bar, _degc, _limit_value, _margin, _t
@@ -52,6 +53,8 @@ PLOT_CAPTIONS = {
     "mass": "Mass of gas in each vessel.",
     "flow": "Mass flow through each link, positive from its source to its target.",
     "opening": "Opening of each valve.",
+    "level": "Liquid level above each vessel's inside bottom, with its inside height "
+             "(liquid-full); or the liquid's share of the volume.",
 }
 
 #: Labels of the solver statistics (others are shown by their key).
@@ -406,6 +409,8 @@ def _results(result: Result, s: dict) -> Html:
         if "two_phase_from_s" in v:
             body.append(tag("p", f"{name}: two phases present from {_t(v['two_phase_from_s'])}"
                             f" (lowest vapour quality {v['min_vapour_quality']:.4f})."))
+        body += [tag("p", f"{name}: {' '.join(line.split())}.")
+                 for line in summary_lines(v, _t)]
     out.append(subsection("summary-vessels", "Vessels", join(body)))
     if s.get("targets"):
         out.append(subsection("summary-targets", "Stop conditions", table(

@@ -13,6 +13,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from .contents import run_figures
 from .flow.exponent import EXPONENT_ASSUMPTION
 from .limits import check_vessel, first_time_at_or_below
 from .model import ACC_PER_LINK, Model
@@ -42,6 +43,7 @@ class Result:
     warnings: list = field(default_factory=list)    # sentences: what to look at (chatter, ...)
     device_figures: dict = field(default_factory=dict)  # per link: figures of its device
     checks: list = field(default_factory=list)      # self-checks (cvsim.checks.Check)
+    contents: dict = field(default_factory=dict)  # per vessel: phase, liquid share, level
 
     @property
     def checks_failed(self) -> list:
@@ -184,6 +186,7 @@ class Result:
                 first = int(np.argmax(~np.isnan(q)))
                 d["two_phase_from_s"] = float(t_all[first])
                 d["min_vapour_quality"] = float(np.nanmin(q))
+            d.update(self.contents.get(n, {}))
             out["vessels"][n] = d
         for link in self.network.links:
             n = link.name
@@ -240,6 +243,8 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
                     assumptions=assumptions(model), provenance=dict(provenance or {}),
                     warnings=warnings, device_figures=figures)
     result.limits = check_limits(result)
+    result.contents, liquid_full = run_figures(model, result)
+    result.warnings += liquid_full
     result.checks = self_checks(result)
     result.warnings += [f"SELF-CHECK FAILED - do not use these results: {c.text()}"
                         for c in result.checks_failed]

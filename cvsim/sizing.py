@@ -173,18 +173,22 @@ def blocked_outlet_load(network: Network, vessel: str) -> float:
 
 
 def fire_heat_input(network: Network, vessel: str) -> tuple[float, str]:
-    """API 521 pool-fire heat input [W] on ``vessel`` from its fire heat term, and a
-    description of it."""
+    """API 521 pool-fire heat input [W] on ``vessel`` from its fire heat term, on the
+    wetted area at the initial liquid level (:func:`cvsim.heat.fire.pool_fire_area`), and
+    a description of it."""
     from .heat.definitions import PoolFire
-    from .heat.fire import api521_pool_fire_heat
+    from .heat.fire import api521_pool_fire_heat, pool_fire_area
     for v in network.vessels:
         if v.name != vessel:
             continue
         for term in v.heat:
             fire = getattr(term, "fire", None)
             if isinstance(fire, PoolFire):
-                Q = api521_pool_fire_heat(fire.area, fire.environment_factor, fire.drainage)
-                return Q, (f"API 521 pool fire: A = {fire.area:.4g} m2, F = "
+                share = v.initial.liquid_fraction
+                A = fire.area if share is None else pool_fire_area(fire, share)[0]
+                Q = api521_pool_fire_heat(A, fire.environment_factor, fire.drainage)
+                where = (" wetted at the initial liquid level" if A != fire.area else "")
+                return Q, (f"API 521 pool fire: A = {A:.4g} m2{where}, F = "
                            f"{fire.environment_factor:g}, "
                            + ("with" if fire.drainage else "without")
                            + " prompt fire-fighting and drainage")

@@ -68,19 +68,47 @@ class OutsideTransfer:
 
 
 @dataclass(frozen=True)
+class WettedSurface:
+    """What a pool fire needs to follow the liquid level (API 521 wetted area).
+
+    kind, inner_diameter, length, heads, orientation
+                 the vessel's inside shape (as :class:`cvsim.network.Geometry`)
+    offset       [m] depth into the wall of the surface counted: the wall's thickness
+                 (the outside surface), 0 without a wall (inside dimensions)
+    elevation    [m] height of that surface's lowest point above the base of the fire
+    reach        [m] height above that lowest point within which surfaces count:
+                 7.6 m (:data:`cvsim.heat.fire.FIRE_HEIGHT`) less the elevation
+    """
+
+    kind: str
+    inner_diameter: float
+    length: float
+    heads: str
+    orientation: str
+    offset: float
+    elevation: float
+    reach: float
+
+
+@dataclass(frozen=True)
 class PoolFire:
     """API 521 pool-fire heat input Q = C1 F A^0.82 (see :mod:`cvsim.heat.fire`).
 
-    area                [m2] wetted (exposed) area within 7.6 m of the fire's base
+    area                [m2] exposed area within 7.6 m of the fire's base (stated, or the
+                        whole outside area within that height)
     environment_factor  [-] F
     drainage            prompt fire-fighting and adequate drainage present
     starts_at           [s] time the fire starts
+    wetted              how the wetted area follows the liquid level
+                        (:func:`cvsim.heat.fire.pool_fire_area`); ``None``: ``area``
+                        throughout (it was stated)
     """
 
     area: float
     environment_factor: float = 1.0
     drainage: bool = True
     starts_at: float = 0.0
+    wetted: WettedSurface | None = None
 
 
 @dataclass(frozen=True)
@@ -155,4 +183,4 @@ class GasFire:
 
 
 __all__ = ["FlameExposure", "Fire", "GasFire", "InsideTransfer", "OutsideTransfer",
-           "PoolFire", "Wall", "WallLayer"]
+           "PoolFire", "Wall", "WallLayer", "WettedSurface"]

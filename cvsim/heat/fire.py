@@ -1,9 +1,12 @@
-"""Fire exposure of a vessel: the API 521 pool-fire heat input and a radiant flame model.
+"""Fire exposure of a vessel: the API 521 pool-fire heat input, its wetted area, and a
+radiant flame model.
 
 Both are heat rates into the vessel's outer wall (or, without a wall, into its
 contents), SI in and out.
 """
 from __future__ import annotations
+
+import math
 
 SIGMA = 5.670374419e-8  # [W/(m2 K4)] Stefan-Boltzmann constant (CODATA 2018, exact in the 2019 SI)
 
@@ -52,6 +55,43 @@ def api521_pool_fire_heat(A: float, F: float = 1.0, drainage: bool = True) -> fl
     return POOL_FIRE_C1_SI[drainage] * F * A**0.82
 
 
+def pool_fire_area(fire, liquid_fraction: float) -> tuple[float, float]:
+    """The area A [m2] of API 521's pool-fire heat input for a vessel whose contents take
+    the share ``liquid_fraction`` [-] of its volume as liquid, and the liquid level [m]
+    (NaN when none is computed).
+
+    * two phases (0 < share < 1): the wetted area - the outside surface below the
+      liquid level and within 7.6 m above the base of the fire:
+      A = A_out(min(h_out, reach)), with h the liquid's height that holds share x V
+      (:meth:`cvsim.heat.level.Tank.level`, warm-started from the last level), h_out
+      that level on the outside surface (:func:`cvsim.heat.level.outside_level`) and
+      A_out(z) the outside area below the height z (:func:`cvsim.heat.level.area_below`);
+    * no liquid level (gas or supercritical contents, share 0) or liquid-full (share 1):
+      the whole outside area within 7.6 m, ``fire.area`` (the level of a liquid-full
+      vessel is at its top, so the two agree there);
+    * a stated area (``fire.wetted is None``): ``fire.area`` throughout.
+
+    Parameters
+    ----------
+    fire : :class:`cvsim.heat.definitions.PoolFire`
+    liquid_fraction : [-] share of the vessel's volume taken by liquid
+
+    Source: API Standard 521 (ISO 23251), fire-exposure section: the wetted surface is
+    the area wetted by the vessel's internal liquid up to 7.6 m (25 ft) above the base of
+    the fire (grade, or the surface where a pool can form).
+    """
+    w = fire.wetted
+    if w is None or not 0.0 < liquid_fraction < 1.0:
+        return fire.area, math.nan
+    from .level import outside_level, tank
+    inside = tank(w.kind, w.inner_diameter, w.length, w.heads, w.orientation)
+    h = inside.level(liquid_fraction * inside.volume)
+    h_out = outside_level(h, w.kind, w.inner_diameter, w.length, w.heads, w.orientation,
+                          w.offset)
+    outside = tank(w.kind, w.inner_diameter, w.length, w.heads, w.orientation, w.offset)
+    return outside.area_below(min(h_out, w.reach)), h
+
+
 def api521_pool_fire_heat_us(A_ft2: float, F: float = 1.0, drainage: bool = True) -> float:
     """The same heat input in US customary units: Q [Btu/h] = C1 F A^0.82, A [ft2]."""
     return POOL_FIRE_C1_US[drainage] * F * A_ft2**0.82
@@ -91,4 +131,4 @@ def flame_heat_flux(T_s: float, T_f: float, eps_f: float, eps_s: float, h_f: flo
 
 __all__ = ["BTU_PER_HOUR", "FIRE_HEIGHT", "POOL_FIRE_C1_SI", "POOL_FIRE_C1_US", "SIGMA",
            "SQUARE_FOOT", "api521_pool_fire_heat", "api521_pool_fire_heat_us",
-           "flame_heat_flux"]
+           "flame_heat_flux", "pool_fire_area"]

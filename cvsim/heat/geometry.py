@@ -319,35 +319,6 @@ def wall_surface(kind: str, D: float, L: float = 0.0, heads: str = "flat") -> Su
 # ------------------------------------------------ area below a level (wetted, exposed)
 
 
-def _head_meridian(D: float, kind: str, offset: float, n: int):
-    """Points (rho, z) along a head's meridian at depth ``offset`` [m] into the wall,
-    from the tangent line (z = 0) to the pole; z grows away from the shell."""
-    import numpy as np
-
-    a = D / 2.0
-    if kind == "flat":
-        rho = np.linspace(a + offset, 0.0, n)
-        return rho, np.full(n, offset)
-    if kind == "hemispherical":
-        t = np.linspace(0.0, math.pi / 2.0, n)
-        return (a + offset) * np.cos(t), (a + offset) * np.sin(t)
-    if kind == "2:1-ellipsoidal":
-        b = D / 4.0
-        t = np.linspace(0.0, math.pi / 2.0, n)
-        w = np.sqrt(a * a * np.sin(t) ** 2 + b * b * np.cos(t) ** 2)
-        return (a * np.cos(t) + offset * b * np.cos(t) / w,
-                b * np.sin(t) + offset * a * np.sin(t) / w)
-    R, r, c, h1, theta = _torispherical_parts(D)
-    t = np.linspace(0.0, theta, n)
-    phi = np.linspace(math.pi / 2.0 - theta, 0.0, n)[1:]
-    rho = np.concatenate([c + (r + offset) * np.cos(t), (R + offset) * np.sin(phi)])
-    z = np.concatenate([(r + offset) * np.sin(t), -h1 + (R + offset) * np.cos(phi)])
-    return rho, z
-
-
-MERIDIAN_POINTS = 20001  # points along each head profile for areas below a level
-
-
 def area_below(level: float, kind: str, D: float, L: float = 0.0, heads: str = "flat",
                orientation: str = "vertical", offset: float = 0.0) -> float:
     """Area [m2] of a vessel surface below a horizontal plane.
@@ -355,19 +326,8 @@ def area_below(level: float, kind: str, D: float, L: float = 0.0, heads: str = "
     The surface is the inside wall (``offset = 0``) or the parallel surface at depth
     ``offset`` into the wall (the outside, for a wall of that thickness); ``level`` is
     the plane's height above that surface's lowest point. Used for the area wetted by
-    a liquid level and for the outside area within a fire's reach.
-
-    * sphere: a spherical zone, A = pi D_s h (Archimedes; CRC Standard Mathematical
-      Tables and Formulae, 31st ed., sec. 4.8);
-    * cylindrical shell, vertical: pi D_s times the wetted height; horizontal:
-      L D_s/2 times the wetted arc angle 2 acos(1 - 2 h/D_s) (circular segment);
-    * heads: integrated over the exact head profile (and its parallel curve for
-      ``offset > 0``) as a surface of revolution, with :data:`MERIDIAN_POINTS`
-      points per profile: a vertical head by zones, a horizontal head by summing, for
-      each ring of the profile, the fraction of the ring below the plane,
-      2 acos((D_s/2 - h)/rho) / (2 pi). Relative error below 1e-6.
-
-    D_s = D + 2 offset is the diameter of the shell surface considered.
+    a liquid level and for the outside area within a fire's reach. Closed forms and
+    quadrature of :mod:`cvsim.heat.level` (equations and sources there).
 
     Parameters
     ----------
@@ -378,61 +338,8 @@ def area_below(level: float, kind: str, D: float, L: float = 0.0, heads: str = "
     offset : float
         [m] depth into the wall of the surface considered (0: inside surface).
     """
-    import numpy as np
-
-    Ds = D + 2.0 * offset
-    if kind == "sphere":
-        h = min(max(level, 0.0), Ds)
-        return math.pi * Ds * h
-    Rs = Ds / 2.0
-    rho, z = _head_meridian(D, heads, offset, MERIDIAN_POINTS)
-    depth = float(z.max()) if heads != "flat" else offset
-    ds = np.hypot(np.diff(rho), np.diff(z))
-    rho_mid = 0.5 * (rho[1:] + rho[:-1])
-    if orientation == "horizontal":
-        h = min(max(level, 0.0), Ds)
-        shell = L * Rs * 2.0 * math.acos(max(-1.0, min(1.0, (Rs - h) / Rs)))
-        if heads == "flat":
-            # a disc of radius Rs: the circular segment below the plane
-            angle = 2.0 * math.acos(max(-1.0, min(1.0, (Rs - h) / Rs)))
-            head = Rs**2 / 2.0 * (angle - math.sin(angle))
-        else:
-            cosine = np.clip((Rs - h) / np.maximum(rho_mid, 1e-300), -1.0, 1.0)
-            head = float(np.sum(rho_mid * ds * 2.0 * np.arccos(cosine)))
-        return shell + 2.0 * head
-    # vertical axis: bottom head (pole at height 0), shell, top head
-    height = L + 2.0 * depth
-    h = min(max(level, 0.0), height)
-    ring = 2.0 * math.pi * rho_mid * ds          # area of each ring of the profile
-    z_mid = 0.5 * (z[1:] + z[:-1])
-    if heads == "flat":
-        full = math.pi * Rs**2
-        bottom = full if h > 0.0 else 0.0
-        top = full if h >= height else 0.0
-    else:
-        bottom = float(np.sum(ring[depth - z_mid < h]))
-        top = float(np.sum(ring[depth + L + z_mid < h]))
-        bottom += _partial_ring(ring, depth - z, h)
-        top += _partial_ring(ring, depth + L + z, h)
-    shell = math.pi * Ds * min(max(h - depth, 0.0), L)
-    return bottom + shell + top
-
-
-def _partial_ring(ring, heights, h) -> float:
-    """Correction for the one ring that the plane cuts: the midpoint rule counted it
-    whole or not at all; take the part below the plane, linear in height."""
-    import numpy as np
-
-    lo = np.minimum(heights[1:], heights[:-1])
-    hi = np.maximum(heights[1:], heights[:-1])
-    cut = np.nonzero((lo < h) & (h < hi))[0]
-    if not len(cut):
-        return 0.0
-    k = int(cut[0])
-    mid = 0.5 * (lo[k] + hi[k])
-    below = (h - lo[k]) / (hi[k] - lo[k])
-    counted = 1.0 if mid < h else 0.0
-    return float(ring[k] * (below - counted))
+    from .level import area_below as exact
+    return exact(level, kind, D, L, heads, orientation, offset)
 
 
 def outer_height(kind: str, D: float, L: float, heads: str, orientation: str,

@@ -42,7 +42,7 @@ import numpy as np
 from .convection import (JET_CAUTION, NATURAL, RangeWatch, jet_reynolds, nu_fill_jet,
                          prandtl, rayleigh)
 from .definitions import FlameExposure, PoolFire, Wall
-from .fire import SIGMA, api521_pool_fire_heat, flame_heat_flux
+from .fire import FIRE_HEIGHT, SIGMA, api521_pool_fire_heat, flame_heat_flux, pool_fire_area
 from .loads import HeatComponent
 from .transport import AirTable, GasProperties
 
@@ -102,6 +102,65 @@ def lumped_biot_number(h: float, resistance: float) -> float:
     0.01
     """
     return h * resistance
+
+
+class FireArea:
+    """The area of a pool fire's heat input as the liquid level moves (API 521 wetted
+    area, :func:`cvsim.heat.fire.pool_fire_area`, whose level solve is warm-started from
+    the last level): keeps the last answer (the Jacobian's perturbations of wall states
+    leave the liquid share as it was). Watches, while the fire burns, the steps between
+    the wetted area and the whole area within the fire's reach: the vessel's last liquid
+    evaporating (or liquid forming in a vessel that held none) for the warnings; the
+    change from two phases to liquid-full is continuous (the level reaches the top)."""
+
+    def __init__(self, fire: PoolFire):
+        self.fire = fire
+        self._last = (math.nan, fire.area)
+        self._liquid_before = None
+        self._area_before = fire.area
+        self.switches = []  # (time [s], from area [m2], to area [m2], liquid now)
+
+    def area(self, liquid_fraction: float) -> float:
+        """A [m2] for the vessel's liquid share [-]."""
+        if liquid_fraction == self._last[0]:
+            return self._last[1]
+        A = pool_fire_area(self.fire, liquid_fraction)[0]
+        self._last = (liquid_fraction, A)
+        return A
+
+    def watch(self, t: float, liquid_fraction: float, A: float) -> None:
+        """At a recorded point or accepted step: note a change of basis while burning."""
+        liquid = liquid_fraction > 0.0
+        if (self._liquid_before is not None and liquid != self._liquid_before
+                and t > self.fire.starts_at):
+            self.switches.append((t, self._area_before, A, liquid))
+        self._liquid_before, self._area_before = liquid, A
+
+    def warnings(self, where: str) -> list[str]:
+        if self.fire.wetted is None or not self.switches:
+            return []
+        t, a0, a1, liquid = self.switches[0]
+        what = ("liquid formed: the area now counted is the wetted area below the level"
+                if liquid else "the vessel's last liquid evaporated (no liquid level is "
+                "left): the area now counted is the whole outside area within "
+                f"{FIRE_HEIGHT:g} m")
+        more = f" ({len(self.switches)} such changes in all)" if len(self.switches) > 1 else ""
+        return [f"{where}: at t = {t:.4g} s {what}, so the API 521 heat-input area stepped "
+                f"from {a0:.4g} to {a1:.4g} m2{more}. The API 521 wetted-surface heat input "
+                "is meant for liquid-wetted walls; a dry wall heats up instead and may "
+                "fail by overheating (model the wall to see its temperature)."]
+
+    def assumption(self) -> str:
+        f, w = self.fire, self.fire.wetted
+        if w is None:
+            return f"A = {f.area:.4g} m2 as stated, held constant (it does not follow the "\
+                   "liquid level)"
+        surface = "outside" if w.offset > 0.0 else "inside-dimension"
+        return (f"A = the {surface} area below the liquid level and within {FIRE_HEIGHT:g} m "
+                f"above the base of the fire (vessel bottom {w.elevation:g} m above it), "
+                "recomputed from the liquid share as the level moves; while there is no "
+                "level (gas or supercritical contents) or the vessel is liquid-full, the "
+                f"whole {surface} area within {FIRE_HEIGHT:g} m, {f.area:.4g} m2")
 
 
 class WallGrid:
@@ -267,6 +326,7 @@ class WallTerm(HeatComponent):
         self.A_in = d.surface.area(0.0)
         self.A_out = d.surface.area(d.thickness)
         self.exposed = 0.0 if d.fire is None else min(d.fire.area, self.A_out)
+        self.fire_area = FireArea(d.fire) if isinstance(d.fire, PoolFire) else None
         self.watch = RangeWatch()
         self._T_range = {}      # layer index -> [min, t, max, t]
         self._biot = [0.0, 0.0, 0.0]  # largest Biot number of a lumped wall, time, h
@@ -354,7 +414,9 @@ class WallTerm(HeatComponent):
         self._in_groups = self._out_groups = None
         h_in = self._inside(gas, T[0], segment)
         q_in = h_in * self.A_in * (gas.T - T[0])
-        q_out, q_fire, h_out = self._outside(t, T[-1], segment)
+        share = gas.liquid_fraction if self.fire_area is not None else math.nan
+        wetted = self.fire_area.area(share) if self.fire_area is not None else math.nan
+        q_out, q_fire, h_out = self._outside(t, T[-1], segment, wetted)
         dE = self.grid.conduction(T)
         dE[0] += q_in
         dE[-1] += q_out
@@ -362,7 +424,8 @@ class WallTerm(HeatComponent):
         dydt[o + N] = q_out
         dydt[o + N + 1] = q_fire
         self._last = ((t, gas.rho, gas.T, own.tobytes()), T, h_in, h_out, q_out, q_fire,
-                      self._in_groups, self._out_groups, max(h_in, self._h_biot_out))
+                      self._in_groups, self._out_groups, max(h_in, self._h_biot_out), wetted,
+                      share)
         return -q_in
 
     def _inflows(self, segment):
@@ -398,7 +461,7 @@ class WallTerm(HeatComponent):
         # several jets and natural convection: h^3 = sum h_F^3 + h_N^3 (see convection.mixed)
         return cubes ** (1.0 / 3.0) if cubes > h**3 else h
 
-    def _outside(self, t, Tw: float, segment):
+    def _outside(self, t, Tw: float, segment, wetted: float):
         out = self.d.outside
         fire = self.d.fire
         burning = fire is not None and segment.midpoint >= fire.starts_at
@@ -406,14 +469,16 @@ class WallTerm(HeatComponent):
         self._h_biot_out = 0.0
         if burning:
             if isinstance(fire, PoolFire):
-                q_fire = api521_pool_fire_heat(fire.area, fire.environment_factor,
+                q_fire = api521_pool_fire_heat(wetted, fire.environment_factor,
                                                fire.drainage)
             else:
                 q_fire = self.exposed * flame_heat_flux(
                     Tw, fire.flame_temperature, fire.flame_emissivity,
                     fire.surface_emissivity, fire.convective_coefficient)
-            if self.exposed > 0.0:
-                self._h_biot_out = fire_equivalent_coefficient(q_fire / self.exposed, Tw)
+            # the heat flux: API 521's heat input over the wetted area it is counted on
+            flux_area = wetted if (isinstance(fire, PoolFire) and wetted > 0.0) else self.exposed
+            if flux_area > 0.0:
+                self._h_biot_out = fire_equivalent_coefficient(q_fire / flux_area, Tw)
         if out.model == "insulated":
             return q_fire, q_fire, 0.0
         T_amb = segment.signal(out.ambient, t)
@@ -455,12 +520,14 @@ class WallTerm(HeatComponent):
                  (f"{p}.heat_from_outside", "W", "wall")]
         if self.d.fire is not None:
             cols.append((f"{p}.fire_heat", "W", "wall"))
+        if self.fire_area is not None:
+            cols.append((f"{p}.fire_wetted_area", "m2", "wall"))
         return cols
 
     def values(self, t, gas, own, segment) -> list[float]:
         if self._last is None or self._last[0] != (t, gas.rho, gas.T, own.tobytes()):
             self.evaluate(t, gas, own, segment, np.zeros(self.offset + self.n_states))
-        _, T, h_in, h_out, q_out, q_fire, inside, outside, h_biot = self._last
+        _, T, h_in, h_out, q_out, q_fire, inside, outside, h_biot, wetted, share = self._last
         self._watch(t, T, h_biot, inside, outside)
         row = [float(T[0]), float(T[-1])]
         if self.d.model == "layered":
@@ -468,6 +535,9 @@ class WallTerm(HeatComponent):
         row += [h_in, h_out, q_out]
         if self.d.fire is not None:
             row.append(q_fire)
+        if self.fire_area is not None:
+            self.fire_area.watch(t, share, wetted)
+            row.append(wetted)
         return row
 
     def _watch(self, t, T, h_biot, inside, outside):
@@ -511,6 +581,8 @@ class WallTerm(HeatComponent):
                 out.append(f"{where}: layer {li + 1} ({mat.name}) reaches "
                            f"{hi - ZERO_CELSIUS:.1f} degC at t = {t_hi:.4g} s, above the "
                            f"range of its property data ({rng}); {mat.beyond}")
+        if self.fire_area is not None:
+            out += self.fire_area.warnings(f"vessel '{self.vessel}' pool fire")
         if self.d.model == "lumped" and self._biot[0] > BIOT_LIMIT:
             out.append(f"{where}: lumped wall with Biot number up to {self._biot[0]:.3g} "
                        f"(at t = {self._biot[1]:.4g} s, coefficient {self._biot[2]:.4g} "
@@ -570,10 +642,11 @@ class WallTerm(HeatComponent):
             f = d.fire
             out.append(
                 f"Vessel '{v}': API 521 pool-fire heat input Q = C1 F A^0.82 on the outer wall "
-                f"(A = {f.area:.4g} m2, F = {f.environment_factor:g}, "
+                f"({self.fire_area.assumption()}; F = {f.environment_factor:g}, "
                 f"{'with' if f.drainage else 'without'} prompt fire-fighting and drainage), "
                 "independent of the wall temperature and spread over the whole wall (1-D); "
-                "the exposed area exchanges no heat with the surroundings while it burns.")
+                f"the exposed area ({f.area:.4g} m2) exchanges no heat with the surroundings "
+                "while it burns.")
         elif isinstance(d.fire, FlameExposure):
             f = d.fire
             out.append(
@@ -587,7 +660,12 @@ class WallTerm(HeatComponent):
 
 
 class GasFireTerm(HeatComponent):
-    """API 521 pool-fire heat input straight into a vessel's contents (no wall)."""
+    """API 521 pool-fire heat input straight into a vessel's contents (no wall), on the
+    wetted area at the present liquid level (:class:`FireArea`)."""
+
+    def __init__(self, definition, vessel_name: str):
+        super().__init__(definition, vessel_name)
+        self.fire_area = FireArea(definition.fire)
 
     def breakpoints(self):
         s = self.d.fire.starts_at
@@ -597,15 +675,27 @@ class GasFireTerm(HeatComponent):
         f = self.d.fire
         if segment.midpoint < f.starts_at:
             return 0.0
-        return api521_pool_fire_heat(f.area, f.environment_factor, f.drainage)
+        return api521_pool_fire_heat(self.fire_area.area(gas.liquid_fraction),
+                                     f.environment_factor, f.drainage)
+
+    def columns(self, vessel: str) -> list[tuple[str, str, str]]:
+        return [(f"{vessel}.fire.wetted_area", "m2", "heat")]
+
+    def values(self, t, gas, own, segment) -> list[float]:
+        A = self.fire_area.area(gas.liquid_fraction)
+        self.fire_area.watch(t, gas.liquid_fraction, A)
+        return [A]
+
+    def warnings(self) -> list[str]:
+        return self.fire_area.warnings(f"vessel '{self.vessel}' pool fire")
 
     def assumptions(self) -> list[str]:
         f = self.d.fire
         return [f"Vessel '{self.vessel}': API 521 pool-fire heat input Q = C1 F A^0.82 "
-                f"(A = {f.area:.4g} m2, F = {f.environment_factor:g}, "
+                f"({self.fire_area.assumption()}; F = {f.environment_factor:g}, "
                 f"{'with' if f.drainage else 'without'} prompt fire-fighting and drainage) "
                 "into the contents directly, no wall modelled."]
 
 
-__all__ = ["GasFireTerm", "WallGrid", "WallTerm", "fire_equivalent_coefficient",
+__all__ = ["FireArea", "GasFireTerm", "WallGrid", "WallTerm", "fire_equivalent_coefficient",
            "lumped_biot_number"]

@@ -14,7 +14,7 @@ from dataclasses import dataclass
 
 from ..heat import geometry as geo
 from ..heat.definitions import (FlameExposure, GasFire, InsideTransfer, OutsideTransfer,
-                                PoolFire, Wall, WallLayer)
+                                PoolFire, Wall, WallLayer, WettedSurface)
 from ..heat.fire import FIRE_HEIGHT
 from ..heat.materials import MATERIALS, constant
 from .registry import HeatTermKind, register_heat_term
@@ -149,10 +149,14 @@ INSIDE = Section(
 FIRE_MODELS: dict[str, Variant] = {}
 
 _AREA = Field("area", Quantity("area", above=0.0),
-              f"Exposed (wetted) area; default: the outside area within {FIRE_HEIGHT:g} m "
-              "above the base of the fire (API 521).")
+              f"Exposed (wetted) area, held constant; default: the outside area within "
+              f"{FIRE_HEIGHT:g} m above the base of the fire, and for the pool fire, while "
+              "the vessel holds a liquid level, the part of it below the level (API 521), "
+              "following the level in time.")
 _ELEVATION = Field("elevation", Quantity("length", at_least=0.0),
-                   "Height of the vessel's lowest point above the base of the fire.",
+                   "Height of the vessel's lowest outside point above the base of the fire "
+                   f"(grade, or where a pool can form): surfaces count up to {FIRE_HEIGHT:g} m "
+                   "above the base (API 521). Not used with a stated `area`.",
                    default="0 m")
 _STARTS = Field("starts_at", Quantity("time", at_least=0.0), "Time the fire starts.",
                 default="0 s")
@@ -290,16 +294,30 @@ def _fire_area(values, geometry, thickness, at, ctx) -> float | None:
                     "'area' to expose one anyway")
         return None
     surface = "outside area" if thickness > 0.0 else "area (inside dimensions)"
-    ctx.record(values.at.child("area", None), "(computed)", area, "m2",
-               f"{surface} within {FIRE_HEIGHT:g} m above the base of the fire (API 521), "
-               f"vessel bottom {values['elevation']:g} m above it")
+    note = (f"{surface} within {FIRE_HEIGHT:g} m above the base of the fire (API 521), "
+            f"vessel bottom {values['elevation']:g} m above it")
+    if values.variant is None or values.variant.name == "pool":
+        note += ("; while the vessel holds a liquid level, the part below the level "
+                 "(wetted area), following the level")
+    ctx.record(values.at.child("area", None), "(computed)", area, "m2", note)
     return area
 
 
-def _pool(values, area) -> PoolFire:
+def _wetted(values, geometry, thickness) -> WettedSurface | None:
+    """How the pool fire's wetted area follows the level; ``None`` for a stated area."""
+    if values["area"] is not None:
+        return None
+    return WettedSurface(kind=geometry.kind, inner_diameter=geometry.inner_diameter,
+                         length=geometry.length or 0.0, heads=geometry.heads,
+                         orientation=geometry.orientation, offset=thickness,
+                         elevation=values["elevation"],
+                         reach=FIRE_HEIGHT - values["elevation"])
+
+
+def _pool(values, area, wetted) -> PoolFire:
     return PoolFire(area=area, environment_factor=values["environment_factor"],
                     drainage=values["drainage_and_firefighting"] == "adequate",
-                    starts_at=values["starts_at"])
+                    starts_at=values["starts_at"], wetted=wetted)
 
 
 def _build_fire(values, geometry, thickness, at, ctx):
@@ -307,7 +325,7 @@ def _build_fire(values, geometry, thickness, at, ctx):
     if area is None:
         return None
     if values.variant.name == "pool":
-        return _pool(values, area)
+        return _pool(values, area, _wetted(values, geometry, thickness))
     return FlameExposure(area=area, flame_temperature=values["flame_temperature"],
                          flame_emissivity=values["flame_emissivity"],
                          surface_emissivity=values["surface_emissivity"],
@@ -385,7 +403,7 @@ GAS_FIRE = Section(
 
 def _build_gas_fire(values, geometry, at, ctx):
     area = _fire_area(values, geometry, 0.0, at, ctx)
-    return GasFire(name="fire", fire=_pool(values, area))
+    return GasFire(name="fire", fire=_pool(values, area, _wetted(values, geometry, 0.0)))
 
 
 register_heat_term(HeatTermKind(
