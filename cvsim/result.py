@@ -18,6 +18,7 @@ from .flow.exponent import EXPONENT_ASSUMPTION
 from .limits import check_vessel, first_time_at_or_below
 from .model import ACC_PER_LINK, Model
 from .network import Network
+from .rupture import add_rupture
 from .solve import RawRun
 
 CAUTION = ("Screening estimate - verify against the governing codes (e.g. ASME Section VIII, "
@@ -44,6 +45,7 @@ class Result:
     device_figures: dict = field(default_factory=dict)  # per link: figures of its device
     checks: list = field(default_factory=list)      # self-checks (cvsim.checks.Check)
     contents: dict = field(default_factory=dict)  # per vessel: phase, liquid share, level
+    rupture: dict = field(default_factory=dict)   # per vessel: rupture screening figures
 
     @property
     def checks_failed(self) -> list:
@@ -187,6 +189,7 @@ class Result:
                 d["two_phase_from_s"] = float(t_all[first])
                 d["min_vapour_quality"] = float(np.nanmin(q))
             d.update(self.contents.get(n, {}))
+            d.update(self.rupture.get(n, {}))
             out["vessels"][n] = d
         for link in self.network.links:
             n = link.name
@@ -243,6 +246,7 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
                     assumptions=assumptions(model), provenance=dict(provenance or {}),
                     warnings=warnings, device_figures=figures)
     result.limits = check_limits(result)
+    add_rupture(result)
     result.contents, liquid_full = run_figures(model, result)
     result.warnings += liquid_full
     result.checks = self_checks(result)
