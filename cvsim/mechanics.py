@@ -346,6 +346,68 @@ def stated_strength(temperatures, factors, basis: str) -> StrengthData:
                         table if basis == "yield" else None, "table given in the scenario")
 
 
+# ------------------------------------------------------------------- creep
+
+CREEP_SOURCE = ("Larson & Miller, A time-temperature relationship for rupture and creep "
+                "stresses, Trans. ASME 74 (1952) 765 (P = T (C + log10 t_r), T in K, t_r "
+                "in h); Robinson, Effect of temperature variation on the long-time rupture "
+                "strength of steels, Trans. ASME 74 (1952) 777 (life fractions add up)")
+
+
+def larson_miller_rupture_time(stress, T, C: float, curve_P, curve_stress):
+    """Time to creep rupture [s] at a stress and temperature, from a Larson-Miller
+    master curve.
+
+        P = T (C + log10 t_r)   ->   t_r = 10^(P(S)/T - C)   [h]
+
+    P(S) is the material's master curve, linear in log10 S between its points (end
+    values held).
+
+    Parameters
+    ----------
+    stress : stress [Pa] (scalar or array; not positive: no rupture, t_r = inf)
+    T : metal temperature [K]
+    C : Larson-Miller constant [-] (with t_r in hours; often about 20)
+    curve_P : the curve's parameters P [K] (T in kelvin, log10 of hours)
+    curve_stress : the rupture stresses [Pa] at those P
+
+    Reference: Larson & Miller, Trans. ASME 74 (1952) 765. No material constants are
+    built in: they are the user's, from a published master curve of the steel.
+
+    >>> round(float(larson_miller_rupture_time(100e6, 900.0, 20.0, [20000.0], [100e6])) / 3600, 1)
+    166.8
+    """
+    s = np.asarray(stress, dtype=float)
+    T = np.asarray(T, dtype=float)
+    order = np.argsort(curve_stress)
+    logS = np.log10(np.asarray(curve_stress, dtype=float)[order])
+    P = np.interp(np.log10(np.where(s > 0.0, s, 1.0)), logS,
+                  np.asarray(curve_P, dtype=float)[order])
+    with np.errstate(over="ignore"):
+        hours = 10.0 ** (P / T - C)
+    return np.where(s > 0.0, 3600.0 * hours, np.inf)
+
+
+def creep_damage(t, stress, T, C: float, curve_P, curve_stress):
+    """Creep damage [-] accumulated along a history: the life fractions of Robinson's
+    rule, D(t) = integral of dt / t_r(S(t), T(t)), trapezoidal between the points.
+
+        D = 1: creep rupture
+
+    Parameters: ``t`` [s] increasing (repeated times allowed), ``stress`` [Pa], ``T``
+    [K] at those times; C and the curve as :func:`larson_miller_rupture_time`.
+
+    Reference: Robinson, Trans. ASME 74 (1952) 777 (linear life-fraction rule).
+    """
+    t = np.asarray(t, dtype=float)
+    if t.size == 0:
+        return np.zeros(0)
+    tr = larson_miller_rupture_time(stress, T, C, curve_P, curve_stress)
+    rate = np.where(np.isfinite(tr), 1.0 / np.where(np.isfinite(tr), tr, 1.0), 0.0)
+    steps = 0.5 * (rate[1:] + rate[:-1]) * np.diff(t)
+    return np.concatenate([[0.0], np.cumsum(steps)])
+
+
 def utilisation(stress, allowed, cap: float = 1e3):
     """Stress over the allowed stress [-] (0 where the stress is not tensile; ``cap``
     where nothing is allowed any more: the metal has lost its strength).
@@ -360,7 +422,8 @@ def utilisation(stress, allowed, cap: float = 1e3):
     return np.minimum(u, cap)
 
 
-__all__ = ["CARBON_SOURCE", "EN1993_K_E", "EN1993_K_P", "EN1993_K_Y", "EN1993_TEMPERATURES",
+__all__ = ["CARBON_SOURCE", "CREEP_SOURCE", "creep_damage", "larson_miller_rupture_time",
+           "EN1993_K_E", "EN1993_K_P", "EN1993_K_Y", "EN1993_TEMPERATURES",
            "STAINLESS", "STAINLESS_SOURCE", "STRENGTH_NAMES", "STRESS_SOURCE", "StrengthData",
            "equivalent_stress", "hoop_stress_thick", "hoop_stress_thin", "k_E_carbon",
            "k_p_carbon", "k_u_carbon", "k_y_carbon", "longitudinal_stress_thick",

@@ -124,6 +124,9 @@ class RuptureLimit:
                          (von Mises of the membrane stresses)
     corrosion_allowance  [m] taken off the load-bearing layer, on its inside
     layer                index (0: innermost) of the wall layer that bears the pressure
+    creep                ``None`` or (Larson-Miller constant C [-], the master curve's
+                         parameters P [K], its rupture stresses [Pa]): creep damage by
+                         life fractions (:func:`cvsim.mechanics.creep_damage`)
     key                  key path in the scenario, for messages
     """
 
@@ -135,6 +138,7 @@ class RuptureLimit:
     stress: str = "hoop"
     corrosion_allowance: float = 0.0
     layer: int = 0
+    creep: tuple | None = None
     key: str = ""
 
     @property

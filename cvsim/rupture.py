@@ -28,7 +28,8 @@ import numpy as np
 
 from .heat.definitions import Wall
 from .limits import LimitCheck, first_time_at_or_below
-from .mechanics import STRESS_SOURCE, equivalent_stress, shell_stresses, utilisation
+from .mechanics import (CREEP_SOURCE, STRESS_SOURCE, creep_damage, equivalent_stress,
+                        shell_stresses, utilisation)
 
 ZERO_CELSIUS = 273.15
 #: unit of the stress columns: the SI unit of a stress (shown in MPa)
@@ -58,8 +59,8 @@ YIELD_PRACTICE = (
     "conservative stand-in for rupture")
 CAUTION_NOTE = (
     "a screening estimate: it does not replace the analysis the governing code requires "
-    "(short-time strengths, no creep, heads no weaker than the shell, the 1-D wall's "
-    "temperature; local hot spots are hotter)")
+    "(short-time strengths, heads no weaker than the shell, the 1-D wall's temperature; "
+    "local hot spots are hotter)")
 
 
 class Layout:
@@ -134,12 +135,54 @@ def add_rupture(result) -> None:
         result.data = np.hstack([result.data.reshape(len(result.data), -1), new[0]])
         result.fine_data = np.hstack([result.fine_data.reshape(len(result.fine_data), -1),
                                       new[1]])
+        if spec.creep is not None:
+            add_creep(result, vessel, spec)
         check, figures, warnings = judge(result, vessel, spec, layout)
         if check is not None:
             result.limits.append(check)
+        if spec.creep is not None and len(result.data):
+            creep_check, creep_figures = judge_creep(result, vessel, spec)
+            result.limits.append(creep_check)
+            figures.update(creep_figures)
         result.rupture[vessel.name] = figures
         result.warnings += warnings
         result.assumptions.append(assumption(vessel, spec, layout))
+
+
+def add_creep(result, vessel, spec) -> None:
+    """Add ``<vessel>.rupture.creep_damage``: Robinson's life fractions along the run
+    (every recorded point and step, in time order), from its stress and metal
+    temperature histories."""
+    name = f"{vessel.name}.rupture"
+    C, curve_P, curve_S = spec.creep[0], spec.creep[1], spec.creep[2]
+    rows = result._all()
+    t = rows[:, 0]
+    D = creep_damage(t, rows[:, result._col(f"{name}.stress")],
+                     rows[:, result._col(f"{name}.metal_temperature")], C, curve_P, curve_S)
+    result.columns = list(result.columns) + [(f"{name}.creep_damage", "", KIND)]
+    for attr in ("data", "fine_data"):
+        block = getattr(result, attr)
+        extra = np.interp(block[:, 0], t, D) if len(block) and len(t) else np.zeros(len(block))
+        setattr(result, attr, np.hstack([block, extra.reshape(-1, 1)]))
+
+
+def judge_creep(result, vessel, spec):
+    """(LimitCheck, summary figures) of the creep damage of one vessel's wall."""
+    rows = result._all()
+    t = rows[:, 0]
+    D = rows[:, result._col(f"{vessel.name}.rupture.creep_damage")]
+    t_fail = first_time_at_or_below(t, 1.0 - D, 0.0)
+    failed = t_fail == t_fail
+    D_end = float(D[-1])
+    note = (f"CREEP RUPTURE predicted at t = {t_fail:.6g} s ({t_fail / 60:.4g} min)" if failed
+            else f"damage {D_end:.3g} of 1 at the end of the run (t = {t[-1]:.6g} s)")
+    check = LimitCheck(
+        vessel.name, "creep damage of the wall below 1 (Larson-Miller life fractions)",
+        "damage", 1.0, D_end, float(t[-1]), bool(D_end <= 1.0), 1.0 - D_end, "",
+        f"{CREEP_SOURCE}; master curve and C = {spec.creep[0]:g} as stated in the scenario",
+        "; ".join([note, CAUTION_NOTE]), key="rupture.creep")
+    return check, {"creep_damage": D_end,
+                   "creep_rupture_time_s": float(t_fail) if failed else None}
 
 
 def judge(result, vessel, spec, layout: Layout):
@@ -236,9 +279,12 @@ def assumption(vessel, spec, layout: Layout) -> str:
             f"stresses from the pressure inside less the atmosphere's ({STRESS_SOURCE}); "
             f"{which} compared with {share}the {basis} at room temperature times its "
             f"retained fraction at the hottest temperature through that layer "
-            f"({spec.strength.source}). Short-time strengths (no creep); heads no weaker "
-            "than the shell; the wall's temperature is the 1-D wall's, the fire's heat "
-            "spread over the whole wall, so a local hot spot is hotter.")
+            f"({spec.strength.source}). "
+            + ("Short-time strengths, no creep" if spec.creep is None else
+               "Short-time strengths, and creep damage by Larson-Miller life fractions "
+               f"(C = {spec.creep[0]:g}, the master curve stated)")
+            + "; heads no weaker than the shell; the wall's temperature is the 1-D wall's, "
+            "the fire's heat spread over the whole wall, so a local hot spot is hotter.")
 
 
 __all__ = ["KIND", "Layout", "QUANTITIES", "STRESS_UNIT", "add_rupture", "columns",

@@ -182,3 +182,37 @@ def test_utilisation_handles_no_stress_and_no_strength():
 def test_docstring_examples():
     import doctest
     assert doctest.testmod(mech).failed == 0
+
+
+# ------------------------------------------------------------------- creep
+
+
+def test_larson_miller_rupture_time_by_hand():
+    # source: Larson & Miller, Trans. ASME 74 (1952) 765: P = T (C + log10 t_r), T in K,
+    # t_r in h; with P = 20 000, C = 20, T = 900 K: t_r = 10^(20000/900 - 20) = 166.81 h
+    curve_P, curve_S = [15000.0, 20000.0, 25000.0], [300e6, 100e6, 20e6]
+    tr = mech.larson_miller_rupture_time(100e6, 900.0, 20.0, curve_P, curve_S)
+    assert float(tr) / 3600 == pytest.approx(10 ** (20000 / 900 - 20), rel=1e-12)
+    # between the curve's points P is linear in log10 of the stress: at the geometric
+    # mean of 300 and 100 MPa, P is the mean of 15 000 and 20 000
+    tr = mech.larson_miller_rupture_time(math.sqrt(300e6 * 100e6), 1000.0, 20.0, curve_P,
+                                         curve_S)
+    assert float(tr) / 3600 == pytest.approx(10 ** (17500 / 1000 - 20), rel=1e-9)
+    # no tensile stress: no creep rupture
+    assert math.isinf(float(mech.larson_miller_rupture_time(-1e6, 1000.0, 20.0, curve_P,
+                                                            curve_S)))
+
+
+def test_creep_damage_adds_life_fractions():
+    # source: Robinson, Trans. ASME 74 (1952) 777, life-fraction rule D = sum dt_i / t_r,i,
+    # summed by hand here for two constant spells (a step is two points at one time)
+    curve_P, curve_S = [15000.0, 25000.0], [300e6, 20e6]
+    t = np.array([0.0, 100.0, 100.0, 300.0])
+    T = np.array([800.0, 800.0, 900.0, 900.0])
+    S = np.full(4, 120e6)
+    tr = mech.larson_miller_rupture_time(120e6, np.array([800.0, 900.0]), 20.0, curve_P,
+                                         curve_S)
+    expected = 100.0 / tr[0] + 200.0 / tr[1]
+    D = mech.creep_damage(t, S, T, 20.0, curve_P, curve_S)
+    assert D[-1] == pytest.approx(expected, rel=1e-12)
+    assert D[0] == 0.0 and np.all(np.diff(D) >= 0.0)

@@ -222,3 +222,30 @@ def test_find_answers_the_orifice_question_on_the_demo():
     assert rows[result.bracket[1]]["vessel.limit.rupture.met"] is True
     assert rows[result.bracket[0]]["vessel.limit.rupture.met"] is False
     assert not math.isnan(rows[result.bracket[0]]["vessel.rupture_time"])
+
+
+CREEP = """{tensile_strength: 485 MPa, creep: {larson_miller_constant: 20,
+             rupture_curve: [[15000, 300 MPa], [20000, 100 MPa], [25000, 20 MPa]]}}"""
+
+
+def test_creep_damage_in_a_run():
+    # an invented master curve (not a material's): the check and its column
+    text = BASE.replace("LAYERS", "{material: carbon-steel, thickness: 10 mm}").replace(
+        "RUPTURE", CREEP).replace(
+        "outside: {model: natural, ambient: 20 degC}",
+        "outside: {model: natural, ambient: 20 degC, fire: {model: pool, "
+        "drainage_and_firefighting: inadequate}}").replace("10 s", "5 min")
+    r = cvsim.run(load_scenario_text(text))
+    D = r.fine("v.rupture.creep_damage")
+    assert D[0] == 0.0 and np.all(np.diff(D) >= -1e-15)
+    check = next(c for c in r.limits if c.key == "rupture.creep")
+    assert check.actual == pytest.approx(D[-1]) and check.margin == pytest.approx(1 - D[-1])
+    _, values = outcome_values(r)
+    assert values["v.limit.rupture.creep.margin"] == pytest.approx(1 - D[-1])
+
+
+def test_a_master_curve_must_fall():
+    rupture = """{tensile_strength: 485 MPa, creep: {larson_miller_constant: 20,
+                  rupture_curve: [[15000, 100 MPa], [20000, 300 MPa]]}}"""
+    with pytest.raises(ScenarioError, match="rupture_curve"):
+        _load(rupture=rupture)

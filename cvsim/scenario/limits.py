@@ -154,6 +154,56 @@ class StrengthKind(Kind):
         return f"{names} \\| list of [temperature, retained fraction] points"
 
 
+@dataclass(frozen=True)
+class CurveKind(Kind):
+    """A Larson-Miller master curve: ``[[P, rupture stress], ...]``."""
+
+    def read(self, raw, at, ctx):
+        if not isinstance(raw, list) or not raw:
+            ctx.problem(at, "expected a list of [P, rupture stress] points, e.g. "
+                        "[[17000, 200 MPa], [20000, 100 MPa], [23000, 40 MPa]]")
+            return BAD
+        number, stress = Quantity("dimensionless", above=0.0), Quantity("stress", above=0.0)
+        lines = getattr(raw, "item_lines", [])
+        Ps, Ss = [], []
+        for i, row in enumerate(raw):
+            here = at.item(i, lines[i] if i < len(lines) else None)
+            if not isinstance(row, list) or len(row) != 2:
+                ctx.problem(here, f"each point is [P, rupture stress]; got {as_text(row)}")
+                return BAD
+            P = number.read_one(row[0], here.child(0, None), ctx)
+            S = stress.read_one(row[1], here.child(1, None), ctx)
+            if P is BAD or S is BAD:
+                return BAD
+            if Ps and not (P > Ps[-1] and S < Ss[-1]):
+                ctx.problem(here, "along a master curve P increases and the rupture stress "
+                            "falls: list the points in that order")
+                return BAD
+            Ps.append(P)
+            Ss.append(S)
+        return (tuple(Ps), tuple(Ss))
+
+    def describe(self) -> str:
+        return "list of [P, rupture stress] points"
+
+
+CREEP = Section(
+    "limits: rupture: creep",
+    "Creep damage of the load-bearing layer by Larson-Miller life fractions (Robinson's "
+    "rule): t_r = 10^(P(S)/T - C) hours at the stress S and metal temperature T [K], "
+    "D = integral of dt / t_r; creep rupture at D = 1 (Larson & Miller 1952). No material "
+    "data are built in: give the steel's published master curve.",
+    fields=(
+        Field("larson_miller_constant", Quantity("dimensionless", above=0.0),
+              "C of P = T (C + log10 t_r), T in K, t_r in h (often about 20).",
+              required=True),
+        Field("rupture_curve", CurveKind(),
+              "The master curve: [P, rupture stress] points, P in K (with log10 of hours), "
+              "P increasing; linear in log10 of the stress between them.", required=True),
+    ),
+)
+
+
 RUPTURE = Section(
     "limits: rupture",
     "Rupture screening of the wall in a fire: at every moment, the membrane stress from "
@@ -190,6 +240,8 @@ RUPTURE = Section(
         Field("layer", Quantity("dimensionless", at_least=1.0),
               "Which wall layer bears the pressure, counted from the inside (1: "
               "innermost).", default=1),
+        Field("creep", Sub(CREEP), "Creep damage by Larson-Miller life fractions; none "
+              "given: short-time strengths only."),
     ),
 )
 
@@ -289,10 +341,13 @@ def build_rupture(values, heat, ctx) -> RuptureLimit | None:
             return None
     else:
         data = mechanics.stated_strength(given[0], given[1], criterion)
+    creep = values["creep"]
+    if creep is not None:
+        creep = (creep["larson_miller_constant"], *creep["rupture_curve"])
     return RuptureLimit(strength=data, criterion=criterion, fraction=values["fraction"],
                         tensile_strength=values["tensile_strength"],
                         yield_strength=values["yield_strength"], stress=values["stress"],
-                        corrosion_allowance=ca, layer=index, key=at.key)
+                        corrosion_allowance=ca, layer=index, creep=creep, key=at.key)
 
 
 def _named_materials():
