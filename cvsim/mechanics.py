@@ -338,12 +338,11 @@ def strength_data(name: str) -> StrengthData:
 STRENGTH_NAMES = ("carbon-steel", *STAINLESS)
 
 
-def stated_strength(temperatures, factors, basis: str) -> StrengthData:
+def stated_strength(temperatures, factors) -> StrengthData:
     """Strength data from a table given in the scenario (temperatures [K], retained
-    fractions [-] of the strength of ``basis``)."""
+    fractions [-] of the strength the criterion names, tensile or yield alike)."""
     table = (tuple(float(t) for t in temperatures), tuple(float(f) for f in factors))
-    return StrengthData("stated", table if basis == "tensile" else (table[0], table[1]),
-                        table if basis == "yield" else None, "table given in the scenario")
+    return StrengthData("stated", table, table, "table given in the scenario")
 
 
 # ------------------------------------------------------------------- creep

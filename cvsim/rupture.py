@@ -132,9 +132,8 @@ def add_rupture(result) -> None:
         new = [histories(rows, index, vessel, spec, layout, net.atmosphere)
                for rows in (result.data, result.fine_data)]
         result.columns = list(result.columns) + columns(vessel.name)
-        result.data = np.hstack([result.data.reshape(len(result.data), -1), new[0]])
-        result.fine_data = np.hstack([result.fine_data.reshape(len(result.fine_data), -1),
-                                      new[1]])
+        result.data = np.hstack([result.data, new[0]])
+        result.fine_data = np.hstack([result.fine_data, new[1]])
         if spec.creep is not None:
             add_creep(result, vessel, spec)
         check, figures, warnings = judge(result, vessel, spec, layout)

@@ -340,7 +340,7 @@ def build_rupture(values, heat, ctx) -> RuptureLimit | None:
                         "temperature; use criterion: tensile")
             return None
     else:
-        data = mechanics.stated_strength(given[0], given[1], criterion)
+        data = mechanics.stated_strength(given[0], given[1])
     creep = values["creep"]
     if creep is not None:
         creep = (creep["larson_miller_constant"], *creep["rupture_curve"])
