@@ -549,6 +549,11 @@ class RealFluid:
             return None
         return root_on_bracket(sl, lo, hi, f_lo, f_hi, self._tolerance(s, "s"))
 
+    def two_phase_at_p(self, p: float, quality: float) -> State:
+        """Equilibrium mixture of vapour mass fraction ``quality`` [-] (0..1) at
+        pressure p [Pa] below the critical pressure."""
+        return self._saturated(p, quality)
+
     def _saturated(self, p: float, quality: float) -> State:
         self.evaluations += 1
         try:
@@ -559,9 +564,15 @@ class RealFluid:
         a = self._as
         # on the saturation line cp and the speed of sound are those of a phase
         # boundary; report them as undefined, like the two-phase states
+        if quality == 0.0:
+            phase, lf = "liquid", 1.0
+        elif quality == 1.0:
+            phase, lf = "gas", 0.0
+        else:
+            phase = "two-phase"
+            lf = (1.0 - quality) * a.rhomass() / a.saturated_liquid_keyed_output(self._iD)
         return State(a.rhomass(), a.T(), a.p(), a.umass(), a.hmass(), a.smass(),
-                     NAN, a.cvmass(), NAN, quality, "liquid" if quality == 0.0 else "gas",
-                     1.0 if quality == 0.0 else 0.0)
+                     NAN, a.cvmass(), NAN, quality, phase, lf)
 
 
 class IdealGas:

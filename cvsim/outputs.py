@@ -141,7 +141,7 @@ def summary_text(result: Result) -> str:
         L.append(f"Vessel '{name}':")
         L.append(f"  pressure    max {_bar(v['max_pressure_Pa'], atm)} at {_t(v['max_pressure_time_s'])};"
                  f" min {_bar(v['min_pressure_Pa'], atm)} at {_t(v['min_pressure_time_s'])}")
-        L.append(f"  gas temp.   max {_degc(v['max_temperature_K'])} at "
+        L.append(f"  temperature max {_degc(v['max_temperature_K'])} at "
                  f"{_t(v['max_temperature_time_s'])}; min {_degc(v['min_temperature_K'])} at "
                  f"{_t(v['min_temperature_time_s'])}")
         if "min_wall_temperature_K" in v:
