@@ -93,9 +93,11 @@ def _walk(folder: Path) -> list[str]:
     return sorted(out)
 
 
-def write_manifest(folder: Path) -> None:
-    """Write the marker of ``folder`` listing every file in it."""
-    entries = [f"{(folder / name).lstat().st_size} {name}" for name in _walk(folder)
+def write_manifest(folder: Path, names: list[str] | None = None) -> None:
+    """Write the marker of ``folder`` listing ``names`` (relative paths; default
+    every file in it) with their sizes."""
+    names = _walk(folder) if names is None else sorted(set(names))
+    entries = [f"{(folder / name).lstat().st_size} {name}" for name in names
                if name != MARKER]
     (folder / MARKER).write_text("\n".join([MARKER_HEAD, MANIFEST_TAG] + entries) + "\n",
                                  encoding="utf-8")
@@ -441,7 +443,7 @@ class OutputFolder:
         try:
             yield tmp
             os.replace(tmp, target)
-            write_manifest(self.path)
+            write_manifest(self.path, list(read_manifest(self.path) or {}) + [name])
         except BaseException:
             with contextlib.suppress(OSError):
                 tmp.unlink()

@@ -279,3 +279,17 @@ def test_an_out_name_too_long_is_one_clear_message(small, tmp_path, capsys):
     assert run(small, tmp_path / ("x" * 10_000)) == 2
     err = capsys.readouterr().err
     assert "10000 characters long" in err and "Traceback" not in err
+
+
+def test_a_report_added_after_the_table_joins_the_manifest(small, tmp_path):
+    out = tmp_path / "out"
+    assert main(["sweep", str(small), "--vary", "links.vent.diameter=2 mm, 3 mm", "--workers",
+                 "1", "--out", str(out), "--report", "--no-plots", "--quiet"]) == 0
+    assert (out / "report.html").exists()
+    assert "report.html" in outfolder.read_manifest(out)
+    assert outfolder.foreign_files(out) == []
+    # so the next sweep into the folder replaces it without a word
+    assert main(["sweep", str(small), "--vary", "links.vent.diameter=2 mm, 4 mm", "--workers",
+                 "1", "--out", str(out), "--no-plots", "--quiet"]) == 0
+    assert not (out / "report.html").exists()
+    assert not [p for p in tmp_path.iterdir() if ".kept-" in p.name]

@@ -524,9 +524,10 @@ def sweep(scenario, vary: dict, workers: int | None = None, cluster: str | None 
         rows = [r if r is not None else not_run_row(i + 1) for i, r in enumerate(stop.rows)]
         result = SweepResult.build(source, parameters, cases, rows, reference,
                                    ran_on=where, wall_time=time.time() - started)
+        left = len(rows) - done
         result.partial = (f"PARTIAL: the sweep was stopped after {done} of {len(rows)} "
-                          f"cases; the {len(rows) - done} not finished are marked "
-                          f"'{NOT_RUN}'")
+                          f"cases; the {left} not finished {'is' if left == 1 else 'are'} "
+                          f"marked '{NOT_RUN}'")
         if plot is not None:
             result.outcome_defaults = plot
         stop.result = result
