@@ -158,7 +158,6 @@ class Result:
             "self_checks_failed": len(self.checks_failed),
             "solver": self.stats,
             "assumptions": self.assumptions,
-            "warnings": self.warnings,
             "provenance": self.provenance,
             "caution": CAUTION,
         }
@@ -237,6 +236,7 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
     totals, balance = _balances(model, raw)
     figures, warnings = _device_reports(model, raw)
     warnings = [w for _, term in model.heat_terms for w in term.warnings()] + warnings
+    warnings = list(getattr(raw, "warnings", ())) + warnings  # the solver's (recording)
     result = Result(network=model.network, status=raw.status, message=raw.message,
                     columns=cols, data=data, fine_data=fine, events=list(raw.events),
                     stats=dict(raw.stats), totals=totals, balance=balance,
