@@ -383,7 +383,9 @@ def assumptions(model: Model) -> list[str]:
                "vapour"
                + (" (saturated liquid through links that draw liquid: "
                   + ", ".join(k.name for k in net.links if k.draws == "liquid") + ")"
-                  if any(k.draws == "liquid" for k in net.links) else "") + ".")
+                  if any(k.draws == "liquid" for k in net.links) else "")
+               + "; an outlet draws the mixture itself as the level comes within 2 % of the "
+               "volume of it (a regularisation, common practice, no source: cvsim.outlets).")
     kinds = {type(link.device).__name__ for link in net.links}
     if "Orifice" in kinds:
         models = sorted({link.device.flow_model for link in net.links
