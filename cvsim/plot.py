@@ -67,6 +67,10 @@ PANEL_WITH_OPENINGS_IN = {False: (4.4, 1.9), True: (9.6, 1.3)}
 TITLE_PT = 12.0
 SUBTITLE_PT = 9.0
 FOOTER_PT = 7.0
+#: lines of title and subtitle at most (a longer title is cut with an ellipsis:
+#: the whole title is in every text output)
+TITLE_LINES = 3
+SUBTITLE_LINES = 4
 LEGEND_PT = 7.5
 LEGEND_ROWS = 6           # a longer legend is set in two columns
 EVENT_PT = 6.5
@@ -642,8 +646,8 @@ def _frame(fig, title_text: str, subtitle: str, alarm: bool) -> tuple[float, flo
     to_frac = 1.0 / (72.0 * height)
     spacing = 1.25
 
-    title = _wrap(title_text, width, TITLE_PT, bold=True)
-    sub = _wrap(subtitle, width, SUBTITLE_PT)
+    title = _wrap(title_text, width, TITLE_PT, bold=True, max_lines=TITLE_LINES)
+    sub = _wrap(subtitle, width, SUBTITLE_PT, max_lines=SUBTITLE_LINES)
     y = 1.0 - pad * to_frac
     fig.text(0.5, y, "\n".join(title), ha="center", va="top", fontsize=TITLE_PT,
              fontweight="bold", linespacing=spacing)
@@ -662,12 +666,20 @@ def _frame(fig, title_text: str, subtitle: str, alarm: bool) -> tuple[float, flo
     return y, bottom
 
 
-def _wrap(text: str, width_in: float, size_pt: float, bold: bool = False) -> list[str]:
+def _wrap(text: str, width_in: float, size_pt: float, bold: bool = False,
+          max_lines: int | None = None) -> list[str]:
     """Lines of ``text`` that fit a figure ``width_in`` wide at ``size_pt``
-    (average glyph of DejaVu Sans about 0.55 em, bold 0.62 em)."""
+    (average glyph of DejaVu Sans about 0.55 em, bold 0.62 em); at most
+    ``max_lines``, the last one ending in an ellipsis when text is cut."""
     em = 0.62 if bold else 0.55
     chars = max(20, int(0.96 * width_in * 72.0 / (em * size_pt)))
-    return textwrap.wrap(text, chars) or [""]
+    if max_lines is not None:
+        text = text[:chars * (max_lines + 1)]  # a very long title: wrap no more than needed
+    lines = textwrap.wrap(text, chars) or [""]
+    if max_lines is not None and len(lines) > max_lines:
+        lines = lines[:max_lines]
+        lines[-1] = lines[-1][:chars - 1].rstrip() + "\u2026"
+    return lines
 
 
 __all__ = ["flow_unit", "plot_run", "time_unit"]

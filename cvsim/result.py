@@ -160,7 +160,6 @@ class Result:
             "self_checks_failed": len(self.checks_failed),
             "solver": self.stats,
             "assumptions": self.assumptions,
-            "warnings": self.warnings,
             "provenance": self.provenance,
             "caution": CAUTION,
         }
@@ -240,6 +239,7 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
     totals, balance = _balances(model, raw)
     figures, warnings = _device_reports(model, raw)
     warnings = [w for _, term in model.heat_terms for w in term.warnings()] + warnings
+    warnings = list(getattr(raw, "warnings", ())) + warnings  # the solver's (recording)
     result = Result(network=model.network, status=raw.status, message=raw.message,
                     columns=cols, data=data, fine_data=fine, events=list(raw.events),
                     stats=dict(raw.stats), totals=totals, balance=balance,
@@ -387,7 +387,9 @@ def assumptions(model: Model) -> list[str]:
                "vapour"
                + (" (saturated liquid through links that draw liquid: "
                   + ", ".join(k.name for k in net.links if k.draws == "liquid") + ")"
-                  if any(k.draws == "liquid" for k in net.links) else "") + ".")
+                  if any(k.draws == "liquid" for k in net.links) else "")
+               + "; an outlet draws the mixture itself as the level comes within 2 % of the "
+               "volume of it (a regularisation, common practice, no source: cvsim.outlets).")
     kinds = {type(link.device).__name__ for link in net.links}
     if "Orifice" in kinds:
         models = sorted({link.device.flow_model for link in net.links
