@@ -58,6 +58,7 @@ from .fluid import NAN, State
 from .heat.boiling import (HORIZONTAL_SURFACE_STABLE, HORIZONTAL_SURFACE_UNSTABLE,
                            nu_horizontal_surface)
 from .heat.convection import G, RangeWatch, prandtl, rayleigh
+from .heat.walls import WATCH_MIN_DIFFERENCE
 from .outlets import F_BOTTOM, F_TOP
 
 #: the pressures of the two zones agree to |p_l - p_v| <= SPLIT_RTOL p
@@ -413,7 +414,9 @@ class ZonedVessel:
                 Ra = rayleigh(abs(beta), dTv, L, rho, mu, k, cp)
                 # vapour above the interface: unstable when the vapour is colder
                 hv = zp.interface_factor * nu_horizontal_surface(Ra, dTv < 0.0) * k / L
-                out["q_vapour"], out["h_vapour"], out["Ra_v"] = hv * A * dTv, hv, Ra
+                out["q_vapour"], out["h_vapour"] = hv * A * dTv, hv
+                if abs(dTv) > WATCH_MIN_DIFFERENCE:
+                    out["Ra_v"] = Ra
                 out["unstable_v"] = dTv < 0.0
             dTl = liq.T - Ts
             if dTl != 0.0:
@@ -421,7 +424,9 @@ class ZonedVessel:
                 Ra = rayleigh(abs(beta), dTl, L, rho, mu, k, cp)
                 # liquid below the interface: unstable when the liquid is warmer
                 hl = zp.interface_factor * nu_horizontal_surface(Ra, dTl > 0.0) * k / L
-                out["q_liquid"], out["h_liquid"], out["Ra_l"] = hl * A * dTl, hl, Ra
+                out["q_liquid"], out["h_liquid"] = hl * A * dTl, hl
+                if abs(dTl) > WATCH_MIN_DIFFERENCE:
+                    out["Ra_l"] = Ra
                 out["unstable_l"] = dTl > 0.0
                 out["Pr_l"] = prandtl(mu, k, cp)
         out["evaporation"] = (out["q_vapour"] + out["q_liquid"]) / (s["h_g"] - s["h_f"])
@@ -556,6 +561,77 @@ def liquid_share_drawn(draws: str, liquid_fraction: float, has_liquid: bool) -> 
     return 0.0 if f <= F_TOP else min((f - F_TOP) / (1.0 - F_TOP), 1.0)
 
 
+# ------------------------------------------------------------------ a run's figures
+
+#: (key, column suffix, unit) of the zone figures integrated over the run
+_MOVED = (("rain_out_kg", "rain_out"), ("boil_off_kg", "boil_off"),
+          ("interface_evaporation_kg", "interface_evaporation"))
+
+
+def run_figures(result, vessel: str) -> dict:
+    """Figures of a vessel held as separated zones, from the run's public columns
+    (empty for other vessels): lowest and highest vapour and liquid temperatures with
+    their times; the mass moved between the zones (trapezoidal integrals of the rates
+    over every recorded point and step); per wall part the coldest and hottest metal
+    (any node) with time and place."""
+    names = set(result.names())
+    if f"{vessel}.liquid_temperature" not in names:
+        return {}
+    d: dict = {}
+    for zone in ("vapour", "liquid"):
+        col = f"{vessel}.{zone}_temperature"
+        for kind in ("min", "max"):
+            value, when = result.extreme(col, kind)
+            if value == value:
+                d[f"{kind}_{zone}_temperature_K"] = value
+                d[f"{kind}_{zone}_temperature_time_s"] = when
+    t = result.fine("time")
+    for key, suffix in _MOVED:
+        y = result.fine(f"{vessel}.{suffix}")
+        ok = y == y
+        d[key] = float(sum(0.5 * (y[ok][1:] + y[ok][:-1]) * (t[ok][1:] - t[ok][:-1])))
+    for part in ("wetted", "unwetted"):
+        prefix = f"{vessel}.wall.{part}."
+        cols = [n for n in result.names() if n.startswith(prefix)
+                and n.endswith("_temperature") and result.unit(n) == "K"]
+        for kind in ("min", "max"):
+            found = [(*result.extreme(c, kind), c) for c in cols]
+            found = [f for f in found if f[0] == f[0]]
+            if not found:
+                continue
+            value, when, col = (min if kind == "min" else max)(found, key=lambda f: f[0])
+            d[f"{kind}_{part}_wall_temperature_K"] = value
+            d[f"{kind}_{part}_wall_temperature_time_s"] = when
+            d[f"{kind}_{part}_wall_temperature_where"] = col[len(prefix):-len("_temperature")]
+    return d
+
+
+def summary_lines(d: dict, time_text) -> list[str]:
+    """Lines of the text summary for the figures of :func:`run_figures`."""
+    def c(K):
+        return f"{K - 273.15:.1f} degC"
+    out = []
+    for zone in ("vapour", "liquid"):
+        if f"min_{zone}_temperature_K" in d:
+            out.append(f"  {zone + ' zone':<11} min {c(d[f'min_{zone}_temperature_K'])} at "
+                       f"{time_text(d[f'min_{zone}_temperature_time_s'])}; max "
+                       f"{c(d[f'max_{zone}_temperature_K'])} at "
+                       f"{time_text(d[f'max_{zone}_temperature_time_s'])}")
+    for part in ("wetted", "unwetted"):
+        if f"min_{part}_wall_temperature_K" in d:
+            out.append(f"  {part + ' wall':<11} coldest {c(d[f'min_{part}_wall_temperature_K'])} "
+                       f"at {time_text(d[f'min_{part}_wall_temperature_time_s'])} "
+                       f"({d[f'min_{part}_wall_temperature_where']}); hottest "
+                       f"{c(d[f'max_{part}_wall_temperature_K'])} at "
+                       f"{time_text(d[f'max_{part}_wall_temperature_time_s'])} "
+                       f"({d[f'max_{part}_wall_temperature_where']})")
+    if "rain_out_kg" in d:
+        out.append(f"  between zones  rain-out {d['rain_out_kg']:.4g} kg, boil-off "
+                   f"{d['boil_off_kg']:.4g} kg, evaporated at the interface "
+                   f"{d['interface_evaporation_kg']:.4g} kg (negative: condensed)")
+    return out
+
+
 __all__ = ["LIQUID_TRACE", "SPLIT_RTOL", "SaturationProperties", "ZonedState",
            "ZonedVessel", "bubble_rise_velocity", "interface_length",
-           "liquid_share_drawn", "stokes_velocity"]
+           "liquid_share_drawn", "run_figures", "stokes_velocity", "summary_lines"]

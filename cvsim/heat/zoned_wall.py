@@ -38,11 +38,14 @@ watched and warned.
 
 **Outside and fire.** Each part exchanges with the surroundings over its share of the
 outside area. An API 521 pool fire's heat input Q = C1 F A_wet^0.82 (its wetted area
-following the level) goes into the wetted part, whose exposed area then exchanges no
-heat with the surroundings; the unwetted part receives none of it (API 521's
-wetted-surface equation is for wetted walls: model the flame on the unwetted wall with
-``fire: {model: flame}`` to see it heat up). A flame's flux acts on each part's share
-of the exposed area at that part's outside temperature.
+following the level) goes into the wetted part, the relief-load basis unchanged; the
+exposed area above the level (the area within the fire's reach less the wetted area)
+gets the flux that cvsim gives the wall of a gas-filled vessel, C1 F A_reach^0.82 /
+A_reach (API 521's heat input spread over the whole area within reach: a screening
+choice, as for gas-filled vessels; API 521's equation is for wetted walls). Exposed
+areas exchange no heat with the surroundings while the fire burns. A flame's flux
+(``fire: {model: flame}``) acts on each part's share of the exposed area at that
+part's outside temperature.
 """
 from __future__ import annotations
 
@@ -193,11 +196,23 @@ class ZonedWallTerm(WallTerm):
         self._h_biot_out = 0.0
         if burning:
             if isinstance(fire, PoolFire):
-                fire_w = api521_pool_fire_heat(wetted_area, fire.environment_factor,
-                                               fire.drainage) if phi > 0.0 else 0.0
-                ex_w = min(wetted_area, A_w)
+                A_wet = wetted_area if phi > 0.0 else 0.0
+                fire_w = api521_pool_fire_heat(A_wet, fire.environment_factor,
+                                               fire.drainage) if A_wet > 0.0 else 0.0
+                ex_w = min(A_wet, A_w)
                 if ex_w > 0.0:
                     self._h_biot_out = fire_equivalent_coefficient(fire_w / ex_w, Tw)
+                if fire.wetted is not None and fire.area > 0.0:
+                    # the exposed area above the level: the flux cvsim gives a gas-filled
+                    # vessel's wall, API 521's heat input spread over the whole area
+                    # within the fire's reach
+                    ex_u = min(max(fire.area - A_wet, 0.0), A_u)
+                    flux = api521_pool_fire_heat(fire.area, fire.environment_factor,
+                                                 fire.drainage) / fire.area
+                    fire_u = ex_u * flux
+                    if ex_u > 0.0:
+                        self._h_biot_out = max(self._h_biot_out,
+                                               fire_equivalent_coefficient(flux, Tu))
             elif isinstance(fire, FlameExposure):
                 ex_w, ex_u = self.exposed * phi, self.exposed * (1.0 - phi)
                 fire_w = ex_w * flame_heat_flux(Tw, fire.flame_temperature,
@@ -322,8 +337,11 @@ class ZonedWallTerm(WallTerm):
             "h^3 = h_nc^3 + h_nb^3; unwetted part to vapour: natural convection "
             "(condensation on a cold wall not modelled).")
         if isinstance(self.d.fire, PoolFire):
-            out.append(f"Vessel '{self.vessel}': the API 521 pool-fire heat input goes into "
-                       "the wetted part; the unwetted part receives none of it.")
+            out.append(f"Vessel '{self.vessel}': the API 521 pool-fire heat input "
+                       "C1 F A_wet^0.82 goes into the wetted part; the exposed area above "
+                       "the level gets the flux C1 F A_reach^0.82 / A_reach (the API 521 "
+                       "heat input spread over the whole area within the fire's reach, as "
+                       "for a gas-filled vessel: a screening choice).")
         return out
 
 
