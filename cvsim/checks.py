@@ -64,6 +64,12 @@ ENTROPY_TOLERANCE = 1e-7
 HEAT_ENTROPY_TOLERANCE = 1e-9
 #: the energy check's floor, relative to the energy turned over
 ENERGY_FLOOR = 1e-6
+#: the liquid zone's energy check's floor, relative to the energy turned over: its
+#: rates (boil-off, rain-out) relax fast when the transfer is fast, and the solver's
+#: error on them (relative tolerance 1e-6 per step) adds up over the run to about 1e-5
+#: (measured: 1.5e-5 with transfers 100 times the published ones); a missing boundary
+#: work term shows as 2e-3 or more in the demos
+ZONE_ENERGY_FLOOR = 1e-4
 #: rows checked for entropy per link at most (evenly spread; (p, h) flashes cost)
 ENTROPY_ROWS = 400
 
@@ -340,15 +346,18 @@ def liquid_zone_balances(h: _Histories) -> list[Check]:
         q_l = h.col(f"{name}.interface_heat_from_liquid")
         heat = h.col(f"{name}.heat_into_liquid")
         rate = np.zeros(n)
+        gross = np.zeros(n)   # the energy moved, each term counted by its size
         for i in range(n):
             if not T_l[i] == T_l[i]:
                 rate[i] = math.nan
                 continue
             e = heat[i] - q_l[i]
+            g = abs(heat[i]) + abs(q_l[i])
             if rain[i] or boil[i] or evap[i]:
                 liq = h.fluid.saturated_liquid_at_p(p[i])
                 vap = h.fluid.saturated_vapour_at_p(p[i])
                 e += (rain[i] - evap[i]) * liq.h - boil[i] * vap.h
+                g += (abs(rain[i]) + abs(evap[i])) * abs(liq.h) + abs(boil[i] * vap.h)
             for link in h.net.links:
                 md = h.col(f"{link.name}.mass_flow")[i]
                 if md > 0.0 and link.source == name:
@@ -362,7 +371,9 @@ def liquid_zone_balances(h: _Histories) -> list[Check]:
                                        liquid is not None)
                 if w > 0.0:
                     e -= w * abs(md) * liquid.h
+                    g += w * abs(md * liquid.h)
             rate[i] = e
+            gross[i] = g
         ok = np.isfinite(rate)
         if ok.sum() < 3 or not ok[0]:
             continue
@@ -374,9 +385,9 @@ def liquid_zone_balances(h: _Histories) -> list[Check]:
         half_t = tt[::2] if len(tt) % 2 == 1 else np.append(tt[:-1:2], tt[-1])
         half_y = yy[::2] if len(tt) % 2 == 1 else np.append(yy[:-1:2], yy[-1])
         dU = m_l[last - 1] * u_l[last - 1] - m_l[0] * u_l[0]
-        turned = max(abs(dU), _trapezoid(tt, np.abs(yy)), 1e-300)
+        turned = max(abs(dU), _trapezoid(tt, gross[:last]), 1e-300)
         residual = abs(dU - full) / turned
-        tol = ENERGY_FLOOR + 3.0 * abs(_trapezoid(tt, yy) - _trapezoid(half_t, half_y)) / turned
+        tol = ZONE_ENERGY_FLOOR + 3.0 * abs(_trapezoid(tt, yy) - _trapezoid(half_t, half_y)) / turned
         out.append(Check(
             f"first law of the liquid zone of vessel '{name}'",
             "|change of U_l - integral of streams, heat, transfers and work| / energy "
