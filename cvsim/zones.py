@@ -233,11 +233,10 @@ class ZonedVessel:
         return m_l, m_l * liq.u
 
     def check_initial(self, state) -> None:
-        if state.phase in ("liquid", "supercritical"):
-            raise StateError(f"separated zones need a vapour space and a pressure below the "
-                             f"critical point; the initial contents are {state.phase}: give "
-                             "liquid_fraction below 100 % or use the equilibrium model",
-                             where=f"vessel '{self.name}'", time=0.0)
+        if state.phase == "liquid":
+            raise StateError("separated zones need a vapour space; the initial contents are "
+                             "liquid: give liquid_fraction below 100 % or use the "
+                             "equilibrium model", where=f"vessel '{self.name}'", time=0.0)
 
     # ------------------------------------------------------------ state
     def state(self, m: float, U: float, m_l: float, U_l: float) -> ZonedState:
