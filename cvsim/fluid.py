@@ -428,6 +428,56 @@ class RealFluid:
             raise err
         return self._read()
 
+    def pressure_derivatives(self, st: State) -> tuple[float, float]:
+        """Slopes of the pressure at a state: ((dp/drho) at constant u [m2/s2],
+        (dp/du) at constant rho [kg/m3]).
+
+        Single phase: CoolProp's partial derivatives of the equation of state. Two
+        phases (equilibrium, p = p_sat(T)): with the Clapeyron slope
+        p' = (h_v - h_l)/(T (v_v - v_l)), the equilibrium slope c_eq = (du/dT) at
+        constant density (:meth:`_two_phase_slope`) and
+        (du/drho)_T = -(u_v - u_l)/(rho^2 (v_v - v_l)) of the lever rule:
+
+            (dp/du)_rho = p'/c_eq,   (dp/drho)_u = -p' (du/drho)_T / c_eq
+
+        (Clapeyron: e.g. Cengel & Boles, 9th ed., sec. 12-3). ``rho (dp/drho)_u +
+        (p/rho)(dp/du)_rho`` is rho c^2, the isentropic stiffness, in both regions.
+        """
+        if st.two_phase:
+            b = self._sat
+            self.evaluations += 1
+            b.update(self._QT, 0.0, st.T)
+            L, V = b.saturated_liquid_keyed_output, b.saturated_vapor_keyed_output
+            iH = self._CP.iHmass
+            dv = 1.0 / V(self._iD) - 1.0 / L(self._iD)
+            slope_p = (V(iH) - L(iH)) / (st.T * dv)
+            c_eq = self._two_phase_slope(st.rho, st.T, "u")
+            du_drho = -(V(self._iU) - L(self._iU)) / (st.rho * st.rho * dv)
+            return -slope_p * du_drho / c_eq, slope_p / c_eq
+        self._update_dt(st.rho, st.T)
+        a, CP = self._as, self._CP
+        return (a.first_partial_deriv(CP.iP, CP.iDmass, CP.iUmass),
+                a.first_partial_deriv(CP.iP, CP.iUmass, CP.iDmass))
+
+    def saturation_at_p(self, p: float) -> tuple[State, State]:
+        """(saturated liquid, saturated vapour) at pressure p [Pa] from one saturation
+        evaluation (below the critical pressure)."""
+        b = self._sat
+        self.evaluations += 1
+        try:
+            b.update(self._PQ, p, 0.0)
+        except ValueError as exc:
+            raise StateError(f"{self.name} saturation state failed at p = {p:.6g} Pa: "
+                             f"{exc}") from None
+        out = []
+        for side, x in ((b.saturated_liquid_keyed_output, 0.0),
+                        (b.saturated_vapor_keyed_output, 1.0)):
+            rho = side(self._iD)
+            out.append(State(rho, b.T(), p, side(self._iU), side(self._CP.iHmass),
+                             side(self._iS), NAN, NAN, NAN, x,
+                             "liquid" if x == 0.0 else "gas", 1.0 - x))
+        return out[0], out[1]
+
     def ideal_gas_gamma(self, rho: float, T: float) -> float:
         """Ideal-gas heat-capacity ratio cp0/(cp0 - R) at temperature T [K] [-].
 

@@ -182,12 +182,38 @@ class VesselLimits:
 
 
 @dataclass(frozen=True)
+class SeparatedZones:
+    """Vapour and liquid held as two zones at their own temperatures (one pressure),
+    with heat and mass moving between them (:mod:`cvsim.zones`).
+
+    droplet_diameter   [m] condensate drops in the vapour zone, which settle into the
+                       liquid at their Stokes velocity (rain-out)
+    bubble_rise_coefficient  [-] C of the bubble rise velocity
+                       C (g sigma (rho_l - rho_v)/rho_l^2)^(1/4) that carries vapour
+                       formed in the liquid to the vapour zone (boil-off)
+    interface_factor   [-] multiplies the natural-convection coefficients across the
+                       interface (1: the correlations as published)
+    boiling_surface_constant  [-] C_sf of Rohsenow's nucleate-boiling correlation on
+                       the wetted wall
+    boiling_prandtl_exponent  [-] n of the same correlation
+    """
+
+    droplet_diameter: float = 20e-6
+    bubble_rise_coefficient: float = 1.53
+    interface_factor: float = 1.0
+    boiling_surface_constant: float = 0.013
+    boiling_prandtl_exponent: float = 1.7
+
+
+@dataclass(frozen=True)
 class Vessel:
     name: str
     geometry: Geometry
     initial: InitialState
     heat: tuple[HeatTerm, ...] = ()
     limits: VesselLimits | None = None
+    #: ``None``: one equilibrium state (the default); else separated zones
+    zones: SeparatedZones | None = None
 
     @property
     def volume(self) -> float:
@@ -446,6 +472,6 @@ class Network:
 __all__ = [
     "AmbientExchange", "BurstingDisc", "CheckValve", "Constant", "ControlValve", "Device",
     "FixedFlow", "FluidSpec", "Geometry", "HeatLoad", "HeatTerm", "InitialState", "Link",
-    "Network", "Orifice", "ReliefValve", "Reservoir", "RunSettings", "Sequence",
-    "RuptureLimit", "StopCondition", "Vessel", "VesselLimits",
+    "Network", "Orifice", "ReliefValve", "Reservoir", "RunSettings", "RuptureLimit",
+    "SeparatedZones", "Sequence", "StopCondition", "Vessel", "VesselLimits",
 ]

@@ -211,7 +211,10 @@ class _View:
         out = {v: [] for v in self.vessels}
         by_length = sorted(self.vessels, key=len, reverse=True)
         for name in names:
-            if self.result.unit(name) != "K" or name.endswith(".source_temperature"):
+            if (self.result.unit(name) != "K" or name.endswith(".source_temperature")
+                    or name.endswith(".contents_temperature")
+                    or name.endswith(".vapour_temperature")   # the gas line itself
+                    or "wetted.node" in name):   # wall parts: inner and outer shown
                 continue
             owner = next((v for v in by_length if name.startswith(v + ".")), None)
             if (owner is not None and name != f"{owner}.temperature"

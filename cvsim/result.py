@@ -20,6 +20,7 @@ from .model import ACC_PER_LINK, Model
 from .network import Network
 from .rupture import add_rupture
 from .solve import RawRun
+from .zones import run_figures as zone_figures
 
 CAUTION = ("Screening estimate - verify against the governing codes (e.g. ASME Section VIII, "
            "API 520/521, ISO 4126, ISO 23251, local regulations) and have it reviewed by a "
@@ -189,6 +190,7 @@ class Result:
                 d["min_vapour_quality"] = float(np.nanmin(q))
             d.update(self.contents.get(n, {}))
             d.update(self.rupture.get(n, {}))
+            d.update(zone_figures(self, n))
             out["vessels"][n] = d
         for link in self.network.links:
             n = link.name
@@ -239,6 +241,7 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
     totals, balance = _balances(model, raw)
     figures, warnings = _device_reports(model, raw)
     warnings = [w for _, term in model.heat_terms for w in term.warnings()] + warnings
+    warnings += [w for zv in model.zoned.values() for w in zv.warnings()]
     warnings = list(getattr(raw, "warnings", ())) + warnings  # the solver's (recording)
     result = Result(network=model.network, status=raw.status, message=raw.message,
                     columns=cols, data=data, fine_data=fine, events=list(raw.events),
@@ -381,7 +384,9 @@ def assumptions(model: Model) -> list[str]:
         out.append(f"Fluid properties: {f.name} as an ideal gas with constant heat capacities "
                    f"(M = {fl.molar_mass * 1000:.4f} g/mol, cp = {fl.cp:.1f} J/(kg K), "
                    f"gamma = {fl.gamma:.4f}).")
-    out.append("Vessels are rigid and their contents well mixed (one uniform state per vessel).")
+    out.append("Vessels are rigid and their contents well mixed (one uniform state per vessel"
+               + ("; vessels held as separated zones: one state per zone" if model.zoned else "")
+               + ").")
     out.append("A stream leaving a vessel carries the specific enthalpy of what it draws: the "
                "vessel's contents while single phase; with two phases present, saturated "
                "vapour"
@@ -424,4 +429,5 @@ def assumptions(model: Model) -> list[str]:
             out.append("Heat terms as stated per vessel; no wall heat capacity unless a wall "
                        "is modelled.")
         out += [a for term in terms for a in term.assumptions()]
+    out += [a for zv in model.zoned.values() for a in zv.assumptions()]
     return out
