@@ -222,7 +222,9 @@ class ValveController:
         return cols
 
     def values(self, t, y, snap, segment) -> list[float]:
-        row = [self.output(t, y, snap, segment), segment.signal(self.d.set_point, t),
+        done = self.fill is not None and self.finished(segment.discrete)
+        row = [self.output(t, y, snap, segment),
+               math.nan if done else segment.signal(self.d.set_point, t),
                self.measured(t, y, snap)]
         if self.fill is not None:
             row.append(snap.states[self.receiver].rho / self.fill.reference_density)

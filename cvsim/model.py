@@ -153,6 +153,8 @@ class Model:
         self.controllers += self.valve_controllers
         self.gates: list[tuple[str, int] | None] = [None] * len(self.links)
         for c in self.controllers:
+            if c.kind != "sequence":
+                continue
             for j, k in enumerate(c.links):
                 self.gates[k] = (c.key, j)
         self.initial_events: list[tuple[float, str]] = []
