@@ -19,9 +19,10 @@ fluid object and formulas written independently of the model's right-hand side:
   points and steps. The tolerance is three times the Richardson estimate of the
   quadrature error (the rule on every second point against the rule on all) plus
   1e-6 of the energy turned over;
-* **entropy produced** by every passive link (orifices and valves: adiabatic
+* **entropy produced** by every passive link (orifices, valves, lines: adiabatic
   throttling, Gibbs's inequality) at every recorded point,
-  sigma = |mdot| (s(p_down, h_up) - s_up) >= 0, and by every heat term that states
+  sigma = |mdot| (s(p_down, h_up - g dz) - s_up) >= 0 (dz: the rise of a line in the
+  direction of flow; 0 for other devices), and by every heat term that states
   where its heat comes from, sigma = Q (1/T_contents - 1/T_source) >= 0 (Clausius).
   Forced flows (compressors, pumps) add work and are not checked this way.
 

@@ -205,32 +205,37 @@ class LineDevice(Device):
         else:
             required, hi = self._gas_setup(up, p_down, order, kv)
         p_up = up.p
+        seen = [None, False]   # last flow evaluated and whether it choked
 
         def F(m):
-            return required(m)[0] - p_up
+            p, choked = required(m)
+            seen[0], seen[1] = m, choked
+            return p - p_up
 
-        lo, f_lo = 0.0, p_down - p_up
-        f_hi = F(hi)
-        while f_hi < 0.0:   # round-off at the bound: widen it
-            hi *= 1.0 + 1e-9
-            f_hi = F(hi)
+        lo, f_lo, f_hi = 0.0, p_down - p_up, None
         last = self._last[direction]
-        if last is not None and lo < last < hi:
-            a, b = last * (1.0 - WARM_BRACKET), last * (1.0 + WARM_BRACKET)
+        if last is not None and 0.0 < last < hi:   # warm start: a tight bracket
+            a = last * (1.0 - WARM_BRACKET)
             fa = F(a)
             if fa > 0.0:
                 hi, f_hi = a, fa
             else:
                 lo, f_lo = a, fa
+                b = last * (1.0 + WARM_BRACKET)
                 if b < hi:
                     fb = F(b)
                     if fb >= 0.0:
                         hi, f_hi = b, fb
                     else:
                         lo, f_lo = b, fb
+        if f_hi is None:
+            f_hi = F(hi)
+            while f_hi < 0.0:   # round-off at the bound: widen it
+                hi *= 1.0 + 1e-9
+                f_hi = F(hi)
         m = root_on_bracket(F, lo, hi, f_lo, f_hi, LINE_RTOL * p_up)
         self._last[direction] = m
-        return m, required(m)[1]
+        return m, (seen[1] if seen[0] == m else required(m)[1])
 
     # ------------------------------------------------------------ gas
     def _gas_setup(self, up, p_down, order, kv):

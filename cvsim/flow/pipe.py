@@ -152,17 +152,32 @@ def exit_mach(G: float, p: float, k: float, theta: float) -> float:
 def isentropic_mach(G: float, p0: float, k: float, theta: float) -> float:
     """Subsonic Mach number [-] at which the isentropic mass flux from stagnation
     pressure p0 [Pa] equals G: G = p0 sqrt(k/theta) M (1 + (k-1)/2 M^2)^(-(k+1)/(2(k-1))).
-    Returns 1 when G is at or above the choked flux."""
+    Returns 1 when G is at or above the choked flux.
+
+    The flux function phi(M) is increasing and concave on (0, 1), and phi(M) <= M, so
+    Newton's method from M = phi climbs monotonically to the root; it is converged on
+    the residual (bisection takes over should the derivative vanish near M = 1).
+    """
     target = G * math.sqrt(theta / k) / p0
+    a = 0.5 * (k - 1.0)
     n = (k + 1.0) / (2.0 * (k - 1.0))
-
-    def phi(M):
-        return M * (1.0 + 0.5 * (k - 1.0) * M * M) ** (-n) - target
-
-    f_hi = phi(1.0)
-    if f_hi <= 0.0:
+    if target >= (1.0 + a) ** -n:
         return 1.0
-    return root_on_bracket(phi, 0.0, 1.0, -target, f_hi, INNER_RTOL * target + 1e-300)
+    tol = INNER_RTOL * target
+    M = target
+    for _ in range(60):
+        q = 1.0 + a * M * M
+        f = M * q ** -n - target
+        if abs(f) <= tol:
+            return M
+        M_new = M - f / (q ** (-n - 1.0) * (1.0 - M * M))
+        if not M < M_new < 1.0:
+            break
+        M = M_new
+
+    def phi(x):
+        return x * (1.0 + a * x * x) ** -n - target
+    return root_on_bracket(phi, M, 1.0, phi(M), phi(1.0), tol + 1e-300)
 
 
 # -------------------------------------------------------- backward steps, gas
