@@ -1,7 +1,5 @@
 """Regulators, controllers and fills: exact solutions, settling within a stated band,
 published values of the trade, the scenario keys."""
-import math
-
 import numpy as np
 import pytest
 from scipy.linalg import expm

@@ -228,7 +228,8 @@ FILL = Section(
               "maximum operating pressure)."),
         Field("temperature_limit", Quantity("temperature"),
               "The fill ends when the receiver's gas reaches this (85 degC: the usual limit "
-              "of vehicle cylinders, SAE J2601 and UN GTR No. 13).", default="85 degC"),
+              "of vehicle cylinders, SAE J2601 and UN GTR No. 13).",
+              default=f"{GAS_TEMPERATURE_LIMIT - 273.15:g} degC"),
         Field("state_of_charge", Quantity("fraction", above=0.0, at_most=1.5),
               "The fill ends when the state of charge reaches this.", default="100 %"),
         Field("gain", PerQuantity("pressure"), "Proportional gain Kc on the pressure error, "
