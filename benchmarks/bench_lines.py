@@ -92,7 +92,7 @@ def main():
           f"{'to 10 bar a [s]':>15} {'min T [degC]':>12}")
     base = None
     for name, device in CASES.items():
-        wall, res = best_of(3, lambda: run_network(network(device)))
+        wall, res = best_of(5, lambda: run_network(network(device)))
         st = res.stats
         tmin, _ = res.extreme("receiver.temperature", "min")
         cost = flow_call_cost(device)
