@@ -12,7 +12,7 @@ fluid object and formulas written independently of the model's right-hand side:
 * **first law of every vessel, recomputed**: the change of its internal energy
   against the time integral of the enthalpy streams and heat, where each stream's
   specific enthalpy is recomputed from the recorded state of the node it leaves
-  (vapour or liquid at the saturation pressure when two phases are present, the
+  (what the outlet draws at the saturation pressure when two phases are present, the
   node's own state otherwise; a forced flow with a delivery temperature brings
   h(p, T_delivery); a line with an elevation change delivers it with g dz less, the
   potential energy given up) and integrated by the trapezoidal rule over the recorded
@@ -42,6 +42,7 @@ from dataclasses import asdict, dataclass
 import numpy as np
 
 from .errors import StateError
+from .outlets import drawn_quality
 
 #: largest relative state residual accepted at a recorded point (the state solve
 #: itself guarantees 1e-10 and usually 1e-13)
@@ -123,9 +124,11 @@ class _Histories:
         T = self.col(f"{node}.temperature")[i]
         if node in self.vessels:
             q = self.col(f"{node}.vapour_quality")[i]
-            if q == q:  # two phases present
-                st = (f.saturated_liquid_at_p(p) if draws == "liquid"
-                      else f.saturated_vapour_at_p(p))
+            if q == q:  # two phases present: what the outlet draws, from the recorded
+                # quality and liquid share (the rule of cvsim.outlets)
+                x = drawn_quality(draws, q, self.col(f"{node}.liquid_fraction")[i])
+                st = f.two_phase_at_p(p, x) if 0.0 < x < 1.0 else (
+                    f.saturated_vapour_at_p(p) if x == 1.0 else f.saturated_liquid_at_p(p))
             else:
                 rho = self.col(f"{node}.mass")[i] / self.vessels[node].volume
                 st = f.state_dt(rho, T)

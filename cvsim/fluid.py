@@ -22,6 +22,7 @@ import difflib
 import math
 
 from .errors import FluidError, StateError
+from .numerics import root_on_bracket
 
 R_UNIVERSAL = 8.314462618  # [J/(mol K)] CODATA 2018 (exact since the 2019 SI)
 
@@ -36,41 +37,6 @@ STATE_RTOL = 1e-13
 #: shrunk to adjacent floating-point temperatures), a residual up to this is accepted
 STATE_RTOL_FLOOR = 1e-10
 MAX_STATE_ITERATIONS = 100
-
-
-def root_on_bracket(fn, lo: float, hi: float, f_lo: float, f_hi: float, tol: float,
-                    max_iter: int = MAX_STATE_ITERATIONS) -> float:
-    """Root of a continuous function on a bracket [lo, hi] with f_lo <= 0 <= f_hi,
-    by false position with the Illinois modification (Dowell & Jarratt, BIT 11
-    (1971) 168), stopped on the residual |fn(x)| <= tol; when the bracket shrinks to
-    machine precision first, its midpoint (the residual is then round-off of fn).
-    """
-    if abs(f_lo) <= tol:
-        return lo
-    if abs(f_hi) <= tol:
-        return hi
-    last = 0
-    x = 0.5 * (lo + hi)
-    for _ in range(max_iter):
-        x = lo - f_lo * (hi - lo) / (f_hi - f_lo)
-        if not (lo < x < hi):
-            x = 0.5 * (lo + hi)
-        f = fn(x)
-        if abs(f) <= tol:
-            return x
-        if f > 0.0:
-            hi, f_hi = x, f
-            if last == 1:
-                f_lo *= 0.5
-            last = 1
-        else:
-            lo, f_lo = x, f
-            if last == -1:
-                f_hi *= 0.5
-            last = -1
-        if hi - lo <= 4e-16 * max(abs(hi), abs(lo)):
-            break
-    return x
 
 
 class State:
@@ -547,7 +513,13 @@ class RealFluid:
         f_lo, f_hi = sl(lo), sl(hi)
         if f_lo > 0.0 or f_hi < 0.0:
             return None
-        return root_on_bracket(sl, lo, hi, f_lo, f_hi, self._tolerance(s, "s"))
+        return root_on_bracket(sl, lo, hi, f_lo, f_hi, self._tolerance(s, "s"),
+                               MAX_STATE_ITERATIONS)
+
+    def two_phase_at_p(self, p: float, quality: float) -> State:
+        """Equilibrium mixture of vapour mass fraction ``quality`` [-] (0..1) at
+        pressure p [Pa] below the critical pressure."""
+        return self._saturated(p, quality)
 
     def _saturated(self, p: float, quality: float) -> State:
         self.evaluations += 1
@@ -559,9 +531,15 @@ class RealFluid:
         a = self._as
         # on the saturation line cp and the speed of sound are those of a phase
         # boundary; report them as undefined, like the two-phase states
+        if quality == 0.0:
+            phase, lf = "liquid", 1.0
+        elif quality == 1.0:
+            phase, lf = "gas", 0.0
+        else:
+            phase = "two-phase"
+            lf = (1.0 - quality) * a.rhomass() / a.saturated_liquid_keyed_output(self._iD)
         return State(a.rhomass(), a.T(), a.p(), a.umass(), a.hmass(), a.smass(),
-                     NAN, a.cvmass(), NAN, quality, "liquid" if quality == 0.0 else "gas",
-                     1.0 if quality == 0.0 else 0.0)
+                     NAN, a.cvmass(), NAN, quality, phase, lf)
 
 
 class IdealGas:

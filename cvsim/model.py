@@ -21,7 +21,8 @@ with dV/dt = 0 for the rigid vessels built here (the term stays in the
 equations so that a moving boundary can be added). The thermodynamic state
 follows from the density m/V and the specific internal energy U/m through the
 fluid layer. A stream leaving a vessel carries the vessel's specific enthalpy;
-when two phases are present the outlet draws vapour (top outlet).
+when two phases are present a top outlet draws vapour and a bottom outlet liquid,
+and either draws the mixture as the level reaches it (:mod:`cvsim.outlets`).
 
 The model is split by time: :meth:`Model.segment` prepares a
 :class:`Segment` for one stretch between breakpoints with the discrete states
@@ -54,6 +55,7 @@ from .flow.orifice import OrificeDevice
 from .flow.regulator import RegulatorDevice
 from .flow.relief import ReliefValveDevice
 from .fluid import make_fluid
+from .outlets import drawn_state
 from .heat.definitions import GasFire, Wall
 from .heat.loads import AmbientExchangeTerm, HeatLoadTerm
 from .heat.walls import GasFireTerm, WallTerm
@@ -444,14 +446,13 @@ class Segment:
                 raise StateError(exc.detail, where=f"vessel '{v.name}'", time=t) from None
             v.T_hint = st.T
             states.append(st)
-            if st.two_phase:
-                outflow.append(fluid.saturated_vapour_at_p(st.p))
-            else:
-                outflow.append(st)
+            try:
+                outflow.append(drawn_state(fluid, st, "vapour"))
+            except StateError as exc:
+                raise StateError(exc.detail, where=f"vessel '{v.name}'", time=t) from None
         liquid = None
         if m.draws_liquid:
-            liquid = [fluid.saturated_liquid_at_p(st.p) if st.two_phase else st
-                      for st in states]
+            liquid = [drawn_state(fluid, st, "liquid") for st in states]
         for r in m.reservoirs:
             p = self.signal(r.pressure, t)
             T = self.signal(r.temperature, t)
@@ -505,7 +506,8 @@ class Segment:
         try:
             return self._rhs(t, y)
         except StateError as exc:
-            self.last_error = exc
+            if self.last_error is None:  # the first error of a step is the cause
+                self.last_error = exc
             return np.full(self.model.n_states, np.nan)
 
     def _rhs(self, t: float, y: np.ndarray) -> np.ndarray:
@@ -644,7 +646,8 @@ def _quantity_event(seg: Segment, node: int, quantity: str, value: float):
         try:
             st = seg.states(t, y).states[node]
         except StateError as exc:
-            seg.last_error = exc
+            if seg.last_error is None:
+                seg.last_error = exc
             return math.nan
         return (st.p if quantity == "pressure" else st.T) - value
     return g
@@ -655,6 +658,7 @@ def _switch_event(seg: Segment, sw):
         try:
             return sw.function(t, seg.states(t, y))
         except StateError as exc:
-            seg.last_error = exc
+            if seg.last_error is None:
+                seg.last_error = exc
             return math.nan
     return g

@@ -109,6 +109,45 @@ class InitialState:
 
 
 @dataclass(frozen=True)
+class RuptureLimit:
+    """Rupture screening of a vessel's wall in a fire (:mod:`cvsim.rupture`).
+
+    strength             how the metal's strength falls with temperature
+                         (:class:`cvsim.mechanics.StrengthData`)
+    criterion            ``tensile`` (ultimate tensile strength at temperature) or
+                         ``yield`` (yield strength at temperature)
+    fraction             [-] share of that strength the stress may reach
+    tensile_strength     [Pa] room-temperature ultimate tensile strength (``None``:
+                         not given)
+    yield_strength       [Pa] room-temperature yield strength (``None``: not given)
+    stress               ``hoop`` (the larger membrane stress) or ``equivalent``
+                         (von Mises of the membrane stresses)
+    corrosion_allowance  [m] taken off the load-bearing layer, on its inside
+    layer                index (0: innermost) of the wall layer that bears the pressure
+    creep                ``None`` or (Larson-Miller constant C [-], the master curve's
+                         parameters P [K], its rupture stresses [Pa]): creep damage by
+                         life fractions (:func:`cvsim.mechanics.creep_damage`)
+    key                  key path in the scenario, for messages
+    """
+
+    strength: object
+    criterion: str = "tensile"
+    fraction: float = 1.0
+    tensile_strength: float | None = None
+    yield_strength: float | None = None
+    stress: str = "hoop"
+    corrosion_allowance: float = 0.0
+    layer: int = 0
+    creep: tuple | None = None
+    key: str = ""
+
+    @property
+    def room_strength(self) -> float:
+        """[Pa] the room-temperature strength the criterion scales."""
+        return self.tensile_strength if self.criterion == "tensile" else self.yield_strength
+
+
+@dataclass(frozen=True)
 class VesselLimits:
     """Design limits of a vessel, checked after the run (``None``: not checked).
 
@@ -127,6 +166,7 @@ class VesselLimits:
     depressure_start       [s] when depressuring starts; ``None``: found from the run
                            (the last pressure peak before the target,
                            :func:`cvsim.limits.depressuring_start`)
+    rupture                rupture screening of the wall in a fire, or ``None``
     """
 
     design_pressure: float | None = None
@@ -138,6 +178,7 @@ class VesselLimits:
     depressure_within: float | None = None
     depressure_basis: str = ""
     depressure_start: float | None = None
+    rupture: RuptureLimit | None = None
 
 
 @dataclass(frozen=True)
@@ -551,6 +592,6 @@ __all__ = [
     "AmbientExchange", "BurstingDisc", "CheckValve", "Constant", "ControlValve", "Controller",
     "Device", "Fill", "FixedFlow", "FluidSpec", "Geometry", "HeatLoad", "HeatTerm",
     "InitialState", "Line", "LineOrifice", "Link", "Network", "Orifice", "Regulator",
-    "ReliefValve", "Reservoir", "RunSettings", "Sequence",
+    "ReliefValve", "Reservoir", "RunSettings", "RuptureLimit", "Sequence",
     "StopCondition", "Vessel", "VesselLimits",
 ]

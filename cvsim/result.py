@@ -18,6 +18,7 @@ from .flow.exponent import EXPONENT_ASSUMPTION
 from .limits import check_vessel, first_time_at_or_below
 from .model import ACC_PER_LINK, Model
 from .network import Network
+from .rupture import add_rupture
 from .solve import RawRun
 
 CAUTION = ("Screening estimate - verify against the governing codes (e.g. ASME Section VIII, "
@@ -44,6 +45,7 @@ class Result:
     device_figures: dict = field(default_factory=dict)  # per link: figures of its device
     checks: list = field(default_factory=list)      # self-checks (cvsim.checks.Check)
     contents: dict = field(default_factory=dict)  # per vessel: phase, liquid share, level
+    rupture: dict = field(default_factory=dict)   # per vessel: rupture screening figures
 
     @property
     def checks_failed(self) -> list:
@@ -158,7 +160,6 @@ class Result:
             "self_checks_failed": len(self.checks_failed),
             "solver": self.stats,
             "assumptions": self.assumptions,
-            "warnings": self.warnings,
             "provenance": self.provenance,
             "caution": CAUTION,
         }
@@ -187,6 +188,7 @@ class Result:
                 d["two_phase_from_s"] = float(t_all[first])
                 d["min_vapour_quality"] = float(np.nanmin(q))
             d.update(self.contents.get(n, {}))
+            d.update(self.rupture.get(n, {}))
             out["vessels"][n] = d
         for link in self.network.links:
             n = link.name
@@ -237,6 +239,7 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
     totals, balance = _balances(model, raw)
     figures, warnings = _device_reports(model, raw)
     warnings = [w for _, term in model.heat_terms for w in term.warnings()] + warnings
+    warnings = list(getattr(raw, "warnings", ())) + warnings  # the solver's (recording)
     result = Result(network=model.network, status=raw.status, message=raw.message,
                     columns=cols, data=data, fine_data=fine, events=list(raw.events),
                     stats=dict(raw.stats), totals=totals, balance=balance,
@@ -244,6 +247,7 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
                     warnings=warnings, device_figures=figures)
     _add_reviews(model, result)
     result.limits = check_limits(result)
+    add_rupture(result)
     result.contents, liquid_full = run_figures(model, result)
     result.warnings += liquid_full
     result.checks = self_checks(result)
@@ -406,7 +410,9 @@ def assumptions(model: Model) -> list[str]:
                "vapour"
                + (" (saturated liquid through links that draw liquid: "
                   + ", ".join(k.name for k in net.links if k.draws == "liquid") + ")"
-                  if any(k.draws == "liquid" for k in net.links) else "") + ".")
+                  if any(k.draws == "liquid" for k in net.links) else "")
+               + "; an outlet draws the mixture itself as the level comes within 2 % of the "
+               "volume of it (a regularisation, common practice, no source: cvsim.outlets).")
     kinds = {type(link.device).__name__ for link in net.links}
     if "Orifice" in kinds:
         models = sorted({link.device.flow_model for link in net.links

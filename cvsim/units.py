@@ -96,6 +96,7 @@ DIMENSIONS: dict[str, Dimension] = {d.name: d for d in (
     Dimension("pressure_rate", "a pressure-rise rate", "Pa/s", "Pa/s", "MPa/min",
               "Pa/s, kPa/s, bar/s, bar/min, MPa/min, psi/s"),
     Dimension("viscosity", "a dynamic viscosity", "Pa*s", "Pa s", "cP", "Pa s, mPa s, cP"),
+    Dimension("stress", "a stress", "Pa", "Pa", "MPa", "MPa, N/mm2, kPa, Pa, ksi, psi"),
     Dimension("dimensionless", "a plain number", "", "-", "", "a plain number"),
     Dimension("fraction", "a fraction", "", "-", "%", "a plain number (0.07) or a percentage (7 %)"),
 )}
@@ -307,6 +308,9 @@ def read_quantity(text: str | float | int, dimension: str, *,
     value = float(quantity.to(target).magnitude)
 
     note = ""
+    if reference is not None and dim.name == "stress":
+        raise UnitsError(f"{_quote(text)}: a stress has no gauge or absolute reference; "
+                         f"write it in MPa, N/mm2, ksi or psi")
     if reference == "gauge":
         value += atmosphere
         note = f"gauge: atmosphere {atmosphere:.6g} Pa added"

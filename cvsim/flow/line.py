@@ -11,7 +11,7 @@ inlet; the flow is the root of
 
 which rises continuously and monotonically with m whether an element is choked or not.
 It is found by false position with the Illinois modification
-(:func:`cvsim.fluid.root_on_bracket`) on the residual |F| <= 1e-13 p_up, warm-started
+(:func:`cvsim.numerics.root_on_bracket`) on the residual |F| <= 1e-13 p_up, warm-started
 from the last flow through the line, between 0 and the smallest choked capacity of an
 element at the upstream pressure (an upper bound of the flow).
 
@@ -36,7 +36,7 @@ from __future__ import annotations
 import math
 
 from ..errors import StateError
-from ..fluid import root_on_bracket
+from ..numerics import root_on_bracket
 from .base import NO_FLOW, Device, Flow
 from .control_valve import N6_SI, GAMMA_AIR, relative_flow_coefficient
 from .exponent import EXPONENT_ASSUMPTION, perfect_gas_exponent

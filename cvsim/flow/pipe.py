@@ -44,7 +44,7 @@ from __future__ import annotations
 
 import math
 
-from ..fluid import root_on_bracket
+from ..numerics import root_on_bracket
 from .control_valve import N6_SI, GAMMA_AIR
 
 #: relative residual tolerance of the inner solves (Mach number, pressure ratio)

@@ -250,7 +250,7 @@ def build_vessel(name: str, values, ctx) -> Vessel:
                   for key, kind in HEAT_TERMS.items() if heat.get(key) is not None)
     return Vessel(name=name, geometry=geometry,
                   initial=build_initial(initial, values.where["initial"], ctx), heat=terms,
-                  limits=build_limits(values["limits"], ctx))
+                  limits=build_limits(values["limits"], ctx, terms))
 
 
 def build_reservoir(name: str, values, ctx) -> Reservoir:
