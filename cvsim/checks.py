@@ -23,13 +23,15 @@ fluid object and formulas written independently of the model's right-hand side:
   specific enthalpy is recomputed from the recorded state of the node it leaves
   (what the outlet draws at the saturation pressure when two phases are present, the
   node's own state otherwise; a forced flow with a delivery temperature brings
-  h(p, T_delivery)) and integrated by the trapezoidal rule over the recorded
+  h(p, T_delivery); a line with an elevation change delivers it with g dz less, the
+  potential energy given up) and integrated by the trapezoidal rule over the recorded
   points and steps. The tolerance is three times the Richardson estimate of the
   quadrature error (the rule on every second point against the rule on all) plus
   1e-6 of the energy turned over;
-* **entropy produced** by every passive link (orifices and valves: adiabatic
+* **entropy produced** by every passive link (orifices, valves, lines: adiabatic
   throttling, Gibbs's inequality) at every recorded point,
-  sigma = |mdot| (s(p_down, h_up) - s_up) >= 0, and by every heat term that states
+  sigma = |mdot| (s(p_down, h_up - g dz) - s_up) >= 0 (dz: the rise of a line in the
+  direction of flow; 0 for other devices), and by every heat term that states
   where its heat comes from, sigma = Q (1/T_contents - 1/T_source) >= 0 (Clausius).
   Forced flows (compressors, pumps) add work and are not checked this way.
 
@@ -269,13 +271,14 @@ def _stream_rates(h: _Histories, vessel: str) -> np.ndarray:
         mdot = h.col(f"{link.name}.mass_flow")
         delivery = (link.device.delivery_temperature
                     if isinstance(link.device, FixedFlow) else None)
+        g_dz = _g_dz(link)
         for i in range(n):
             md = mdot[i]
             if md == 0.0 or md != md:
                 continue
             if md > 0.0:
                 h_up, _, _ = h.drawn(link.source, link.draws, i)
-                h_in = h_up
+                h_in = h_up - g_dz
                 if delivery is not None:
                     p_to = h.col(f"{link.target}.pressure")[i]
                     h_in = h.fluid.state_pt(p_to, delivery).h
@@ -288,8 +291,15 @@ def _stream_rates(h: _Histories, vessel: str) -> np.ndarray:
                 if link.target == vessel:
                     rate[i] += md * h_up      # md < 0: out of the target
                 if link.source == vessel:
-                    rate[i] -= md * h_up      # into the source
+                    rate[i] -= md * (h_up + g_dz)   # into the source
     return rate
+
+
+def _g_dz(link) -> float:
+    """g times the rise [J/kg] from the ``from`` to the ``to`` end of a link (lines with
+    an elevation change; 0 for every other device)."""
+    from .flow.line import GRAVITY
+    return GRAVITY * getattr(link.device, "elevation_change", 0.0)
 
 
 def _trapezoid(t: np.ndarray, y: np.ndarray) -> float:
@@ -423,6 +433,7 @@ def link_entropy(h: _Histories) -> list[Check]:
         if isinstance(link.device, FixedFlow):
             continue
         mdot = h.col(f"{link.name}.mass_flow")
+        g_dz = _g_dz(link)
         worst, at, flowing, skipped = math.inf, math.nan, 0, 0
         for i in _sample(len(h.t), ENTROPY_ROWS):
             md = mdot[i]
@@ -432,8 +443,9 @@ def link_entropy(h: _Histories) -> list[Check]:
                                (link.target, link.source, "vapour"))
             h_up, s_up, _ = h.drawn(up, draws, i)
             p_down = h.col(f"{down}.pressure")[i]
+            h_down = h_up - (g_dz if md > 0.0 else -g_dz)
             try:
-                s_down = h.fluid.state_ph(p_down, h_up).s
+                s_down = h.fluid.state_ph(p_down, h_down).s
             except StateError:
                 skipped += 1
                 continue

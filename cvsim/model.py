@@ -33,7 +33,10 @@ it, and starts a new segment at every breakpoint and switch.
 
 Controllers (sequences of links opened one after another) own discrete states
 too; a link that belongs to a sequence passes flow only while its step is
-active (:attr:`Model.gates`).
+active (:attr:`Model.gates`). Valve controllers (:mod:`cvsim.control`) own
+states of the ODE as well (a PI integral, a measurement filter), placed after
+the heat terms' states; the travel they set is read by the valve they move
+through :meth:`Segment.driven_opening`.
 """
 from __future__ import annotations
 
@@ -47,8 +50,11 @@ from .errors import StateError
 from .flow.base import NO_FLOW, Flow
 from .flow.control_valve import ControlValveDevice
 from .flow.disc import BurstingDiscDevice, CheckValveDevice
+from .control import ValveController
 from .flow.fixed import FixedFlowDevice
+from .flow.line import LineDevice
 from .flow.orifice import OrificeDevice
+from .flow.regulator import RegulatorDevice
 from .flow.relief import ReliefValveDevice
 from .fluid import make_fluid
 from .outlets import drawn_state
@@ -68,6 +74,8 @@ DEVICE_TYPES = {
     nw.ReliefValve: ReliefValveDevice,
     nw.BurstingDisc: BurstingDiscDevice,
     nw.CheckValve: CheckValveDevice,
+    nw.Line: LineDevice,
+    nw.Regulator: RegulatorDevice,
 }
 
 #: run-time class of each heat-term definition
@@ -148,13 +156,27 @@ class Model:
                                     self.node_index[link.target]))
         for _, term in self.heat_terms:
             term.bind(self)
+        for d in self.devices:
+            d.bind(self)
 
         # controllers; gates[k] = (discrete key, step) of a link in a sequence, else None
         self.link_index = {link.name: i for i, link in enumerate(self.links)}
         self.controllers = [SequenceController(sq, i, self.link_index, self.devices)
                             for i, sq in enumerate(network.sequences)]
+        # valve controllers and their own states, after the heat terms' states
+        self.valve_controllers = [ValveController(c, i, self)
+                                  for i, c in enumerate(network.controllers)]
+        self.controller_states = (offset, offset)
+        for c in self.valve_controllers:
+            c.offset = offset
+            offset += c.n_states
+        self.controller_states = (self.controller_states[0], offset)
+        self.n_dynamic = offset
+        self.controllers += self.valve_controllers
         self.gates: list[tuple[str, int] | None] = [None] * len(self.links)
         for c in self.controllers:
+            if c.kind != "sequence":
+                continue
             for j, k in enumerate(c.links):
                 self.gates[k] = (c.key, j)
         self.initial_events: list[tuple[float, str]] = []
@@ -208,6 +230,10 @@ class Model:
         for vi, term in self.heat_terms:
             init = term.initial_states(states[vi])
             y[term.offset:term.offset + term.n_states] = init
+        if self.valve_controllers:
+            snap = Segment(self, 0.0, 0.0, {}).states(0.0, y)
+            for c in self.valve_controllers:
+                c.initial_states(snap, y)
         return y
 
     def scales(self, y0: np.ndarray) -> np.ndarray:
@@ -238,6 +264,8 @@ class Model:
             e_total += e
         for vi, term in self.heat_terms:
             sc[term.offset:term.offset + term.n_states] = term.scales()
+        for c in self.valve_controllers:
+            sc[c.offset:c.offset + c.n_states] = c.scales(p_ref)
         sc[self.i_acc_links:] = m_total
         for k in range(len(self.links)):
             j = self.i_acc_links + ACC_PER_LINK * k
@@ -251,6 +279,8 @@ class Model:
             bps.update(d.breakpoints())
         for vi, term in self.heat_terms:
             bps.update(term.breakpoints())
+        for c in self.valve_controllers:
+            bps.update(c.breakpoints())
         for r in self.reservoirs:
             bps.update(r.pressure.breakpoints)
             bps.update(r.temperature.breakpoints)
@@ -328,7 +358,7 @@ class Model:
             if d.has_opening or gate is not None:
                 cols.append((f"{link.name}.opening", "-", "link"))
         for c in self.controllers:
-            cols.append((f"{c.name}.step", "-", "sequence"))
+            cols += c.columns()
         return cols
 
     def _jacobian_groups(self) -> list[tuple[list[int], list[list[int]] | None]]:
@@ -344,7 +374,8 @@ class Model:
         (1974) 117): a wall of any number of nodes then costs three right-hand sides
         per Jacobian. Columns that change nothing (bookkeeping integrals) are left out.
         """
-        groups = [([j], None) for j in range(self.heat_states[0])]
+        groups = [([j], None) for j in range(self.heat_states[0])]   # vessels, zones
+        groups += [([j], None) for j in range(*self.controller_states)]
         declared = []
         for k, (vi, term) in enumerate(self.heat_terms):
             rows = term.jacobian_rows(2 * vi + 1, self.i_acc_heat + k)
@@ -377,13 +408,15 @@ class States:
     outlet (saturated liquid when two phases are present; ``None`` when no link
     draws liquid)."""
 
-    __slots__ = ("t", "states", "outflow", "liquid")
+    __slots__ = ("t", "states", "outflow", "liquid", "y")
 
-    def __init__(self, t, states, outflow, liquid=None):
+    def __init__(self, t, states, outflow, liquid=None, y=None):
         self.t = t
         self.states = states
         self.outflow = outflow
         self.liquid = liquid
+        #: the state vector they were made from (controllers read their own states)
+        self.y = y
 
 
 class Segment:
@@ -403,6 +436,8 @@ class Segment:
         self.last_error: StateError | None = None
         self.rhs_calls = 0
         self.jac_calls = 0
+        #: travel set by each valve controller, by link position (:meth:`flows`)
+        self.driven: dict[int, float] = {}
         n = model.n_states
         self._dydt = np.zeros(n)
         self._own_heat = model.heat_states
@@ -459,9 +494,14 @@ class Segment:
             outflow.append(st)
             if liquid is not None:
                 liquid.append(st)
-        s = States(t, states, outflow, liquid)
+        s = States(t, states, outflow, liquid, y)
         self._key, self._states = key, s
         return s
+
+    def driven_opening(self, link: int) -> float:
+        """Travel [-] the controller that moves link ``link``'s valve sets at the state
+        last evaluated by :meth:`flows`."""
+        return self.driven[link]
 
     @property
     def current_flows(self) -> list[Flow]:
@@ -474,6 +514,8 @@ class Segment:
             return s, self._flows
         flows = []
         gates = self.model.gates
+        for c in self.model.valve_controllers:
+            self.driven[c.link] = c.output(t, y, s, self)
         for d in self.model.devices:
             gate = gates[d.index]
             if gate is not None and self.discrete[gate[0]][0] != gate[1]:
@@ -540,6 +582,8 @@ class Segment:
             mdot_l, e_l = zv.liquid_rates(s.states[vi])
             dydt[zv.offset] += mdot_l
             dydt[zv.offset + 1] += e_l
+        for c in m.valve_controllers:
+            c.derivatives(t, y, s, flows, self, dydt)
         jh = m.i_acc_heat
         for k, (vi, term) in enumerate(m.heat_terms):
             own = y[term.offset:term.offset + term.n_states]
@@ -649,7 +693,7 @@ class Segment:
                 shut = gate is not None and self.discrete[gate[0]][0] != gate[1]
                 row.append(0.0 if shut else d.opening(t, s, self))
         for c in m.controllers:
-            row.append(c.observe(self.discrete))
+            row += c.values(t, y, s, self)
         return row
 
 

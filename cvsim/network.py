@@ -282,7 +282,8 @@ class ControlValve:
     kv             [m3/h] rated flow coefficient Kv at full opening (a Cv is
                    converted with Kv = 0.865 Cv before it gets here)
     xt             [-] pressure differential ratio factor xT (with fittings: xTP)
-    opening        [-] valve travel 0..1, constant or a table in time
+    opening        [-] valve travel 0..1, constant or a table in time; ``None``: moved
+                   by a controller (:class:`Controller`)
     characteristic ``linear``, ``equal-percentage`` or ``quick-opening``
     rangeability   [-] R of the equal-percentage characteristic (> 1)
     piping_factor  [-] piping geometry factor Fp (1: no fittings)
@@ -292,7 +293,7 @@ class ControlValve:
 
     kv: float
     xt: float
-    opening: Signal
+    opening: Signal | None
     characteristic: str = "linear"
     rangeability: float = 50.0
     piping_factor: float = 1.0
@@ -355,7 +356,75 @@ class CheckValve:
     flow_model: str = "real-gas"
 
 
-Device = Orifice | FixedFlow | ControlValve | ReliefValve | BurstingDisc | CheckValve
+@dataclass(frozen=True)
+class LineOrifice:
+    """A restriction orifice at one end of a line: area [m2], discharge coefficient [-],
+    ``at`` the ``from`` or ``to`` end of the link."""
+
+    area: float
+    discharge_coefficient: float
+    at: str = "to"
+
+
+@dataclass(frozen=True)
+class Line:
+    """A pipe or hose with friction between two nodes, optionally with a control valve
+    and a restriction orifice in series on the same link (:mod:`cvsim.flow.line`).
+
+    length            [m] straight length
+    diameter          [m] inside diameter
+    roughness         [m] absolute roughness of the wall
+    fittings_k        [-] sum of the resistance coefficients K of the fittings (velocity
+                      heads of the line's bore; an entrance counts, the exit does not)
+    fittings_length   [m] equivalent length of fittings, added to ``length``
+    elevation_change  [m] height of the ``to`` end above the ``from`` end
+    flow_model        ``adiabatic`` (Fanno flow) or ``isothermal`` (gas)
+    orifice           :class:`LineOrifice` or ``None``
+    valve             :class:`ControlValve` in series, or ``None``; its ``opening`` is
+                      ``None`` when a controller moves it
+    valve_at          the end the valve sits at, ``from`` or ``to``
+    viscosity         [Pa s] stated viscosity; ``None``: from the fluid (CoolProp)
+    """
+
+    length: float
+    diameter: float
+    roughness: float
+    fittings_k: float = 0.0
+    fittings_length: float = 0.0
+    elevation_change: float = 0.0
+    flow_model: str = "adiabatic"
+    orifice: LineOrifice | None = None
+    valve: ControlValve | None = None
+    valve_at: str = "from"
+    viscosity: float | None = None
+
+
+@dataclass(frozen=True)
+class Regulator:
+    """A self-acting (spring-loaded) regulator: a valve whose travel follows the
+    pressure it senses, with a proportional band.
+
+    holds         ``downstream``: a pressure-reducing regulator sensing the ``to`` node,
+                  shut at ``set_pressure`` and fully open ``band`` below it (the droop);
+                  ``upstream``: a back-pressure regulator sensing the ``from`` node, shut
+                  at ``set_pressure`` and fully open ``band`` above it (the build-up)
+    set_pressure  [Pa] absolute
+    band          [Pa] droop or build-up (> 0)
+    kv            [m3/h] flow coefficient Kv of the fully open regulator (its capacity)
+    xt            [-] pressure differential ratio factor xT of IEC 60534-2-1
+    fl            [-] liquid pressure recovery factor FL, or ``None``
+    """
+
+    holds: str
+    set_pressure: float
+    band: float
+    kv: float
+    xt: float
+    fl: float | None = None
+
+
+Device = (Orifice | FixedFlow | ControlValve | ReliefValve | BurstingDisc | CheckValve | Line
+          | Regulator)
 
 
 @dataclass(frozen=True)
@@ -402,6 +471,81 @@ class Sequence:
     pressure_difference_below: float | None = None
     longest_step: float | None = None
     shortest_step: float | None = None
+
+
+# -------------------------------------------------------------- controllers
+
+
+@dataclass(frozen=True)
+class Fill:
+    """What makes a controller a fuelling fill: it ramps the receiver's pressure and
+    ends on a final pressure, a gas temperature or a state of charge.
+
+    receiver                  the vessel filled
+    pressure_ramp             [Pa/s] average pressure-rise rate the set point follows
+    start_pressure            [Pa] receiver pressure at the start (the ramp's origin)
+    nominal_working_pressure  [Pa] NWP of the receiving system
+    maximum_operating_pressure  [Pa] 125 % of NWP (gauge), the peak pressure's limit
+    reference_density         [kg/m3] density at NWP and 15 degC (100 % state of charge)
+    final_pressure            [Pa] the fill ends when the receiver reaches this
+    temperature_limit         [K] ... or when its gas reaches this
+    state_of_charge           [-] ... or when its density reaches this share of the
+                              reference density
+    """
+
+    receiver: str
+    pressure_ramp: float
+    start_pressure: float
+    nominal_working_pressure: float
+    maximum_operating_pressure: float
+    reference_density: float
+    final_pressure: float
+    temperature_limit: float
+    state_of_charge: float
+
+
+@dataclass(frozen=True)
+class Controller:
+    """A controller that moves the valve of a link to hold a measured quantity.
+
+    valve             name of the link whose valve it moves (a control valve, or a line
+                      with a valve)
+    measures          ``pressure``, ``temperature``, ``mass-flow`` or
+                      ``pressure-rise-rate``
+    of                the node measured (the link, for ``mass-flow``)
+    set_point         [SI unit of the measured quantity] constant or a table in time
+    mode              ``pi`` (proportional-integral) or ``on-off``
+    opens_when        ``below``: the valve opens further while the measured value is
+                      below the set point (a fill valve); ``above``: while it is above
+                      (a vent valve)
+    gain              [opening per SI unit of the measured quantity] PI
+    integral_time     [s] PI
+    deadband          [SI unit of the measured quantity] on-off: the band, centred on the
+                      set point, between opening and shutting
+    minimum_opening, maximum_opening  [-] limits of the output (the integral stops at
+                      them: anti-windup)
+    initial_opening   [-] output at the start
+    measurement_lag   [s] time constant of the first-order filter through which a mass
+                      flow or a pressure-rise rate is measured (the rate is the
+                      filtered derivative of the pressure)
+    fill              :class:`Fill` for a fuelling fill, else ``None``
+    """
+
+    name: str
+    valve: str
+    measures: str
+    of: str
+    set_point: Signal
+    mode: str = "pi"
+    opens_when: str = "below"
+    gain: float | None = None
+    integral_time: float | None = None
+    deadband: float | None = None
+    minimum_opening: float = 0.0
+    maximum_opening: float = 1.0
+    initial_opening: float = 0.0
+    measurement_lag: float | None = None
+    fill: Fill | None = None
 
 
 # ------------------------------------------------------------------- the run
@@ -464,14 +608,16 @@ class Network:
     run: RunSettings = field(default_factory=lambda: RunSettings(end_time=60.0, record_every=1.0))
     atmosphere: float = 101325.0  # [Pa] the local atmosphere gauge pressures refer to
     sequences: tuple[Sequence, ...] = ()
+    controllers: tuple[Controller, ...] = ()
 
     def node_names(self) -> tuple[str, ...]:
         return tuple(v.name for v in self.vessels) + tuple(r.name for r in self.reservoirs)
 
 
 __all__ = [
-    "AmbientExchange", "BurstingDisc", "CheckValve", "Constant", "ControlValve", "Device",
-    "FixedFlow", "FluidSpec", "Geometry", "HeatLoad", "HeatTerm", "InitialState", "Link",
-    "Network", "Orifice", "ReliefValve", "Reservoir", "RunSettings", "RuptureLimit",
-    "SeparatedZones", "Sequence", "StopCondition", "Vessel", "VesselLimits",
+    "AmbientExchange", "BurstingDisc", "CheckValve", "Constant", "ControlValve", "Controller",
+    "Device", "Fill", "FixedFlow", "FluidSpec", "Geometry", "HeatLoad", "HeatTerm",
+    "InitialState", "Line", "LineOrifice", "Link", "Network", "Orifice", "Regulator",
+    "ReliefValve", "Reservoir", "RunSettings", "RuptureLimit", "SeparatedZones", "Sequence",
+    "StopCondition", "Vessel", "VesselLimits",
 ]

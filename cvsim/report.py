@@ -427,11 +427,15 @@ def _results(result: Result, s: dict) -> Html:
                  f"{k['min_mass_flow_kg_s']:.4g}", _t(k["min_mass_flow_time_s"]),
                  f"{k['energy_added_by_device_J'] / 1e3:.5g}"]
                 for name, k in s["links"].items()]
+        # what each device says of its run (a relief valve's cycles, a fill's state of
+        # charge and limits, a line's volume), as in summary.txt
+        notes = [tag("p", f"{name}: {note}.") for name, k in s["links"].items()
+                 for note in k.get("notes", [])]
         out.append(subsection("summary-links", "Links (flow positive from source to target)",
-                              table(["Link", "Direction", "Device", "Mass passed [kg]",
-                                     "Highest flow [kg/s]", "at", "Lowest flow [kg/s]", "at",
-                                     "Energy added by the device [kJ]"],
-                                    rows, numeric={3, 4, 5, 6, 7, 8})))
+                              join([table(["Link", "Direction", "Device", "Mass passed [kg]",
+                                           "Highest flow [kg/s]", "at", "Lowest flow [kg/s]",
+                                           "at", "Energy added by the device [kJ]"],
+                                          rows, numeric={3, 4, 5, 6, 7, 8})] + notes)))
     if s["heat"]:
         out.append(subsection("summary-heat", "Heat into the gas", table(
             ["Heat term", "Heat into the gas over the run [kJ]"],

@@ -248,6 +248,7 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
                     stats=dict(raw.stats), totals=totals, balance=balance,
                     assumptions=assumptions(model), provenance=dict(provenance or {}),
                     warnings=warnings, device_figures=figures)
+    _add_reviews(model, result)
     result.limits = check_limits(result)
     add_rupture(result)
     result.contents, liquid_full = run_figures(model, result)
@@ -300,6 +301,28 @@ def _device_reports(model: Model, raw: RawRun) -> tuple[dict, list[str]]:
             figures[link.name] = f
         warnings += [f"link '{link.name}': {text}" for text in w]
     return figures, warnings
+
+
+def _add_reviews(model: Model, result: Result) -> None:
+    """Figures and warnings that devices and controllers draw from the recorded
+    histories (a line's inventory, a fill's state of charge), merged into the
+    link's figures (their notes appended) and the run's warnings."""
+    if not len(result.data):
+        return
+    found = []
+    for link, d in zip(model.links, model.devices):
+        figures, warnings = d.review(result, link.name)
+        found.append((link.name, figures, [f"link '{link.name}': {w}" for w in warnings]))
+    for c in model.valve_controllers:
+        found.append(c.review(result))
+    for name, figures, warnings in found:
+        if figures:
+            mine = result.device_figures.setdefault(name, {})
+            notes = mine.get("notes", []) + figures.pop("notes", [])
+            mine.update(figures)
+            if notes:
+                mine["notes"] = notes
+        result.warnings += warnings
 
 
 def _balances(model: Model, raw: RawRun):
@@ -418,8 +441,11 @@ def assumptions(model: Model) -> list[str]:
             by_class.setdefault(type(d), []).append(link.device)
     for cls, defs in by_class.items():
         out += cls.assumptions(defs)
-    if model.controllers:
-        out += type(model.controllers[0]).assumptions()
+    sequences = [c for c in model.controllers if c.kind == "sequence"]
+    if sequences:
+        out += type(sequences[0]).assumptions()
+    if model.valve_controllers:
+        out += model.valve_controllers[0].assumptions([c.d for c in model.valve_controllers])
     if not any(v.heat for v in net.vessels):
         out.append("No heat exchange with the vessel walls or surroundings (adiabatic vessels): "
                    "walls would damp the temperature swings.")

@@ -54,7 +54,7 @@ from __future__ import annotations
 import math
 
 from .errors import StateError
-from .fluid import NAN, State
+from .fluid import NAN
 from .heat.boiling import (HORIZONTAL_SURFACE_STABLE, HORIZONTAL_SURFACE_UNSTABLE,
                            nu_horizontal_surface)
 from .heat.convection import G, RangeWatch, prandtl, rayleigh

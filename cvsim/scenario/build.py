@@ -15,6 +15,7 @@ from ..errors import Problem, ScenarioError
 from ..network import FluidSpec, Link, Network, RunSettings, StopCondition
 from . import properties, schema, tree
 from . import vessels as vessels_
+from .controllers import build_controller, build_fill
 from .sequences import build_sequence
 from .service import check_liquid_service
 from .spec import BAD, At, Context, EchoRow
@@ -189,9 +190,17 @@ def build_network(values, ctx: Context) -> Network | None:
             ctx.record(At(f"vessels.{vessel.name}", values["vessels"][vessel.name].at.line),
                        "", None, "", "warning: no link; only heat terms change its contents")
     sequences = tuple(build_sequence(name, v) for name, v in (values["sequences"] or {}).items())
+    controllers = [build_controller(name, v) for name, v in (values["controllers"] or {}).items()]
+    by_name = {v.name: v for v in vessels}
+    for name, v in (values["fills"] or {}).items():
+        controllers.append(build_fill(name, v, by_name[v["receiver"]], fluid, values["run"]["end"],
+                                      ctx.atmosphere, ctx, v.at))
+    if ctx.problems:
+        return None
     network = Network(title=values["title"], fluid=fluid, vessels=vessels,
                       reservoirs=reservoirs, links=tuple(links), run=_run(values["run"]),
-                      atmosphere=ctx.atmosphere, sequences=sequences)
+                      atmosphere=ctx.atmosphere, sequences=sequences,
+                      controllers=tuple(controllers))
     return network if not ctx.problems else None
 
 

@@ -21,6 +21,8 @@ from .spec import (BAD, At, Choice, Entries, Field, Kind, Node, OneOrMore, Quant
                    Sub, Text, as_text, read_section)
 from .vessels import RESERVOIR, VESSEL
 from . import walls as _walls  # noqa: E402,F401  (registers walls and fire exposure)
+from . import lines as _lines  # noqa: E402,F401  (registers lines and regulators)
+from .controllers import CONTROLLER, FILL, check_controllers  # noqa: E402
 
 # ------------------------------------------------------------ special kinds
 
@@ -219,6 +221,7 @@ def _check_top(values, ctx) -> None:
                 ctx.problem(at, f"'{name}' names both a vessel and a reservoir; node names "
                             "must be unique")
     check_sequences(values, ctx)
+    check_controllers(values, ctx)
 
 
 TOP = Section(
@@ -243,6 +246,10 @@ TOP = Section(
         Field("links", Entries(LINK), "The links, by name."),
         Field("sequences", Entries(SEQUENCE),
               "Links opened one after another (cascade charging), by name."),
+        Field("controllers", Entries(CONTROLLER),
+              "Controllers that move a valve to hold a measured quantity, by name."),
+        Field("fills", Entries(FILL),
+              "Fuelling fills at a controlled pressure ramp, by name."),
         Field("run", Sub(RUN), "Run settings.", required=True),
     ),
     checks=(_check_top,),
