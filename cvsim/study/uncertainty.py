@@ -203,7 +203,7 @@ class UncertaintyResult:
         for col in self.table.columns:
             if col.kind not in SPREAD_KINDS or col.name == "limits_crossed":
                 continue
-            values = [self._value(col, rows[i]) for i in ok]
+            values = [self.case_value(col, rows[i]) for i in ok]
             self.spreads[col.name] = spread(col.name, col.unit, col.text, values,
                                             self.spec.percentiles, conf,
                                             difference=col.difference)
@@ -227,7 +227,7 @@ class UncertaintyResult:
         for name, s in self.spreads.items():
             if not self._varies(name):
                 continue
-            y = np.array([self._value(self.table.column(name), rows[i]) for i in ok])
+            y = np.array([self.case_value(self.table.column(name), rows[i]) for i in ok])
             keep = ~np.isnan(y)
             if keep.sum() < 3:
                 continue
@@ -250,11 +250,11 @@ class UncertaintyResult:
                 if rows[i]["status"] not in ("completed", "stopped"):
                     continue
                 k = 0 if g == "A" else 1 if g == "B" else 2 + int(g[2:])
-                f[k, j] = self._value(col, rows[i])
+                f[k, j] = self.case_value(col, rows[i])
             self.sobol[name] = sobol_indices(f[0], f[1], f[2:], self.spec.confidence)
 
     @staticmethod
-    def _value(col, row) -> float:
+    def case_value(col, row) -> float:
         """An outcome of a completed case (SI): a time to a target the run did
         not reach is +inf (its margin -inf); another missing value NaN."""
         v = row.get(col.name)

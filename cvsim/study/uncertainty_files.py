@@ -205,7 +205,7 @@ def summary_text(result) -> str:
     L.append("Uncertain inputs:")
     width = max(len(i.key) for i in spec.inputs)
     for i in spec.inputs:
-        L.append(f"  {i.key:<{width}}  {_describe(i)}")
+        L.append(f"  {i.key:<{width}}  {describe_input(i)}")
     for a, b, rho in spec.correlations:
         L.append(f"  rank correlation {rho:+.3g} between {a} and {b}")
     L.append("")
@@ -289,7 +289,7 @@ def summary_text(result) -> str:
 NOT_RUN_KEY = "not run"
 
 
-def _describe(inp) -> str:
+def describe_input(inp) -> str:
     """A distribution in the units it would be written in (degC, bar a)."""
     from ..outputs import display
     d = inp.distribution

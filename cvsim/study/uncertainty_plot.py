@@ -82,7 +82,7 @@ def plot_convergence(result, path: Path, outcomes=None) -> Path:
         axes = np.atleast_1d(fig.subplots(rows, cols, squeeze=False).ravel())
         for ax, name in zip(axes, names):
             col = result.table.column(name)
-            values = [result._value(col, result.table.rows[i]) for i in used]
+            values = [result.case_value(col, result.table.rows[i]) for i in used]
             unit, conv = _label(result, name)
             for k, p in enumerate(result.spec.percentiles):
                 pts = running_percentiles(values, p, result.spec.confidence, counts)
@@ -188,7 +188,7 @@ def plot_spread(result, path: Path, outcomes=None) -> Path:
         for ax, name in zip(axes, names):
             col = result.table.column(name)
             unit, conv = _label(result, name)
-            values = np.sort([result._value(col, result.table.rows[i]) for i in result.used])
+            values = np.sort([result.case_value(col, result.table.rows[i]) for i in result.used])
             values = values[~np.isnan(values)]
             n = values.size
             finite = values[np.isfinite(values)]
