@@ -294,6 +294,9 @@ def describe_input(inp) -> str:
     from ..outputs import display
     d = inp.distribution
     unit, conv = display(d.unit)
+    given_unit = _unit_of(inp)
+    if given_unit:
+        unit, conv = given_unit
 
     def show(x, difference=False):
         if difference:
@@ -302,6 +305,22 @@ def describe_input(inp) -> str:
             return f"{dconv(x):.4g} {dunit}".strip()
         return f"{conv(x):.4g} {unit}".strip() if unit not in ("", "-") else f"{x:.4g}"
     return d.describe(show)
+
+
+def _unit_of(inp):
+    """(unit, SI -> unit) of the value as the file writes it (``10 mm``), for
+    quantities without an offset or a gauge reference; ``None`` otherwise."""
+    from ..units import UnitsError, read_quantity, split_quantity
+    if inp.dimension in ("pressure", "temperature", "fraction", "dimensionless"):
+        return None
+    split = split_quantity(inp.given) if isinstance(inp.given, str) else None
+    if split is None or not split[1]:
+        return None
+    try:
+        size = read_quantity(f"1 {split[1]}", inp.dimension).value
+    except UnitsError:
+        return None
+    return (split[1], lambda v: v / size) if size > 0 else None
 
 
 def _size(item, sob, i) -> float:

@@ -26,7 +26,7 @@ METHODS = (
     "and the binomial distribution (Conover, Practical Nonparametric Statistics, 3rd ed. "
     "1999, sec. 3.2); they assume independent cases and are conservative for a Latin "
     "hypercube or Sobol' design. An end marked '-' cannot be bounded with this number of "
-    "cases (a 95 % lower bound of P5 needs 59 cases).",
+    "cases (a 95 % lower bound of P5 needs 72 cases).",
     "Probabilities of crossing a limit: the share of the cases that crossed it, with the "
     "exact binomial (Clopper-Pearson 1934) interval. Failed cases have no verdict; the "
     "probability if all of them had crossed is given beside it.",
