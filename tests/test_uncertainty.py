@@ -23,13 +23,17 @@ K = 1.4
 M_AIR = 0.0289647          # [kg/mol] dry air, CRC Handbook (from memory)
 R = 8.314462618 / M_AIR
 CP = K / (K - 1.0) * R
+LIMIT_S = 130.6   # [s] a time no case of seed 11 comes within 0.5 % of (closed form below)
 BLOWDOWN = f"""
 title: Perfect-gas blowdown, uncertain discharge coefficient
 fluid: Air
 properties: ideal-gas
 ideal_gas: {{molar_mass: {M_AIR * 1000} g/mol, heat_capacity: {CP!r} J/kg/K}}
 vessels:
-  tank: {{volume: 0.2 m3, initial: {{pressure: 50 bara, temperature: 300 K}}}}
+  tank:
+    volume: 0.2 m3
+    initial: {{pressure: 50 bara, temperature: 300 K}}
+    limits: {{depressure: {{to: 5 bara, within: {LIMIT_S} s}}}}
 reservoirs:
   outside: {{pressure: 1 bara, temperature: 300 K}}
 links:
@@ -285,6 +289,16 @@ def test_blowdown_time_percentiles_follow_the_closed_form(blowdown):
     for row in study.table.rows:  # every case: t = c / Cd
         cd = row["links.vent.discharge_coefficient.si"]
         assert row["end_time"] == pytest.approx(blowdown_time(cd), rel=2e-3)
+    # the depressuring limit is crossed where the closed-form time exceeds it
+    times = [blowdown_time(r["links.vent.discharge_coefficient.si"]) for r in study.table.rows]
+    assert all(abs(t / LIMIT_S - 1) > 2e-3 for t in times)  # no case too close to call
+    chance = study.chance_of("tank.limit.depressure")
+    assert chance.crossed == sum(t > LIMIT_S for t in times) and chance.cases == 20
+    assert (chance.low, chance.high) == pytest.approx(
+        proportion_interval(chance.crossed, 20, 0.95), rel=1e-12)
+    df = study.to_dataframe()
+    assert df.loc["end_time", "P50"] == study.percentile("end_time", 50)
+    assert "only as good as the distributions" in df.attrs["caution"]
     # t is decreasing in Cd: its p-th percentile is c / Cd at the (1 - p)-th
     from scipy.stats import norm
     for p in (5, 50, 95):
@@ -302,7 +316,7 @@ def test_same_seed_same_study_and_failed_cases_kept(blowdown):
     one = cvsim.uncertainty(blowdown, workers=1, **args)
     two = cvsim.uncertainty(blowdown, workers=2, **args)
     assert np.array_equal(one.design.values, two.design.values)
-    assert one.table.rows == two.table.rows
+    assert same_rows(one.table.rows, two.table.rows)
     other = cvsim.uncertainty(blowdown, workers=1, **{**args, "seed": 43})
     assert not np.array_equal(one.design.values, other.design.values)
     ends = one.design.values[:, one.design.keys.index("run.end")]
@@ -312,6 +326,15 @@ def test_same_seed_same_study_and_failed_cases_kept(blowdown):
     assert len(failed) == short.sum()
     assert all("record_every" in r["error"] for r in failed)
     assert len(one.used) == 6 - short.sum()
+
+
+def same_rows(a, b) -> bool:
+    """Rows equal value for value (NaN equal to NaN)."""
+    def same(x, y):
+        return x == y or (isinstance(x, float) and isinstance(y, float)
+                          and math.isnan(x) and math.isnan(y))
+    return len(a) == len(b) and all(r.keys() == q.keys() and all(same(r[k], q[k]) for k in r)
+                                    for r, q in zip(a, b))
 
 
 def test_a_distribution_the_key_refuses_must_be_truncated(blowdown):
