@@ -291,12 +291,8 @@ NOT_RUN_KEY = "not run"
 
 def describe_input(inp) -> str:
     """A distribution in the units it would be written in (degC, bar a)."""
-    from ..outputs import display
     d = inp.distribution
-    unit, conv = display(d.unit)
-    given_unit = _unit_of(inp)
-    if given_unit:
-        unit, conv = given_unit
+    unit, conv = input_unit(inp)
 
     def show(x, difference=False):
         if difference:
@@ -305,6 +301,13 @@ def describe_input(inp) -> str:
             return f"{dconv(x):.4g} {dunit}".strip()
         return f"{conv(x):.4g} {unit}".strip() if unit not in ("", "-") else f"{x:.4g}"
     return d.describe(show)
+
+
+def input_unit(inp) -> tuple[str, object]:
+    """(unit, SI -> unit) an input is shown in: the unit the file writes it in
+    (``10 mm``), else the engineering unit of the tables (degC, bar a)."""
+    from ..outputs import display
+    return _unit_of(inp) or display(inp.distribution.unit)
 
 
 def _unit_of(inp):
@@ -354,5 +357,5 @@ def _columns(head, body) -> list[str]:
                              for k, (c, w) in enumerate(zip(r, widths))).rstrip() for r in rows]
 
 
-__all__ = ["summary_text", "units_of", "write_json", "write_limits_csv",
+__all__ = ["describe_input", "input_unit", "summary_text", "units_of", "write_json", "write_limits_csv",
            "write_percentiles_csv", "write_sensitivity_csv"]

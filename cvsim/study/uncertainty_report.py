@@ -14,7 +14,7 @@ import os
 from pathlib import Path
 
 from ..htmldoc import Html, Section, bullets, facts, join, notice, table, tag
-from .uncertainty_files import describe_input, units_of
+from .uncertainty_files import describe_input, input_unit, units_of
 
 #: a study of more cases than this lists only its failed cases in the report
 #: (every case is in cases.csv)
@@ -177,6 +177,17 @@ def write_uncertainty_report(path, result, scenario=None) -> Path:
     from .report import study_rows
     from .uncertainty import UNCERTAINTY_CAUTION
     rows, columns = study_rows(result.table, result.main)
+    # the inputs in the unit the file writes them in, 5 digits (cases.csv has every digit)
+    shown = []
+    for inp in result.spec.inputs:
+        unit, conv = input_unit(inp)
+        head = f"{inp.key} [{unit}]" if unit not in ("", "-") else inp.key
+        shown.append(head)
+        for row, raw in zip(rows, result.table.rows):
+            row.pop(inp.key, None)
+            v = raw.get(f"{inp.key}.si")
+            row[head] = f"{conv(v):.5g}" if isinstance(v, float) else ""
+    columns = shown + [c for c in columns if c not in result.design.keys]
     params = {i.key: [describe_input(i)] for i in result.spec.inputs}
     extra = [inputs_section(result), percentiles_section(result), limits_section(result),
              sensitivity_section(result)]
