@@ -379,3 +379,15 @@ def test_command_line_writes_the_study_and_its_report(blowdown, tmp_path, capsys
     assert "only as good as the distributions" in html
     head = (out / "percentiles.csv").read_text().splitlines()
     assert any("Screening estimate" in line for line in head if line.startswith("#"))
+
+
+def test_a_study_whose_every_case_fails_still_writes_its_tables(blowdown, tmp_path):
+    out = tmp_path / "failed"
+    code = main(["uncertainty", str(blowdown), "--cases", "4", "--seed", "1", "--workers", "1",
+                 "--quiet", "--out", str(out), "--uncertain",
+                 "run.end={distribution: uniform, lowest: 1 s, highest: 5 s}"])
+    assert code == 1  # every case failed (record_every 10 s is longer than each run)
+    text = (out / "uncertainty.txt").read_text()
+    assert "4 failed" in text and "0 of 0 cases" in text and "100 % if they all crossed" in text
+    assert (out / "cases.csv").read_text().count("failed") >= 4
+    assert not (out / "convergence.png").exists()

@@ -74,6 +74,12 @@ def study_overrides(source: Source, inputs=None, correlations=None, **options) -
     from ..scenario.tree import Mapping, override_value, strip_lines
     from ..scenario.uncertainty import normal_key
     given = {k: v for k, v in options.items() if v is not None}
+    for k in ("cases", "seed"):  # numpy integers read as whole numbers too
+        if k in given and not isinstance(given[k], (bool, str)):
+            try:
+                given[k] = int(given[k]) if int(given[k]) == given[k] else given[k]
+            except (TypeError, ValueError, OverflowError):
+                pass
     if not inputs and not correlations and not given:
         return {}
     section = copy.deepcopy(_file_section(source))
@@ -412,7 +418,9 @@ class UncertaintyResult:
         self.table.write_files(folder, plots=False, stem="cases")
         files = {"cases": folder / "cases.csv", "cases_json": folder / "cases.json",
                  "cases_text": folder / "cases.txt"}
-        if plots:
+        if plots and not self.used:
+            self.warnings.append("no plots: no case ran to its end or stop condition")
+        elif plots:
             from . import uncertainty_plot as up
             for key, draw in (("convergence", up.plot_convergence),
                               ("sensitivity", up.plot_sensitivity), ("spread", up.plot_spread)):
