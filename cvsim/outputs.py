@@ -26,6 +26,7 @@ DISPLAY = {
     "J/(kg K)": ("kJ/(kg K)", lambda v: v / 1e3),
     "W": ("kW", lambda v: v / 1e3),
     "J": ("kJ", lambda v: v / 1e3),
+    "N/m2": ("MPa", lambda v: v / 1e6),  # stresses (cvsim.rupture)
 }
 
 
@@ -228,7 +229,7 @@ def _limit_value(value: float, unit: str, atm: float) -> str:
         return f"{value - 273.15:.1f} degC"
     if unit == "s":
         return _t(value)
-    return f"{value:.4g} {unit}"
+    return f"{value:.4g} {unit}".rstrip()
 
 
 def _margin(value: float, unit: str) -> str:
@@ -240,7 +241,7 @@ def _margin(value: float, unit: str) -> str:
         return f"{value:+.1f} K"
     if unit == "s":
         return f"{value:+.4g} s"
-    return f"{value:+.4g} {unit}"
+    return f"{value:+.4g} {unit}".rstrip()
 
 
 def limits_text(result: Result) -> str:

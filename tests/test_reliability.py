@@ -16,25 +16,8 @@ from cvsim.cli import main
 from cvsim.limits import REACHED_RTOL, first_time_at_or_below
 from cvsim.scenario import load_scenario_text
 from cvsim.scenario import tree
+from conftest import SMALL
 
-SMALL = """\
-title: small vented bottle
-fluid: Nitrogen
-vessels:
-  tank: {volume: 0.01 m3, initial: {pressure: 20 barg, temperature: 15 degC}}
-reservoirs:
-  air: {pressure: 1 atm, temperature: 15 degC}
-links:
-  vent: {from: tank, to: air, device: orifice, diameter: 3 mm, discharge_coefficient: 0.8}
-run: {end: 10 s, record_every: 1 s}
-"""
-
-
-@pytest.fixture
-def small(tmp_path):
-    path = tmp_path / "small.yaml"
-    path.write_text(SMALL)
-    return path
 
 
 def no_traceback(text: str) -> bool:
