@@ -217,12 +217,16 @@ def plot_spread(result, path: Path, outcomes=None) -> Path:
 
 
 def _limit(ax, result, name, conv, unit) -> None:
-    """The design limit whose reached value this outcome is (same in every case)."""
+    """The design limit whose reached value this outcome is (same in every case);
+    not a check shown for information only, which no case can cross."""
     rows = [result.table.rows[i] for i in result.used]
+    names = {c.name for c in result.table.columns}
     for col in result.table.columns:
         if col.kind != "limit-actual":
             continue
         base = col.name.removesuffix(".actual")
+        if f"{base}.met" not in names:  # shown for information only (the gas beside the metal)
+            continue
         if col.name != name and not all(_same(r.get(col.name), r.get(name)) for r in rows):
             continue
         limits = {r.get(f"{base}.limit") for r in rows}
