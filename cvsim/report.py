@@ -588,7 +588,8 @@ def _dist_version(name: str) -> str:
 # ==================================================================== sweeps
 
 def render_sweep_report(title: str, scenario=None, parameters=None, rows=(), columns=None,
-                        images=(), notes=(), provenance: dict | None = None) -> str:
+                        images=(), notes=(), provenance: dict | None = None,
+                        extra_sections=()) -> str:
     """The report of a study of many runs, with the look of the run report.
 
     Plain data in, so that any study module can use it:
@@ -606,6 +607,9 @@ def render_sweep_report(title: str, scenario=None, parameters=None, rows=(), col
     notes       notes and assumptions of the study, in words
     provenance  versions and the scenario's hash; ``None``: those of this
                 process (:func:`cvsim.api.provenance`)
+    extra_sections  further :class:`~cvsim.htmldoc.Section` s of a kind of study
+                (an uncertainty study's results): one whose id is that of a
+                section below replaces it, the others follow the values varied
 
     Section ids: ``job``, ``parameters``, ``cases``, ``plots``, ``notes``,
     ``inputs`` (``inputs-given``, ``inputs-used``), ``software``,
@@ -650,6 +654,8 @@ def render_sweep_report(title: str, scenario=None, parameters=None, rows=(), col
                 new_page=False),
         Section("sign-off", "Check and review", sign_off()),
     ]
+    if extra_sections:
+        sections = _with_sections(sections, extra_sections)
     head = [("Base scenario", provenance.get("scenario", "-")),
             ("Scenario SHA-256", tag("span", provenance.get("scenario_sha256", "-"),
                                      cls="mono")),
@@ -659,6 +665,16 @@ def render_sweep_report(title: str, scenario=None, parameters=None, rows=(), col
             ("Report written", _now())]
     return document(title=title, kind="cvsim calculation report: study of many runs",
                     summary_facts=head, sections=sections, footer_right=_head_right(provenance))
+
+
+def _with_sections(sections: list, extra) -> list:
+    """``sections`` with those of ``extra`` of the same id replaced, and the
+    others of ``extra`` placed after the values varied (before the cases)."""
+    given = {s.id: s for s in extra}
+    place = [s.id for s in sections].index("parameters") + 1
+    out = [given.pop(s.id, s) for s in sections]
+    out[place:place] = list(given.values())
+    return out
 
 
 def write_sweep_report(path, title: str, **kwargs) -> Path:

@@ -31,6 +31,8 @@ class Scenario:
     source_text  the text read (before overrides)
     sha256       hex digest of the file's bytes (of the text encoded as UTF-8)
     overrides    the overrides applied, key path -> value as given
+    uncertainty  the ``uncertainty:`` section (:class:`~cvsim.distributions.UncertaintySpec`,
+                 SI) or ``None``; runs do not use it, ``cvsim uncertainty`` does
     """
 
     network: Network
@@ -39,6 +41,7 @@ class Scenario:
     source_text: str
     sha256: str
     overrides: dict = field(default_factory=dict)
+    uncertainty: object = None
 
     @property
     def warnings(self) -> list[str]:
@@ -145,8 +148,10 @@ def _load(text: str, source_name: str, sha256: str, overrides: dict | None) -> S
         ctx.echo[:] = _merge_echo(ctx.echo[:read_rows], ctx.echo[read_rows:])
     if ctx.problems:
         raise ScenarioError(_ordered(ctx.problems), source_name)
+    from .uncertainty import build as build_uncertainty
     return Scenario(network=network, echo=tuple(ctx.echo), source_name=source_name,
-                    source_text=text, sha256=sha256, overrides=dict(overrides or {}))
+                    source_text=text, sha256=sha256, overrides=dict(overrides or {}),
+                    uncertainty=build_uncertainty(values.get("uncertainty")))
 
 
 def _merge_echo(read: list[EchoRow], built: list[EchoRow]) -> list[EchoRow]:

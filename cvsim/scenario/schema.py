@@ -17,6 +17,7 @@ from . import valves as _valves  # noqa: F401  (registers the valves)
 from .reference import DECISIONS, EXAMPLE, INTRO, WRITING_VALUES
 from .registry import DEVICES
 from .sequences import SEQUENCE, check_sequences
+from .uncertainty import UNCERTAINTY
 from .spec import (BAD, At, Choice, Entries, Field, Kind, Node, OneOrMore, Quantity, Section,
                    Sub, Text, as_text, read_section)
 from .vessels import RESERVOIR, VESSEL
@@ -251,6 +252,9 @@ TOP = Section(
         Field("fills", Entries(FILL),
               "Fuelling fills at a controlled pressure ramp, by name."),
         Field("run", Sub(RUN), "Run settings.", required=True),
+        # read last: its inputs name keys read above (their units, their values)
+        Field("uncertainty", Sub(UNCERTAINTY),
+              "Uncertain inputs for `cvsim uncertainty`; a run uses the values stated."),
     ),
     checks=(_check_top,),
 )

@@ -1,4 +1,5 @@
-"""Command line for studies: ``cvsim sweep``, ``cvsim find``, ``cvsim outcomes``.
+"""Command line for studies: ``cvsim sweep``, ``cvsim find``, ``cvsim outcomes``
+(and ``cvsim uncertainty``, from :mod:`cvsim.study.uncertainty_cli`).
 
 Kept apart from :mod:`cvsim.cli` (which adds these commands to its parser) so
 that the run commands and the study commands can change independently.
@@ -125,6 +126,9 @@ def add_study_commands(sub) -> None:
                    help="most simulations, scan included (default 40)")
     f.add_argument("--no-run", action="store_true",
                    help="do not write the full outputs of a run at the answer (run/)")
+
+    from .uncertainty_cli import add_uncertainty_command
+    add_uncertainty_command(sub)
 
     o = sub.add_parser("outcomes", help="list the outcome names of a scenario (for --plot, --meet)",
                        description="List the outcomes a run of the scenario gives, with their "
@@ -274,4 +278,22 @@ def cmd_outcomes(args) -> int:
     return 0
 
 
-STUDY_COMMANDS = {"sweep": cmd_sweep, "find": cmd_find, "outcomes": cmd_outcomes}
+# public names of the option helpers, for the other study commands' modules
+common_options = _common
+progress_wanted = _progress
+read_time_limit = _time_limit
+
+
+def set_overrides(items: list[str]) -> dict:
+    """``--set KEY=VALUE`` items as a mapping (as ``cvsim run`` reads them)."""
+    from ..cli import _overrides
+    return _overrides(items)
+
+
+def cmd_uncertainty(args) -> int:
+    from .uncertainty_cli import cmd_uncertainty as command
+    return command(args)
+
+
+STUDY_COMMANDS = {"sweep": cmd_sweep, "find": cmd_find, "outcomes": cmd_outcomes,
+                  "uncertainty": cmd_uncertainty}
