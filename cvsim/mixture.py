@@ -49,6 +49,7 @@ from .components import (COMPONENTS, EQUATIONS, GERG_COMPONENTS,  # noqa: F401 (
                          make_composition)
 from .errors import FluidError, StateError
 from .fluid import NAN, R_UNIVERSAL, State, root_on_bracket
+from .mixture_calls import LeanCalls
 
 #: relative residual tolerance of the mixture state solves (v and u, s relative to
 #: |u| + R Tc, |s| + R); looser than the pure-fluid STATE_RTOL because the (T, p)
@@ -137,6 +138,7 @@ class MixtureEngine:
         self.t_min = tp.get_tmin()
         self.t_max = tp.get_tmax()
         self.p_max = tp.get_pmax()
+        self._lean = LeanCalls(tp, self.nc)
         self.evaluations = 0   # equation-of-state property calls
         self.flashes = 0       # (T, p) flashes
         self._tc = np.array([tp.critical_temperature(i + 1) for i in range(self.nc)])
@@ -148,20 +150,16 @@ class MixtureEngine:
 
     # -------------------------------------------------------------- phases
     def _phase_tv(self, T: float, v: float, w: np.ndarray) -> _Phase:
-        tp = self._tp
         self.evaluations += 3
         ph = _Phase()
         ph.T, ph.v, ph.w = T, v, w
         ph.M = float(w @ self.M)
-        ph.p, ph.dpdt, ph.dpdv = tp.pressure_tv(T, v, w, dpdt=True, dpdv=True)
-        ph.u, ph.cv = tp.internal_energy_tv(T, v, w, dedt=True)
-        ph.s, = tp.entropy_tv(T, v, w)
+        ph.p, ph.dpdt, ph.dpdv, ph.u, ph.cv, ph.s = self._lean.tv(T, v, w)
         return ph
 
     def _phase_tp(self, T: float, p: float, w: np.ndarray, flag: int) -> _Phase:
         self.evaluations += 1
-        v, = self._tp.specific_volume(T, p, w, flag)
-        return self._phase_tv(T, v, w)
+        return self._phase_tv(T, self._lean.volume(T, p, w, flag), w)
 
     @staticmethod
     def _state_of(ph: _Phase, phase: str) -> State:
@@ -190,19 +188,14 @@ class MixtureEngine:
         beta in (0, 1) in two phases; 1 (vapour/gas/supercritical) or 0 (liquid) in one.
         """
         self.flashes += 1
-        try:
-            r = self._tp.two_phase_tpflash(T, p, z)
-        except Exception as exc:  # thermopack raises bare Exception
-            raise StateError(f"mixture flash failed at T = {T:.6g} K, p = {p:.6g} Pa: "
-                             f"{exc}") from None
-        if r.phase == self._TWO and 0.0 < r.betaV < 1.0:
-            y, x = np.asarray(r.y), np.asarray(r.x)
-            return (r.betaV, x, y, self._phase_tp(T, p, y, self._VAP),
+        phase, betaV, x, y = self._lean.flash(T, p, z)
+        if phase == self._TWO and 0.0 < betaV < 1.0:
+            return (betaV, x, y, self._phase_tp(T, p, y, self._VAP),
                     self._phase_tp(T, p, x, self._LIQ))
-        if r.phase == self._LIQ:
+        if phase == self._LIQ:
             return 0.0, z, z, None, self._phase_tp(T, p, z, self._LIQ)
         V = self._phase_tp(T, p, z, self._VAP)
-        if r.phase != self._VAP:
+        if phase != self._VAP:
             # one phase (thermopack could not tell which): the root of least Gibbs energy
             L = self._phase_tp(T, p, z, self._LIQ)
             if abs(L.v - V.v) > 1e-9 * V.v and (L.u - T * L.s + p * L.v) < (V.u - T * V.s + p * V.v):
@@ -794,8 +787,7 @@ class MixtureFluid:
         cp0 = sum z_i cp0_i(T) (``rho`` unused, kept for the common interface)."""
         self.engine.evaluations += 1
         # the ideal-gas part of the equation of state at any volume: cv0, cp0 = cv0 + R
-        _, cv0 = self.engine._tp.internal_energy_tv(T, 1.0, self.z, dedt=True,
-                                                    property_flag="I")
+        cv0 = self.engine._lean.ideal_cv(T, self.z)
         cp0 = cv0 + R_UNIVERSAL
         return cp0 / (cp0 - R_UNIVERSAL)
 
