@@ -104,6 +104,29 @@ class MixtureContents:
         return self.reservoir_fluids[j].state_pt(p, T)
 
 
+def assumption_lines(spec, network) -> list[str]:
+    """The mixture's lines of the assumption register."""
+    comp = ", ".join(f"{n} {z:.4g}" for n, z in zip(spec.components, spec.mole_fractions)
+                     if z > 0.0)
+    out = [f"Fluid properties: {spec.name}, a mixture (mole fractions {comp}) on the "
+           f"{spec.equation} equation of state (thermopack), equilibrium single- and "
+           "two-phase states from our own (rho, u) flash over thermopack's (T, p) flash; no "
+           "solids (hydrates, CO2 or wax), no second liquid phase, cubic equations with "
+           "thermopack's default binary interaction parameters.",
+           "Each vessel's composition follows its component masses: a top outlet draws the "
+           "vapour phase (its composition y), a bottom outlet the liquid phase (x); streams "
+           "into a vessel mix with its contents at once (well mixed)."]
+    own = [r.name for r in network.reservoirs if r.composition is not None]
+    if own:
+        out.append("Reservoirs supplying their own composition: " + ", ".join(own) + ".")
+    if any(type(k.device).__name__ in ("Orifice", "ReliefValve", "BurstingDisc", "CheckValve")
+           for k in network.links):
+        out.append("Mixture through a nozzle throat: homogeneous equilibrium (phases at one "
+                   "velocity and temperature, in phase equilibrium), throat where the flow "
+                   "reaches the equilibrium speed of sound, found in pressure.")
+    return out
+
+
 def mole_fraction_columns(vessel: str, names) -> list[tuple[str, str, str]]:
     """History columns of a mixture vessel: overall mole fraction of each component."""
     return [(f"{vessel}.mole_fraction.{n}", "-", "vessel") for n in names]

@@ -254,9 +254,8 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
 def self_checks(result: Result) -> list:
     """The self-checks of :mod:`cvsim.checks`, with a fresh fluid object."""
     from .checks import run_checks
-    from .fluid import make_fluid
-    f = result.network.fluid
-    return run_checks(result, make_fluid(f.name, f.model, f.molar_mass, f.cp, f.cp_temperature))
+    from .fluid import fluid_for
+    return run_checks(result, fluid_for(result.network.fluid))
 
 
 def check_limits(result: Result) -> list:
@@ -372,6 +371,9 @@ def assumptions(model: Model) -> list[str]:
     if f.model == "real":
         out.append(f"Fluid properties: {f.name}, Helmholtz-energy equation of state (CoolProp "
                    "HEOS), equilibrium single- and two-phase states.")
+    elif f.model == "mixture":
+        from .mixture_contents import assumption_lines
+        out += assumption_lines(f, net)
     else:
         fl = model.fluid
         out.append(f"Fluid properties: {f.name} as an ideal gas with constant heat capacities "
@@ -380,7 +382,8 @@ def assumptions(model: Model) -> list[str]:
     out.append("Vessels are rigid and their contents well mixed (one uniform state per vessel).")
     out.append("A stream leaving a vessel carries the specific enthalpy of what it draws: the "
                "vessel's contents while single phase; with two phases present, saturated "
-               "vapour"
+               "vapour" + (" (the vapour phase, with its own composition)"
+                           if f.model == "mixture" else "")
                + (" (saturated liquid through links that draw liquid: "
                   + ", ".join(k.name for k in net.links if k.draws == "liquid") + ")"
                   if any(k.draws == "liquid" for k in net.links) else "") + ".")
