@@ -155,6 +155,11 @@ def summary_text(result: Result) -> str:
         if "two_phase_from_s" in v:
             L.append(f"  two phases present from {_t(v['two_phase_from_s'])} "
                      f"(lowest vapour quality {v['min_vapour_quality']:.4f})")
+        if "final_mole_fractions" in v:
+            L.append("  composition mole fractions, start -> end: " + ", ".join(
+                f"{c} {v['initial_mole_fractions'][c]:.4g} -> {z:.4g}"
+                for c, z in v["final_mole_fractions"].items()
+                if z > 0.0 or v["initial_mole_fractions"][c] > 0.0))
         L += summary_lines(v, _t)
     if s["targets"]:
         L.append("")

@@ -186,6 +186,12 @@ class Result:
                 first = int(np.argmax(~np.isnan(q)))
                 d["two_phase_from_s"] = float(t_all[first])
                 d["min_vapour_quality"] = float(np.nanmin(q))
+            if self.network.fluid.model == "mixture":
+                # the composition at the start and at the end (mole fractions)
+                comps = self.network.fluid.components
+                for when, row in (("initial", 0), ("final", -1)):
+                    d[f"{when}_mole_fractions"] = {
+                        c: float(self[f"{n}.mole_fraction.{c}"][row]) for c in comps}
             d.update(self.contents.get(n, {}))
             out["vessels"][n] = d
         for link in self.network.links:
