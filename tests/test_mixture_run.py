@@ -106,7 +106,7 @@ def test_nozzle_throat_against_a_brute_force_nozzle(rich, p0, T0):
     # (2017) 3503, thermopack), independent of cvsim's throat search and (p, s) solve
     G_ref = _brute_force_flux(list(RICH), rich.z, T0, p0, 1.01325e5)
     assert choked
-    assert G == pytest.approx(G_ref, rel=2e-6)
+    assert G == pytest.approx(G_ref, rel=1e-8)          # measured: within 4e-10
 
 
 def test_nozzle_warm_start_gives_the_cold_answer(rich):
@@ -138,7 +138,7 @@ def test_two_phase_sound_speed_against_the_isentrope(rich):
     b = rich.isentrope_at_p(30e5 * (1 - 1e-4), st.s, st.T, FlashHint())
     # source: definition of the (equilibrium) speed of sound, c^2 = (dp/drho)_s, by a
     # central difference along the equilibrium isentrope computed here
-    assert c == pytest.approx(math.sqrt((a.p - b.p) / (a.rho - b.rho)), rel=1e-5)
+    assert c == pytest.approx(math.sqrt((a.p - b.p) / (a.rho - b.rho)), rel=1e-6)
 
 
 def test_pure_methane_nozzle_close_to_the_pure_path():
@@ -150,8 +150,8 @@ def test_pure_methane_nozzle_close_to_the_pure_path():
     G_pure = real_gas_mass_flux(g, g.state_pt(100e5, 300.0), 1e5)[0]
     # source: CoolProp's methane (Setzmann & Wagner 1991) through cvsim's density-based
     # throat search; GERG-2008's pure methane differs from it by about 0.1 % in density
-    # (Kunz & Wagner 2012, sec. 7): the two fluxes agree to that order
-    assert G_mix == pytest.approx(G_pure, rel=2e-3)
+    # (Kunz & Wagner 2012, sec. 7) and less at 100 bar, 300 K; measured 2.3e-6
+    assert G_mix == pytest.approx(G_pure, rel=1e-4)
 
 
 # ----------------------------------------------------------- the lean binding, views
@@ -248,7 +248,6 @@ def test_adiabatic_one_phase_blowdown_keeps_the_residual_gas_on_its_isentrope():
     assert np.max(np.abs(s - s[0])) < 1e-6 * R
 
 
-@pytest.mark.slow
 def test_pure_component_limit_equals_the_pure_path_on_a_blowdown():
     """Methane alone on GERG-2008 through the mixture path against CoolProp's methane
     through the pure path: the same blowdown within the two equations' difference."""
@@ -260,11 +259,11 @@ def test_pure_component_limit_equals_the_pure_path_on_a_blowdown():
     assert a.status == b.status == "completed"
     # source: CoolProp's reference equation for methane (Setzmann & Wagner 1991) through
     # cvsim's pure path; GERG-2008 reproduces it within about 0.1 % in density (Kunz &
-    # Wagner, J. Chem. Eng. Data 57 (2012) 3032, sec. 7): pressures and temperatures of
-    # the whole run agree to that order
-    assert np.allclose(a["tank.pressure"], b["tank.pressure"], rtol=3e-3)
-    assert np.allclose(a["tank.temperature"], b["tank.temperature"], atol=0.3)
-    assert a["vent.mass_flow"][5] == pytest.approx(b["vent.mass_flow"][5], rel=3e-3)
+    # Wagner, J. Chem. Eng. Data 57 (2012) 3032, sec. 7); measured here: pressures within
+    # 4e-5, temperatures within 0.004 K, flows within 7e-5 over the whole run
+    assert np.allclose(a["tank.pressure"], b["tank.pressure"], rtol=3e-4)
+    assert np.allclose(a["tank.temperature"], b["tank.temperature"], atol=0.03)
+    assert np.allclose(a["vent.mass_flow"], b["vent.mass_flow"], rtol=5e-4)
 
 
 def test_component_check_fails_on_an_injected_defect(monkeypatch):
