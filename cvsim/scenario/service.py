@@ -76,7 +76,7 @@ def check_liquid_service(fluid_spec, vessels, reservoirs, links, link_at, ctx) -
     ``link_at[name]`` is the link's :class:`~cvsim.scenario.spec.At` (key and line).
     """
     for link in links:
-        if link.draws == "liquid" and fluid_spec.model != "real":
+        if link.draws == "liquid" and fluid_spec.model == "ideal-gas":
             ctx.problem(link_at[link.name].child("draws", None),
                         "draws: liquid needs the real-fluid property model: an ideal gas has "
                         "no liquid (write properties: real, or draw vapour)")
