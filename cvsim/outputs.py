@@ -77,7 +77,8 @@ def header_lines(title: str, provenance: dict, status: str, atmosphere: float) -
     p = provenance
     return [title,
             f"cvsim {p.get('cvsim', '?')}, CoolProp {p.get('coolprop', '?')}, "
-            f"scenario {p.get('scenario', '?')} sha256 {p.get('scenario_sha256', '?')[:16]}",
+            + (f"thermopack {p['thermopack']}, " if "thermopack" in p else "")
+            + f"scenario {p.get('scenario', '?')} sha256 {p.get('scenario_sha256', '?')[:16]}",
             status,
             "pressures absolute (bar a); gauge = absolute - "
             f"{atmosphere / 1e5:.5g} bar (the scenario's atmosphere)",

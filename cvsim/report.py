@@ -76,8 +76,8 @@ SUMMARY_SHOWN = {"title", "status", "message", "end_time_s", "vessels", "links",
                  "self_checks", "self_checks_failed",
                  "assumptions", "provenance", "caution", "warnings"}
 
-VERSION_LABELS = (("cvsim", "cvsim"), ("coolprop", "CoolProp"), ("scipy", "SciPy"),
-                  ("numpy", "NumPy"), ("python", "Python"))
+VERSION_LABELS = (("cvsim", "cvsim"), ("coolprop", "CoolProp"), ("thermopack", "thermopack"),
+                  ("scipy", "SciPy"), ("numpy", "NumPy"), ("python", "Python"))
 
 
 # =================================================================== one run
@@ -124,7 +124,9 @@ def render_run_report(result: Result, scenario=None, plots=None) -> str:
             ("Run", f"{_status_line(result)}; started {prov.get('run_started', '-')}"),
             ("Design limits", limits),
             ("Software", f"cvsim {prov.get('cvsim', __version__)}, CoolProp "
-                         f"{prov.get('coolprop', '?')}"),
+                         f"{prov.get('coolprop', '?')}" + (
+                             f", thermopack {prov['thermopack']}" if "thermopack" in prov
+                             else "")),
             ("Report written", _now())]
     lead = Html("")
     if not result.ok:

@@ -115,7 +115,10 @@ MIXTURE = Section(
         Field("equation_of_state", Choice(tuple(EQUATIONS)),
               "`Peng-Robinson` or `SRK` (cubic, thermopack's default interaction "
               "parameters; fast), `GERG-2008` (ISO 20765-2, the reference for natural "
-              "gas; 21 components; about 100 times slower in two phases).",
+              "gas; 21 components; its flash costs about 25 ms, so runs in two phases or "
+              "whose composition keeps changing, such as a fill from a supply of another "
+              "composition, take minutes: use it for one-phase runs of one composition "
+              "and for checks).",
               default="Peng-Robinson"),
         Field("name", Text(), "A label for the mixture in the outputs.",
               default="mixture"),
