@@ -8,7 +8,11 @@ end in one message and exit status 2; a run that fails part-way exits 1.
 from __future__ import annotations
 
 import argparse
+import contextlib
+import signal
 import sys
+import threading
+import warnings
 from pathlib import Path
 
 from . import __version__
@@ -143,33 +147,37 @@ def _overrides(items: list[str]) -> dict:
 
 def cmd_run(args) -> int:
     from .api import run
+    from .outfolder import claim
     from .outputs import summary_text, write_run_outputs
     from .scenario import load_scenario
 
     scenario = load_scenario(args.scenario, overrides=_overrides(args.overrides))
     out = args.out or Path("results") / args.scenario.stem
-    progress = None
-    bar = None
-    if not args.quiet and sys.stderr.isatty():
-        from tqdm import tqdm
-        end = scenario.network.run.end_time
-        bar = tqdm(total=end, unit="s", desc="simulating", leave=False,
-                   bar_format="{desc}: {percentage:3.0f}%|{bar}| {n:.4g}/{total:.4g} s")
+    with claim(out):  # checked and locked before solving: a wrong --out costs nothing
+        _say_warnings(scenario_warnings(scenario))
+        progress = None
+        bar = None
+        if not args.quiet and sys.stderr.isatty():
+            from tqdm import tqdm
+            end = scenario.network.run.end_time
+            bar = tqdm(total=end, unit="s", desc="simulating", leave=False,
+                       bar_format="{desc}: {percentage:3.0f}%|{bar}| {n:.4g}/{total:.4g} s")
 
-        def progress(t, t_end):
-            bar.update(t - bar.n)
-    try:
-        result = run(scenario, progress=progress, verify_tolerance=args.verify)
-    finally:
-        if bar is not None:
-            bar.close()
-    if not result.ok and not args.keep_failed:
-        print(f"cvsim: the run failed: {result.message}", file=sys.stderr)
-        print("No output written (use --keep-failed to write what was computed).",
-              file=sys.stderr)
-        return 1
-    write_run_outputs(result, out, plots=not args.no_plots, echo=scenario.echo,
-                      report=args.report, scenario=scenario)
+            def progress(t, t_end):
+                bar.update(t - bar.n)
+        try:
+            result = run(scenario, progress=progress, verify_tolerance=args.verify)
+        finally:
+            if bar is not None:
+                bar.close()
+        if not result.ok and not args.keep_failed:
+            print(f"cvsim: the run failed: {result.message}", file=sys.stderr)
+            print("No output written (use --keep-failed to write what was computed).",
+                  file=sys.stderr)
+            return 1
+        result.warnings[:0] = scenario.warnings  # the reader's warnings join the summary's
+        write_run_outputs(result, out, plots=not args.no_plots, echo=scenario.echo,
+                          report=args.report, scenario=scenario)
     if not args.quiet:
         print(summary_text(result))
     print(f"Results written to {out}/")
@@ -183,11 +191,30 @@ def cmd_run(args) -> int:
     return 0
 
 
+def scenario_warnings(scenario) -> list[str]:
+    """The reader's warnings and the solver's word on the recording interval
+    (both known before the run)."""
+    from .solve import recording_interval
+    run = scenario.network.run
+    _, note = recording_interval(run.end_time, run.record_every)
+    return list(scenario.warnings) + ([f"run.record_every: {note}"] if note else [])
+
+
+def _say_warnings(warnings: list[str]) -> None:
+    for w in warnings:
+        print(f"cvsim: warning: {w}", file=sys.stderr)
+
+
 def cmd_check(args) -> int:
     from .scenario import load_scenario
     scenario = load_scenario(args.scenario, overrides=_overrides(args.overrides))
-    print(f"{args.scenario}: no problems found.")
-    w = max([len(str(r.key)) for r in scenario.echo] + [10])
+    warnings = scenario_warnings(scenario)
+    print(f"{args.scenario}: no problems found"
+          + (f", {len(warnings)} warning{'s' if len(warnings) != 1 else ''}:" if warnings
+             else "."))
+    for text in warnings:
+        print(f"  ! {text}")
+    w = min(max([len(str(r.key)) for r in scenario.echo] + [10]), 60)
     for r in scenario.echo:
         line = f"  {r.key:<{w}}  {r.given!s:<22} -> {r.used}"
         if getattr(r, "note", ""):
@@ -225,21 +252,23 @@ def cmd_relief(args) -> int:
               if args.wall_temperature else None)
     except CvsimError as exc:
         raise CvsimError(f"relief: {exc}") from None
-    sizing = size_relief(net, args.valve, relieving_temperature=T1, wall_temperature=Tw,
-                         confirm=not args.no_confirm, scenario=scenario, **kw)
-    text = sizing_text(sizing, net.atmosphere)
-    print(text, end="")
-    if args.out:
-        from .result import CAUTION
-        # every output a person could act on carries the caution
-        record = {**sizing.as_dict(), "caution": CAUTION}
-        extra = {"relief-sizing.txt": text,
-                 "relief-sizing.json": json.dumps(_jsonable(record), indent=2) + "\n"}
-        if sizing.confirm is None:
-            raise CvsimError("--out needs the confirming run (drop --no-confirm)")
-        write_run_outputs(sizing.confirm, args.out, echo=scenario.echo, report=args.report,
-                          scenario=scenario, extra_files=extra)
-        print(f"Confirming run and sizing written to {args.out}/")
+    if args.out and args.no_confirm:
+        raise CvsimError("--out needs the confirming run (drop --no-confirm)")
+    from .outfolder import claim
+    with claim(args.out) if args.out else contextlib.nullcontext():
+        sizing = size_relief(net, args.valve, relieving_temperature=T1, wall_temperature=Tw,
+                             confirm=not args.no_confirm, scenario=scenario, **kw)
+        text = sizing_text(sizing, net.atmosphere)
+        print(text, end="")
+        if args.out:
+            from .result import CAUTION
+            # every output a person could act on carries the caution
+            record = {**sizing.as_dict(), "caution": CAUTION}
+            extra = {"relief-sizing.txt": text,
+                     "relief-sizing.json": json.dumps(_jsonable(record), indent=2) + "\n"}
+            write_run_outputs(sizing.confirm, args.out, echo=scenario.echo,
+                              report=args.report, scenario=scenario, extra_files=extra)
+            print(f"Confirming run and sizing written to {args.out}/")
     if sizing.confirm is not None and not sizing.met:
         return 3
     return 0
@@ -264,21 +293,53 @@ def _commands() -> dict:
     return {**COMMANDS, **STUDY_COMMANDS}
 
 
+def _terminate(signum, frame):
+    from .errors import Terminated
+    raise Terminated()
+
+
+@contextlib.contextmanager
+def _signals():
+    """SIGTERM ends the command as Ctrl-C does, and warnings about output
+    folders are printed as one line each."""
+    from .outfolder import OutputWarning
+    old = None
+    if threading.current_thread() is threading.main_thread():
+        old = signal.signal(signal.SIGTERM, _terminate)
+    shown = warnings.showwarning
+
+    def show(message, category, filename, lineno, file=None, line=None):
+        if issubclass(category, OutputWarning):
+            print(f"cvsim: warning: {message}", file=sys.stderr)
+        else:
+            shown(message, category, filename, lineno, file, line)
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("always", OutputWarning)
+            warnings.showwarning = show
+            yield
+    finally:
+        if old is not None:
+            signal.signal(signal.SIGTERM, old)
+
+
 def main(argv: list[str] | None = None) -> int:
     parser = _parser()
     args = parser.parse_args(argv)
     if not args.command:
         parser.print_help()
         return 0
-    from .errors import CvsimError
+    from .errors import CvsimError, Terminated
     try:
-        return _commands()[args.command](args)
+        with _signals():
+            return _commands()[args.command](args)
     except CvsimError as exc:
         print(f"cvsim: {exc}", file=sys.stderr)
         return 2
-    except KeyboardInterrupt:  # pragma: no cover - interactive
-        print("cvsim: interrupted; no output written.", file=sys.stderr)
-        return 130
+    except KeyboardInterrupt as exc:
+        how = "terminated" if isinstance(exc, Terminated) else "interrupted"
+        print(f"cvsim: {how}; no output written.", file=sys.stderr)
+        return 143 if isinstance(exc, Terminated) else 130
 
 
 if __name__ == "__main__":  # pragma: no cover

@@ -95,3 +95,8 @@ class StudyError(CvsimError, ValueError):
 class ClusterError(CvsimError, RuntimeError):
     """Parallel workers could not be used: Dask not installed, scheduler not
     reachable, or workers running another cvsim version."""
+
+
+class Terminated(KeyboardInterrupt):
+    """SIGTERM, which the command line handles as Ctrl-C: work stops, nothing
+    half-written stays (a stopped sweep keeps its finished cases)."""

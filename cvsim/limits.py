@@ -138,6 +138,14 @@ def _extreme(t, values, kind):
     return float(values[i]), float(t[i])
 
 
+#: a history reaches a target when it comes within this fraction of it. The one
+#: tolerance of every "reached" verdict - stop conditions in the summary's targets,
+#: depressuring limits, sweep outcomes - so that a run the solver stopped on a
+#: target always counts as having reached it: the solver places a stop on its
+#: target to the accuracy of the property flash (about 1e-9 relative), well inside.
+REACHED_RTOL = 1e-6
+
+
 def depressuring_start(t, pressure, t_reach: float) -> float:
     """Start of depressuring [s]: where the pressure's last uninterrupted fall before
     ``t_reach`` began (the last pressure peak before the target is reached).
@@ -172,12 +180,11 @@ def depressuring_start(t, pressure, t_reach: float) -> float:
 
 
 def first_time_at_or_below(t, values, target: float) -> float:
-    """First time [s] a history reaches ``target`` from above (linear between
-    points); NaN if never."""
+    """First time [s] a history reaches ``target`` from above, to within
+    :data:`REACHED_RTOL` (linear between points); NaN if never."""
     t = np.asarray(t, dtype=float)
     v = np.asarray(values, dtype=float)
-    # a stop event lands on the target: allow for its last digits
-    below = np.nonzero(v <= target + 1e-9 * abs(target))[0]
+    below = np.nonzero(v <= target + REACHED_RTOL * abs(target))[0]
     if below.size == 0:
         return float("nan")
     i = int(below[0])

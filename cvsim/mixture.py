@@ -48,7 +48,8 @@ from .components import (COMPONENTS, EQUATIONS, GERG_COMPONENTS,  # noqa: F401 (
                          Composition, CompositionWarning, component_name, equation_name,
                          make_composition)
 from .errors import FluidError, StateError
-from .fluid import NAN, R_UNIVERSAL, State, root_on_bracket
+from .fluid import NAN, R_UNIVERSAL, State
+from .numerics import root_on_bracket
 from .mixture_calls import LeanCalls
 
 #: relative residual tolerance of the mixture state solves (v and u, s relative to
@@ -982,6 +983,26 @@ class MixtureFluid:
         out.liquid_fraction = 0.0 if vapour else 1.0
         return out
 
+    def stream_state(self, st: MixtureState, quality: float,
+                     last: "MixtureFluid | None" = None) -> MixtureState:
+        """The stream an outlet draws from two-phase contents ``st`` when it carries the
+        vapour mass fraction ``quality`` (1: the vapour phase, 0: the liquid phase,
+        between: both phases as they are in the vessel, e.g. a top outlet the level has
+        reached; :mod:`cvsim.outlets`): its composition is the phases' in that
+        proportion, its state the same phases at the vessel's T and p, on the view of
+        that composition."""
+        if quality >= 1.0:
+            return self.phase_state(st, "vapour", last)
+        if quality <= 0.0:
+            return self.phase_state(st, "liquid", last)
+        e = self.engine
+        V = e._phase_tp(st.T, st.p, st.y, e._VAP)
+        L = e._phase_tp(st.T, st.p, st.x, e._LIQ)
+        nV, nL = quality / V.M, (1.0 - quality) / L.M
+        beta = nV / (nV + nL)
+        view = e.view(beta * st.y + (1.0 - beta) * st.x, last)
+        return view._make(st.T, st.p, (beta, st.x, st.y, V, L))
+
     def sound_speed(self, st: MixtureState) -> float:
         """Equilibrium speed of sound [m/s] of a state of this mixture: the phase's own
         in one phase; in two phases with mechanical, thermal and phase equilibrium
@@ -1066,7 +1087,7 @@ ENVELOPE_MARGIN_P = 0.02    # [-] relative, above the cricondenbar
 def _solve_increasing(f, x0: float, dx0: float, lo: float, hi: float, tol: float):
     """Root of an increasing function f on [lo, hi] from x0: step outward by dx0
     (doubling) until the sign changes, then Illinois false position
-    (:func:`cvsim.fluid.root_on_bracket`) to |f| <= tol. None when no sign change."""
+    (:func:`cvsim.numerics.root_on_bracket`) to |f| <= tol. None when no sign change."""
     x0 = min(max(x0, lo), hi)
     f0 = f(x0)
     if abs(f0) <= tol:

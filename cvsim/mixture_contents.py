@@ -15,8 +15,9 @@ composition of what it draws, and the component flows follow from the mass flow:
 
 * a top outlet of a two-phase vessel draws its vapour phase (composition y, at the
   vessel's T and p: its dew point), a bottom outlet its liquid phase (x, at its
-  bubble point), each with its own enthalpy; a single-phase vessel gives its own
-  contents (w_i = m_i / sum m);
+  bubble point), each with its own enthalpy; as the level reaches an outlet it draws
+  both phases in the proportion of :func:`cvsim.outlets.drawn_quality`; a
+  single-phase vessel gives its own contents (w_i = m_i / sum m);
 * a reservoir supplies its own composition (the fluid's unless it states one).
 
 Since sum(w) = 1 for every stream, sum(dm_i/dt) = dm/dt: the component masses sum to
@@ -29,6 +30,7 @@ from __future__ import annotations
 import numpy as np
 
 from .errors import StateError
+from .outlets import drawn_quality
 
 
 class MixtureContents:
@@ -89,12 +91,15 @@ class MixtureContents:
             w = np.maximum(masses, 0.0)
             w = w / w.sum()
             return st, st, (st if draws_liquid else None), w, w
-        vap = view.phase_state(st, "vapour", self.vapour_views[k])
+        # what each outlet draws: its phase, or both as the level reaches it
+        q = drawn_quality("vapour", st.quality, st.liquid_fraction)
+        vap = view.stream_state(st, q, self.vapour_views[k])
         self.vapour_views[k] = vap.fluid
         w_vap = vap.fluid.mass_fractions()
         liq = w_liq = None
         if draws_liquid:
-            liq = view.phase_state(st, "liquid", self.liquid_views[k])
+            q = drawn_quality("liquid", st.quality, st.liquid_fraction)
+            liq = view.stream_state(st, q, self.liquid_views[k])
             self.liquid_views[k] = liq.fluid
             w_liq = liq.fluid.mass_fractions()
         return st, vap, liq, w_vap, w_liq

@@ -3,6 +3,8 @@
 State vector ``y`` (all SI):
 
 * per vessel: mass m [kg] and internal energy U [J] of its contents;
+* per vessel held as separated vapour and liquid zones: the liquid zone's mass and
+  internal energy (the vapour zone is the rest; :mod:`cvsim.zones`);
 * per heat term with states of its own (walls, later): those states;
 * a mixture run: per vessel the mass of each component [kg]
   (:mod:`cvsim.mixture_contents`);
@@ -23,7 +25,8 @@ with dV/dt = 0 for the rigid vessels built here (the term stays in the
 equations so that a moving boundary can be added). The thermodynamic state
 follows from the density m/V and the specific internal energy U/m through the
 fluid layer. A stream leaving a vessel carries the vessel's specific enthalpy;
-when two phases are present the outlet draws vapour (top outlet).
+when two phases are present a top outlet draws vapour and a bottom outlet liquid,
+and either draws the mixture as the level reaches it (:mod:`cvsim.outlets`).
 
 The model is split by time: :meth:`Model.segment` prepares a
 :class:`Segment` for one stretch between breakpoints with the discrete states
@@ -50,11 +53,14 @@ from .flow.fixed import FixedFlowDevice
 from .flow.orifice import OrificeDevice
 from .flow.relief import ReliefValveDevice
 from .fluid import fluid_for
+from .outlets import drawn_state
 from .heat.definitions import GasFire, Wall
 from .heat.loads import AmbientExchangeTerm, HeatLoadTerm
 from .heat.walls import GasFireTerm, WallTerm
+from .heat.zoned_wall import ZonedWallTerm
 from .sequence import SequenceController
 from .signals import Constant
+from .zones import ZonedVessel, liquid_share_drawn
 
 #: run-time class of each device definition; later devices register here
 DEVICE_TYPES = {
@@ -108,19 +114,40 @@ class Model:
         self.node_index = {n: i for i, n in enumerate(self.node_names)}
         self.n_vessels = len(self.vessels)
 
-        # heat terms and their own states
+        # vessels held as separated zones: the liquid zone's (m_l, U_l)
         offset = 2 * self.n_vessels
+        self.zoned: dict[int, ZonedVessel] = {}
+        for vrt, vdef in zip(self.vessels, network.vessels):
+            if vdef.zones is not None:
+                if self.mix is not None:
+                    from .errors import FluidError
+                    raise FluidError(f"vessel '{vdef.name}': separated vapour and liquid "
+                                     "zones are not built for mixtures; hold it in "
+                                     "equilibrium (one zone)")
+                from .heat.transport import GasProperties
+                zv = ZonedVessel(vdef, vrt, self.fluid, offset, GasProperties(self.fluid))
+                offset += zv.n_states
+                self.zoned[vrt.index] = zv
+
+        # heat terms and their own states
         self.heat_terms = []
         for vrt, vdef in zip(self.vessels, network.vessels):
+            zv = self.zoned.get(vrt.index)
             for h in vdef.heat:
-                term = HEAT_TYPES[type(h)](h, vdef.name)
+                if zv is not None and isinstance(h, Wall):
+                    term = ZonedWallTerm(h, vdef.name, zv)
+                else:
+                    term = HEAT_TYPES[type(h)](h, vdef.name)
+                if zv is not None:
+                    term.liquid_row = zv.offset + 1
                 term.offset = offset
                 offset += term.n_states
                 vrt.heat.append(term)
                 self.heat_terms.append((vrt.index, term))
         #: the heat terms' own states (wall temperatures): nothing else depends on them
         #: but the heat terms, so the cache of vessel states and flows ignores them
-        self.heat_states = (2 * self.n_vessels, offset)
+        self.heat_states = (self.heat_terms[0][1].offset if self.heat_terms else offset,
+                            offset)
         # a mixture run: the component masses of each vessel
         self.i_comp = offset
         if self.mix is not None:
@@ -199,6 +226,9 @@ class Model:
             vrt.T_hint = st.T
             if self.mix is not None:
                 y[vrt.i_c:vrt.i_c + self.mix.nc] = self.mix.initial_masses(m)
+        for vi, zv in self.zoned.items():
+            zv.check_initial(states[vi])
+            y[zv.offset:zv.offset + 2] = zv.initial(states[vi])
         for vi, term in self.heat_terms:
             init = term.initial_states(states[vi])
             y[term.offset:term.offset + term.n_states] = init
@@ -227,6 +257,9 @@ class Model:
             sc[vrt.i_m], sc[vrt.i_U] = m, e
             if vrt.i_c is not None:
                 sc[vrt.i_c:vrt.i_c + self.mix.nc] = m
+            zv = self.zoned.get(vrt.index)
+            if zv is not None:
+                sc[zv.offset], sc[zv.offset + 1] = m, e
             m_total += m
             e_total += e
         for vi, term in self.heat_terms:
@@ -316,6 +349,8 @@ class Model:
                     cols.append((f"{v.name}.heat.{term.name}.source_temperature", "K",
                                  "heat-source"))
                 cols += term.columns(v.name)
+            if v.index in self.zoned:
+                cols += self.zoned[v.index].columns()
         for r in self.reservoirs:
             cols.append((f"{r.name}.pressure", "Pa", "reservoir"))
             cols.append((f"{r.name}.temperature", "K", "reservoir"))
@@ -341,7 +376,7 @@ class Model:
         (1974) 117): a wall of any number of nodes then costs three right-hand sides
         per Jacobian. Columns that change nothing (bookkeeping integrals) are left out.
         """
-        groups = [([j], None) for j in range(2 * self.n_vessels)]
+        groups = [([j], None) for j in range(self.heat_states[0])]
         # the component masses of a mixture run change every vessel state and flow
         groups += [([j], None) for j in range(self.i_comp, self.n_dynamic)]
         declared = []
@@ -436,23 +471,27 @@ class Segment:
         fluid = m.fluid
         states = []
         outflow = []
+        zoned = m.zoned
         for v in m.vessels:
             mass = y[v.i_m]
+            zv = zoned.get(v.index)
             try:
+                if zv is not None:   # separated zones: what a top outlet draws
+                    st = zv.state(mass, y[v.i_U], y[zv.offset], y[zv.offset + 1])
+                    states.append(st)
+                    outflow.append(zv.drawn(st, "vapour")[0])
+                    continue
                 st = fluid.state_du(mass / v.volume, y[v.i_U] / mass if mass > 0 else math.nan,
                                     v.T_hint)
+                v.T_hint = st.T
+                states.append(st)
+                outflow.append(drawn_state(fluid, st, "vapour"))
             except StateError as exc:
                 raise StateError(exc.detail, where=f"vessel '{v.name}'", time=t) from None
-            v.T_hint = st.T
-            states.append(st)
-            if st.two_phase:
-                outflow.append(fluid.saturated_vapour_at_p(st.p))
-            else:
-                outflow.append(st)
         liquid = None
         if m.draws_liquid:
-            liquid = [fluid.saturated_liquid_at_p(st.p) if st.two_phase else st
-                      for st in states]
+            liquid = [zoned[i].drawn(st, "liquid")[0] if i in zoned else
+                      drawn_state(fluid, st, "liquid") for i, st in enumerate(states)]
         for r in m.reservoirs:
             p = self.signal(r.pressure, t)
             T = self.signal(r.temperature, t)
@@ -534,7 +573,8 @@ class Segment:
         try:
             return self._rhs(t, y)
         except StateError as exc:
-            self.last_error = exc
+            if self.last_error is None:  # the first error of a step is the cause
+                self.last_error = exc
             return np.full(self.model.n_states, np.nan)
 
     def _rhs(self, t: float, y: np.ndarray) -> np.ndarray:
@@ -543,6 +583,7 @@ class Segment:
         dydt = np.zeros(m.n_states)
         nv = m.n_vessels
         acc = m.i_acc_links
+        zoned = m.zoned
         for k, (d, f) in enumerate(zip(m.devices, flows)):
             mdot = f.mdot
             if mdot == 0.0:
@@ -557,6 +598,16 @@ class Segment:
             if d.target < nv:
                 dydt[2 * d.target] += mdot
                 dydt[2 * d.target + 1] += e_tgt
+            if zoned:   # the part of a stream leaving a liquid zone (entering: the vapour)
+                left, draws = ((d.source, m.links[k].draws) if mdot > 0.0 else
+                               (d.target, "vapour"))
+                zv = zoned.get(left)
+                if zv is not None:
+                    z = s.states[left]
+                    w = liquid_share_drawn(draws, z.liquid_fraction, z.liquid is not None)
+                    if w > 0.0:
+                        dydt[zv.offset] -= w * abs(mdot)
+                        dydt[zv.offset + 1] -= w * abs(mdot) * z.liquid.h
             j = acc + ACC_PER_LINK * k
             dydt[j] = mdot
             dydt[j + 1] = e_src
@@ -574,12 +625,24 @@ class Segment:
                 if d.target < nv:
                     i = m.vessels[d.target].i_c
                     dydt[i:i + nc] += mdot * w
+        for vi, zv in zoned.items():   # rain-out, boil-off, interface
+            mdot_l, e_l = zv.liquid_rates(s.states[vi])
+            dydt[zv.offset] += mdot_l
+            dydt[zv.offset + 1] += e_l
         jh = m.i_acc_heat
         for k, (vi, term) in enumerate(m.heat_terms):
             own = y[term.offset:term.offset + term.n_states]
             q = term.evaluate(t, s.states[vi], own, self, dydt)
             dydt[2 * vi + 1] += q
             dydt[jh + k] = q
+        for vi, zv in zoned.items():   # the boundary work between the zones
+            z = s.states[vi]
+            W = zv.volume_rate(z, dydt[2 * vi], dydt[2 * vi + 1], dydt[zv.offset],
+                               dydt[zv.offset + 1])
+            dydt[zv.offset + 1] -= z.p * W
+            for term in m.vessels[vi].heat:
+                if isinstance(term, ZonedWallTerm):
+                    term.transfer(z.dshare_dV * W, dydt)
         return dydt
 
     def jac(self, t: float, y: np.ndarray) -> np.ndarray:
@@ -659,12 +722,16 @@ class Segment:
             if m.mix is not None:
                 row += list(st.z)
                 row += list(y[v.i_c:v.i_c + m.mix.nc])
+            scratch = np.zeros(m.n_states)
             for term in v.heat:
                 own = y[term.offset:term.offset + term.n_states]
-                row.append(term.evaluate(t, st, own, self, np.zeros(m.n_states)))
+                row.append(term.evaluate(t, st, own, self, scratch))
                 if term.has_source:
                     row.append(term.source_temperature(t, st, own, self))
                 row += term.values(t, st, own, self)
+            zv = m.zoned.get(v.index)
+            if zv is not None:
+                row += zv.values(t, st, float(scratch[zv.offset + 1]))
         for k, r in enumerate(m.reservoirs):
             st = s.states[nv + k]
             row += [st.p, st.T]
@@ -687,7 +754,8 @@ def _quantity_event(seg: Segment, node: int, quantity: str, value: float):
         try:
             st = seg.states(t, y).states[node]
         except StateError as exc:
-            seg.last_error = exc
+            if seg.last_error is None:
+                seg.last_error = exc
             return math.nan
         return (st.p if quantity == "pressure" else st.T) - value
     return g
@@ -698,6 +766,7 @@ def _switch_event(seg: Segment, sw):
         try:
             return sw.function(t, seg.states(t, y))
         except StateError as exc:
-            seg.last_error = exc
+            if seg.last_error is None:
+                seg.last_error = exc
             return math.nan
     return g

@@ -118,6 +118,45 @@ class InitialState:
 
 
 @dataclass(frozen=True)
+class RuptureLimit:
+    """Rupture screening of a vessel's wall in a fire (:mod:`cvsim.rupture`).
+
+    strength             how the metal's strength falls with temperature
+                         (:class:`cvsim.mechanics.StrengthData`)
+    criterion            ``tensile`` (ultimate tensile strength at temperature) or
+                         ``yield`` (yield strength at temperature)
+    fraction             [-] share of that strength the stress may reach
+    tensile_strength     [Pa] room-temperature ultimate tensile strength (``None``:
+                         not given)
+    yield_strength       [Pa] room-temperature yield strength (``None``: not given)
+    stress               ``hoop`` (the larger membrane stress) or ``equivalent``
+                         (von Mises of the membrane stresses)
+    corrosion_allowance  [m] taken off the load-bearing layer, on its inside
+    layer                index (0: innermost) of the wall layer that bears the pressure
+    creep                ``None`` or (Larson-Miller constant C [-], the master curve's
+                         parameters P [K], its rupture stresses [Pa]): creep damage by
+                         life fractions (:func:`cvsim.mechanics.creep_damage`)
+    key                  key path in the scenario, for messages
+    """
+
+    strength: object
+    criterion: str = "tensile"
+    fraction: float = 1.0
+    tensile_strength: float | None = None
+    yield_strength: float | None = None
+    stress: str = "hoop"
+    corrosion_allowance: float = 0.0
+    layer: int = 0
+    creep: tuple | None = None
+    key: str = ""
+
+    @property
+    def room_strength(self) -> float:
+        """[Pa] the room-temperature strength the criterion scales."""
+        return self.tensile_strength if self.criterion == "tensile" else self.yield_strength
+
+
+@dataclass(frozen=True)
 class VesselLimits:
     """Design limits of a vessel, checked after the run (``None``: not checked).
 
@@ -136,6 +175,7 @@ class VesselLimits:
     depressure_start       [s] when depressuring starts; ``None``: found from the run
                            (the last pressure peak before the target,
                            :func:`cvsim.limits.depressuring_start`)
+    rupture                rupture screening of the wall in a fire, or ``None``
     """
 
     design_pressure: float | None = None
@@ -147,6 +187,31 @@ class VesselLimits:
     depressure_within: float | None = None
     depressure_basis: str = ""
     depressure_start: float | None = None
+    rupture: RuptureLimit | None = None
+
+
+@dataclass(frozen=True)
+class SeparatedZones:
+    """Vapour and liquid held as two zones at their own temperatures (one pressure),
+    with heat and mass moving between them (:mod:`cvsim.zones`).
+
+    droplet_diameter   [m] condensate drops in the vapour zone, which settle into the
+                       liquid at their Stokes velocity (rain-out)
+    bubble_rise_coefficient  [-] C of the bubble rise velocity
+                       C (g sigma (rho_l - rho_v)/rho_l^2)^(1/4) that carries vapour
+                       formed in the liquid to the vapour zone (boil-off)
+    interface_factor   [-] multiplies the natural-convection coefficients across the
+                       interface (1: the correlations as published)
+    boiling_surface_constant  [-] C_sf of Rohsenow's nucleate-boiling correlation on
+                       the wetted wall
+    boiling_prandtl_exponent  [-] n of the same correlation
+    """
+
+    droplet_diameter: float = 20e-6
+    bubble_rise_coefficient: float = 1.53
+    interface_factor: float = 1.0
+    boiling_surface_constant: float = 0.013
+    boiling_prandtl_exponent: float = 1.7
 
 
 @dataclass(frozen=True)
@@ -156,6 +221,8 @@ class Vessel:
     initial: InitialState
     heat: tuple[HeatTerm, ...] = ()
     limits: VesselLimits | None = None
+    #: ``None``: one equilibrium state (the default); else separated zones
+    zones: SeparatedZones | None = None
 
     @property
     def volume(self) -> float:
@@ -419,6 +486,6 @@ class Network:
 __all__ = [
     "AmbientExchange", "BurstingDisc", "CheckValve", "Constant", "ControlValve", "Device",
     "FixedFlow", "FluidSpec", "Geometry", "HeatLoad", "HeatTerm", "InitialState", "Link",
-    "Network", "Orifice", "ReliefValve", "Reservoir", "RunSettings", "Sequence",
-    "StopCondition", "Vessel", "VesselLimits",
+    "Network", "Orifice", "ReliefValve", "Reservoir", "RunSettings", "RuptureLimit",
+    "SeparatedZones", "Sequence", "StopCondition", "Vessel", "VesselLimits",
 ]

@@ -2,22 +2,20 @@
 
 Everything is written into a temporary folder beside the requested one and
 moved into place only when complete, so a failed run never leaves files that
-look finished. Every file carries the caution and the provenance (cvsim and
+look finished; how folders are claimed, locked and replaced is in
+:mod:`cvsim.outfolder`. Every file carries the caution and the provenance (cvsim and
 CoolProp versions, the scenario file's hash).
 """
 from __future__ import annotations
 
-import contextlib
 import csv
 import json
 import math
 import os
-import shutil
-import tempfile
 from pathlib import Path
 
 from .contents import summary_lines
-from .errors import OutputError
+from .outfolder import MARKER, atomic_folder, claim  # noqa: F401  (re-exported)
 from .result import CAUTION, Result
 
 #: SI unit -> (engineering unit shown, function SI -> shown)
@@ -28,6 +26,7 @@ DISPLAY = {
     "J/(kg K)": ("kJ/(kg K)", lambda v: v / 1e3),
     "W": ("kW", lambda v: v / 1e3),
     "J": ("kJ", lambda v: v / 1e3),
+    "N/m2": ("MPa", lambda v: v / 1e6),  # stresses (cvsim.rupture)
 }
 
 
@@ -142,7 +141,7 @@ def summary_text(result: Result) -> str:
         L.append(f"Vessel '{name}':")
         L.append(f"  pressure    max {_bar(v['max_pressure_Pa'], atm)} at {_t(v['max_pressure_time_s'])};"
                  f" min {_bar(v['min_pressure_Pa'], atm)} at {_t(v['min_pressure_time_s'])}")
-        L.append(f"  gas temp.   max {_degc(v['max_temperature_K'])} at "
+        L.append(f"  temperature max {_degc(v['max_temperature_K'])} at "
                  f"{_t(v['max_temperature_time_s'])}; min {_degc(v['min_temperature_K'])} at "
                  f"{_t(v['min_temperature_time_s'])}")
         if "min_wall_temperature_K" in v:
@@ -226,9 +225,6 @@ def summary_text(result: Result) -> str:
     return "\n".join(L) + "\n"
 
 
-#: file that marks a folder as cvsim's own output (so it may be replaced)
-MARKER = ".cvsim-output"
-
 
 def _limit_value(value: float, unit: str, atm: float) -> str:
     if value != value:
@@ -239,7 +235,7 @@ def _limit_value(value: float, unit: str, atm: float) -> str:
         return f"{value - 273.15:.1f} degC"
     if unit == "s":
         return _t(value)
-    return f"{value:.4g} {unit}"
+    return f"{value:.4g} {unit}".rstrip()
 
 
 def _margin(value: float, unit: str) -> str:
@@ -251,7 +247,7 @@ def _margin(value: float, unit: str) -> str:
         return f"{value:+.1f} K"
     if unit == "s":
         return f"{value:+.4g} s"
-    return f"{value:+.4g} {unit}"
+    return f"{value:+.4g} {unit}".rstrip()
 
 
 def limits_text(result: Result) -> str:
@@ -270,45 +266,6 @@ def limits_text(result: Result) -> str:
                  f"{_limit_value(c.actual, c.unit, atm)}{when}, margin {_margin(c.margin, c.unit)}")
         L.append(f"            practice: {c.practice}" + (f"; {c.note}" if c.note else ""))
     return "\n".join(L)
-
-
-@contextlib.contextmanager
-def atomic_folder(out_dir: Path):
-    """Write an output folder all at once or not at all.
-
-    Yields a temporary folder beside ``out_dir`` (with the cvsim marker file
-    in it); when the block ends without an error it is renamed to ``out_dir``,
-    replacing an earlier cvsim output folder there; on an error it is removed.
-    A folder that cvsim did not write is never replaced.
-    """
-    out_dir = Path(out_dir)
-    parent = out_dir.parent
-    if out_dir.exists() and (not out_dir.is_dir() or (
-            any(out_dir.iterdir()) and not (out_dir / MARKER).exists())):
-        raise OutputError(f"'{out_dir}' exists and is not an earlier cvsim output folder; "
-                          "choose a new folder with --out (cvsim replaces only its own "
-                          "output folders).")
-    try:
-        parent.mkdir(parents=True, exist_ok=True)
-        tmp = Path(tempfile.mkdtemp(prefix=f".{out_dir.name}.partial-", dir=parent))
-    except OSError as exc:
-        raise OutputError(f"cannot create the output folder '{out_dir}': {exc.strerror}") from None
-    try:
-        (tmp / MARKER).write_text("written by cvsim; this folder is replaced on the next run\n")
-        yield tmp
-        if out_dir.exists():
-            old = Path(tempfile.mkdtemp(prefix=f".{out_dir.name}.old-", dir=parent))
-            os.rename(out_dir, old / "x")
-            os.rename(tmp, out_dir)
-            shutil.rmtree(old, ignore_errors=True)
-        else:
-            os.rename(tmp, out_dir)
-    except OSError as exc:
-        shutil.rmtree(tmp, ignore_errors=True)
-        raise OutputError(f"cannot write results into '{out_dir}': {exc}") from None
-    except BaseException:
-        shutil.rmtree(tmp, ignore_errors=True)
-        raise
 
 
 def write_run_outputs(result: Result, out_dir: Path, plots: bool = True,
@@ -330,24 +287,64 @@ def write_run_outputs(result: Result, out_dir: Path, plots: bool = True,
 def write_run_files(result: Result, folder: Path, plots: bool = True,
                     echo: list | None = None, report: bool = False, scenario=None,
                     extra_files: dict | None = None) -> None:
-    """The files of :func:`write_run_outputs`, written into an existing folder."""
+    """The files of :func:`write_run_outputs`, written into an existing folder.
+
+    Plots are drawn first: one that fails is left out with a warning in the
+    summary (naming it), and the histories and summary are written all the same."""
+    drawn = None  # plots for the report: None = the report draws its own
+    if plots:
+        drawn = []
+        if len(result.data) > 1:
+            drawn = _plots(result, folder)
     write_csv(result, folder / "history.csv")
     write_csv(result, folder / "steps.csv", fine=True)
     (folder / "summary.txt").write_text(summary_text(result), encoding="utf-8")
     write_summary_json(result, folder / "summary.json")
     if echo is not None:
         (folder / "inputs.txt").write_text(echo_text(result, echo), encoding="utf-8")
-    drawn = None  # plots for the report: None = the report draws its own
-    if plots:
-        drawn = []
-        if len(result.data) > 1:
-            from .plot import plot_run
-            drawn = plot_run(result, folder)
     for name, text in (extra_files or {}).items():
         (folder / name).write_text(text, encoding="utf-8")
     if report:
         from .report import write_run_report
         write_run_report(result, folder / "report.html", scenario, plots=drawn)
+
+
+#: the plots of a run in the order :func:`cvsim.plot.plot_run` draws them
+PLOT_FILES = ("overview.png", "pressure.png", "temperature.png", "mass.png", "flow.png",
+              "opening.png", "wall.png")
+
+
+def _plots(result: Result, folder: Path) -> list[Path]:
+    """Draw the run's plots; a plot that fails must not cost the results: the
+    plots drawn whole are kept, the rest left out, and the result carries a
+    warning naming the first one that could not be drawn."""
+    before = set(folder.iterdir())
+    try:
+        from .plot import plot_run
+        return plot_run(result, folder)
+    except Exception as exc:  # matplotlib layout, fonts, memory: never lose the run
+        made = {p.name: p for p in folder.iterdir() if p not in before}
+        whole = [n for n in PLOT_FILES if n in made and _whole_png(made[n])]
+        for name, p in made.items():
+            if name not in whole:
+                p.unlink()
+        first = next((n for n in PLOT_FILES if n not in whole), "a plot")
+        what = " ".join(f"{type(exc).__name__}: {exc}".split())[:200]
+        result.warnings.append(f"plots left out: '{first}' could not be drawn ({what}); "
+                               "the histories and the summary are complete")
+        return [made[n] for n in whole]
+
+
+def _whole_png(path: Path) -> bool:
+    """True for a PNG file written to its end (its last chunk is IEND)."""
+    try:
+        with open(path, "rb") as fh:
+            head = fh.read(8)
+            fh.seek(-12, os.SEEK_END)
+            tail = fh.read()
+    except OSError:
+        return False
+    return head == b"\x89PNG\r\n\x1a\n" and tail[4:8] == b"IEND"
 
 
 def echo_text(result: Result, echo: list) -> str:

@@ -18,7 +18,9 @@ own when there are any. The temperatures through a layered wall
 the temperature panel keeps only the wall's surfaces. When any vessel holds liquid at
 some time, ``level.png`` shows the liquid level of those vessels (``<vessel>.liquid_level``,
 with each vessel's inside height), or their liquid share of the volume when one of them
-is given by its volume only (no height).
+is given by its volume only (no height). A vessel with a rupture screening
+(``<vessel>.rupture.*``, :mod:`cvsim.rupture`) gets ``rupture.png``: the stress in the
+wall, the stress allowed at the metal's temperature and the margin between them.
 
 matplotlib (and the rest of cvsim) is imported only inside the functions
 (the command line starts faster) and only through its object interface with the Agg canvas: no
@@ -65,6 +67,10 @@ PANEL_WITH_OPENINGS_IN = {False: (4.4, 1.9), True: (9.6, 1.3)}
 TITLE_PT = 12.0
 SUBTITLE_PT = 9.0
 FOOTER_PT = 7.0
+#: lines of title and subtitle at most (a longer title is cut with an ellipsis:
+#: the whole title is in every text output)
+TITLE_LINES = 3
+SUBTITLE_LINES = 4
 LEGEND_PT = 7.5
 LEGEND_ROWS = 6           # a longer legend is set in two columns
 EVENT_PT = 6.5
@@ -118,8 +124,8 @@ def plot_run(result: Result, folder: Path) -> list[Path]:
     only when the result has ``<link>.opening`` columns, ``opening.png``; only
     with layered walls, ``wall.png``; only when a vessel holds liquid at some time,
     ``level.png``; a mixture run whose vessel holds two phases, ``phases.png`` (vapour
-    share of the mass, liquid share of the volume). Returns the paths written, in
-    that order.
+    share of the mass, liquid share of the volume); only with a rupture screening,
+    ``rupture.png``. Returns the paths written, in that order.
     """
     folder = Path(folder)
     folder.mkdir(parents=True, exist_ok=True)
@@ -134,11 +140,13 @@ def plot_run(result: Result, folder: Path) -> list[Path]:
         panels.append(("level", _level))
     if view.phases:
         panels.append(("phases", _phases))
+    if view.rupture:
+        panels.append(("rupture", _rupture))
     written = []
 
-    # the overview holds the four quantities and the openings; walls and levels have
-    # their own pages
-    overview = [p for p in panels if p[0] not in ("wall", "level", "phases")]
+    # the overview holds the four quantities and the openings; walls, levels, phases
+    # and the rupture screening have their own pages
+    overview = [p for p in panels if p[0] not in ("wall", "level", "phases", "rupture")]
     path = folder / "overview.png"
     with _figure(OVERVIEW_SIZE, view) as fig:
         if view.openings:  # valve states under the four quantities, across the page
@@ -198,6 +206,8 @@ class _View:
         self.phases = [v for v in self.vessels if n and net.fluid.model == "mixture"
                        and bool(np.any(~np.isnan(result[f"{v}.vapour_quality"])))]
         self.extra_temperatures = self._extra_temperatures(names)
+        # vessels with a rupture screening (cvsim.rupture)
+        self.rupture = [v for v in self.vessels if f"{v}.rupture.stress" in names]
         self.atmosphere_bar = net.atmosphere / BAR
         self.events = [(float(t) / self.time_size, str(text)) for t, text in result.events]
 
@@ -207,7 +217,10 @@ class _View:
         out = {v: [] for v in self.vessels}
         by_length = sorted(self.vessels, key=len, reverse=True)
         for name in names:
-            if self.result.unit(name) != "K" or name.endswith(".source_temperature"):
+            if (self.result.unit(name) != "K" or name.endswith(".source_temperature")
+                    or name.endswith(".contents_temperature")
+                    or name.endswith(".vapour_temperature")   # the gas line itself
+                    or "wetted.node" in name):   # wall parts: inner and outer shown
                 continue
             owner = next((v for v in by_length if name.startswith(v + ".")), None)
             if (owner is not None and name != f"{owner}.temperature"
@@ -365,6 +378,33 @@ def _wall(ax, view: _View, overview: bool):
     ax.set_ylabel("Temperature [°C]")
     _finish(ax, view, "Temperatures through the wall (node 0: inside surface)", floor=1e-2,
             overview=overview)
+
+
+def _rupture(ax, view: _View, overview: bool):
+    """Rupture screening: the stress in the wall and the stress allowed at the metal's
+    temperature (MPa), the margin between them, and the time the margin first reaches
+    zero (the earliest time to rupture)."""
+    r = view.result
+    for v in view.rupture:
+        colour = view.colour[v]
+        stress = r[f"{v}.rupture.stress"] / 1e6
+        allowed = r[f"{v}.rupture.allowed_stress"] / 1e6
+        _line(ax, view, stress, f"{v}: stress in the wall", colour, lw=1.6)
+        _line(ax, view, allowed, f"{v}: allowed at the metal temperature", colour, lw=1.6,
+              ls=DASHES[1])
+        _line(ax, view, allowed - stress, f"{v}: margin (allowed - stress)", colour, lw=0.9,
+              ls=DASHES[2])
+        when = r.rupture.get(v, {}).get("rupture_time_s")
+        if when is not None:
+            x = when / view.time_size
+            ax.axvline(x, color=colour, lw=1.2, ls="-", alpha=0.6)
+            ax.annotate(f"{v}: rupture at {_fmt_time(when)}", (x, 0.97),
+                        xycoords=("data", "axes fraction"), fontsize=EVENT_PT + 1,
+                        color=colour, ha="right", va="top", rotation=90)
+    ax.axhline(0.0, color="0.4", lw=0.7)
+    ax.set_ylabel("Stress [MPa]")
+    _finish(ax, view, "Rupture screening: stress against the strength at temperature",
+            floor=1e-3, overview=overview)
 
 
 def _level(ax, view: _View, overview: bool):
@@ -633,8 +673,8 @@ def _frame(fig, title_text: str, subtitle: str, alarm: bool) -> tuple[float, flo
     to_frac = 1.0 / (72.0 * height)
     spacing = 1.25
 
-    title = _wrap(title_text, width, TITLE_PT, bold=True)
-    sub = _wrap(subtitle, width, SUBTITLE_PT)
+    title = _wrap(title_text, width, TITLE_PT, bold=True, max_lines=TITLE_LINES)
+    sub = _wrap(subtitle, width, SUBTITLE_PT, max_lines=SUBTITLE_LINES)
     y = 1.0 - pad * to_frac
     fig.text(0.5, y, "\n".join(title), ha="center", va="top", fontsize=TITLE_PT,
              fontweight="bold", linespacing=spacing)
@@ -653,12 +693,20 @@ def _frame(fig, title_text: str, subtitle: str, alarm: bool) -> tuple[float, flo
     return y, bottom
 
 
-def _wrap(text: str, width_in: float, size_pt: float, bold: bool = False) -> list[str]:
+def _wrap(text: str, width_in: float, size_pt: float, bold: bool = False,
+          max_lines: int | None = None) -> list[str]:
     """Lines of ``text`` that fit a figure ``width_in`` wide at ``size_pt``
-    (average glyph of DejaVu Sans about 0.55 em, bold 0.62 em)."""
+    (average glyph of DejaVu Sans about 0.55 em, bold 0.62 em); at most
+    ``max_lines``, the last one ending in an ellipsis when text is cut."""
     em = 0.62 if bold else 0.55
     chars = max(20, int(0.96 * width_in * 72.0 / (em * size_pt)))
-    return textwrap.wrap(text, chars) or [""]
+    if max_lines is not None:
+        text = text[:chars * (max_lines + 1)]  # a very long title: wrap no more than needed
+    lines = textwrap.wrap(text, chars) or [""]
+    if max_lines is not None and len(lines) > max_lines:
+        lines = lines[:max_lines]
+        lines[-1] = lines[-1][:chars - 1].rstrip() + "\u2026"
+    return lines
 
 
 __all__ = ["flow_unit", "plot_run", "time_unit"]

@@ -55,6 +55,9 @@ PLOT_CAPTIONS = {
     "opening": "Opening of each valve.",
     "level": "Liquid level above each vessel's inside bottom, with its inside height "
              "(liquid-full); or the liquid's share of the volume.",
+    "rupture": "Rupture screening: the membrane stress in the wall, the stress allowed at "
+               "the metal's hottest temperature and the margin between them; a vertical "
+               "line marks the earliest time to rupture.",
 }
 
 #: Labels of the solver statistics (others are shown by their key).

@@ -18,7 +18,9 @@ from .flow.exponent import EXPONENT_ASSUMPTION
 from .limits import check_vessel, first_time_at_or_below
 from .model import ACC_PER_LINK, Model
 from .network import Network
+from .rupture import add_rupture
 from .solve import RawRun
+from .zones import run_figures as zone_figures
 
 CAUTION = ("Screening estimate - verify against the governing codes (e.g. ASME Section VIII, "
            "API 520/521, ISO 4126, ISO 23251, local regulations) and have it reviewed by a "
@@ -44,6 +46,7 @@ class Result:
     device_figures: dict = field(default_factory=dict)  # per link: figures of its device
     checks: list = field(default_factory=list)      # self-checks (cvsim.checks.Check)
     contents: dict = field(default_factory=dict)  # per vessel: phase, liquid share, level
+    rupture: dict = field(default_factory=dict)   # per vessel: rupture screening figures
 
     @property
     def checks_failed(self) -> list:
@@ -158,7 +161,6 @@ class Result:
             "self_checks_failed": len(self.checks_failed),
             "solver": self.stats,
             "assumptions": self.assumptions,
-            "warnings": self.warnings,
             "provenance": self.provenance,
             "caution": CAUTION,
         }
@@ -193,6 +195,8 @@ class Result:
                     d[f"{when}_mole_fractions"] = {
                         c: float(self[f"{n}.mole_fraction.{c}"][row]) for c in comps}
             d.update(self.contents.get(n, {}))
+            d.update(self.rupture.get(n, {}))
+            d.update(zone_figures(self, n))
             out["vessels"][n] = d
         for link in self.network.links:
             n = link.name
@@ -243,12 +247,15 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
     totals, balance = _balances(model, raw)
     figures, warnings = _device_reports(model, raw)
     warnings = [w for _, term in model.heat_terms for w in term.warnings()] + warnings
+    warnings += [w for zv in model.zoned.values() for w in zv.warnings()]
+    warnings = list(getattr(raw, "warnings", ())) + warnings  # the solver's (recording)
     result = Result(network=model.network, status=raw.status, message=raw.message,
                     columns=cols, data=data, fine_data=fine, events=list(raw.events),
                     stats=dict(raw.stats), totals=totals, balance=balance,
                     assumptions=assumptions(model), provenance=dict(provenance or {}),
                     warnings=warnings, device_figures=figures)
     result.limits = check_limits(result)
+    add_rupture(result)
     result.contents, liquid_full = run_figures(model, result)
     result.warnings += liquid_full
     result.checks = self_checks(result)
@@ -385,14 +392,18 @@ def assumptions(model: Model) -> list[str]:
         out.append(f"Fluid properties: {f.name} as an ideal gas with constant heat capacities "
                    f"(M = {fl.molar_mass * 1000:.4f} g/mol, cp = {fl.cp:.1f} J/(kg K), "
                    f"gamma = {fl.gamma:.4f}).")
-    out.append("Vessels are rigid and their contents well mixed (one uniform state per vessel).")
+    out.append("Vessels are rigid and their contents well mixed (one uniform state per vessel"
+               + ("; vessels held as separated zones: one state per zone" if model.zoned else "")
+               + ").")
     out.append("A stream leaving a vessel carries the specific enthalpy of what it draws: the "
                "vessel's contents while single phase; with two phases present, saturated "
                "vapour" + (" (the vapour phase, with its own composition)"
                            if f.model == "mixture" else "")
                + (" (saturated liquid through links that draw liquid: "
                   + ", ".join(k.name for k in net.links if k.draws == "liquid") + ")"
-                  if any(k.draws == "liquid" for k in net.links) else "") + ".")
+                  if any(k.draws == "liquid" for k in net.links) else "")
+               + "; an outlet draws the mixture itself as the level comes within 2 % of the "
+               "volume of it (a regularisation, common practice, no source: cvsim.outlets).")
     kinds = {type(link.device).__name__ for link in net.links}
     if "Orifice" in kinds:
         models = sorted({link.device.flow_model for link in net.links
@@ -427,4 +438,5 @@ def assumptions(model: Model) -> list[str]:
             out.append("Heat terms as stated per vessel; no wall heat capacity unless a wall "
                        "is modelled.")
         out += [a for term in terms for a in term.assumptions()]
+    out += [a for zv in model.zoned.values() for a in zv.assumptions()]
     return out

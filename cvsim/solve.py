@@ -18,9 +18,17 @@ control of every accepted step:
 
 A failed run is a result (status ``failed`` and a message), so that sweeps can
 report it in a row and go on; the command line turns it into an error.
+
+Two bounds keep a run from exhausting the machine: the recorded histories hold
+at most :data:`MAX_RECORDED_POINTS` rows (a longer run is recorded at a coarser
+interval, :func:`recording_interval`, and says so in its warnings), and a
+wall-clock limit set with :func:`time_limit` (sweeps set one per case) ends a
+run that takes longer with status ``failed`` and the reason.
 """
 from __future__ import annotations
 
+import contextlib
+import contextvars
 import math
 import time as _time
 from dataclasses import dataclass, field
@@ -50,6 +58,53 @@ MAX_SWITCHES = 20000
 #: RETRY_SHRINK times smaller
 MAX_RETRIES = 12
 RETRY_SHRINK = 8.0
+#: most rows of the recorded histories (history.csv): a run whose end time over
+#: its recording interval gives more is recorded at a coarser interval. 200 000
+#: rows of a one-vessel run are about 60 MB of CSV and a few seconds of writing.
+MAX_RECORDED_POINTS = 200_000
+
+#: (wall-clock time [s, time.monotonic] at which the run in this thread gives up,
+#: the limit [s]) or None
+_DEADLINE: contextvars.ContextVar = contextvars.ContextVar("cvsim_deadline", default=None)
+
+
+def recording_interval(end_time: float, record_every: float) -> tuple[float, str]:
+    """(interval used [s], warning or ``""``): the requested interval, or the
+    smallest 1-2-5 multiple of a power of ten that keeps the recorded points
+    within :data:`MAX_RECORDED_POINTS` when ``end_time / record_every`` exceeds it.
+
+    >>> recording_interval(1e9, 1.0)[0]
+    5000.0
+    >>> recording_interval(600.0, 0.5)
+    (0.5, '')
+    """
+    if not (end_time / record_every > MAX_RECORDED_POINTS):
+        return record_every, ""
+    need = end_time / MAX_RECORDED_POINTS
+    power = 10.0 ** math.floor(math.log10(need))
+    used = next(f * power for f in (1.0, 2.0, 5.0, 10.0) if f * power >= need * (1 - 1e-12))
+    return used, (f"the run would record {end_time / record_every:.3g} points (run.end "
+                  f"{end_time:g} s / run.record_every {record_every:g} s), more than "
+                  f"{MAX_RECORDED_POINTS}; recorded every {used:g} s instead. Set "
+                  "run.record_every or a shorter run.end (with a stop condition) to choose")
+
+
+@contextlib.contextmanager
+def time_limit(seconds: float | None):
+    """Runs integrated in this block (in this thread) end with status
+    ``failed`` once they have taken ``seconds`` of wall-clock time (``None``:
+    no limit)."""
+    token = _DEADLINE.set(None if seconds is None else (_time.monotonic() + seconds, seconds))
+    try:
+        yield
+    finally:
+        _DEADLINE.reset(token)
+
+
+class _TimeUp(Exception):
+    def __init__(self, t, y):
+        super().__init__("time limit")
+        self.t, self.y = t, y
 
 
 @dataclass
@@ -68,6 +123,7 @@ class RawRun:
     y_initial: np.ndarray | None = None
     t_final: float = 0.0
     stats: dict = field(default_factory=dict)
+    warnings: list = field(default_factory=list)      # sentences for the summary
 
 
 class _Failure(Exception):
@@ -87,6 +143,10 @@ def integrate(model: Model, progress=None) -> RawRun:
              "jacobians": 0, "events": 0}
     raw.stats = stats
     t_end = settings.end_time
+    record_every, note = recording_interval(t_end, settings.record_every)
+    if note:
+        raw.warnings.append(note)
+    deadline, limit = _DEADLINE.get() or (None, None)
     try:
         y = model.y0()
         raw.y_initial = y.copy()
@@ -120,7 +180,15 @@ def integrate(model: Model, progress=None) -> RawRun:
         stats["segments"] += 1
         try:
             raw.rows.append(seg.observe(t, y))
-            t, y, hit = _integrate_segment(seg, settings, atol, y, raw, stats)
+            t, y, hit = _integrate_segment(seg, settings, atol, y, raw, stats,
+                                           record_every, deadline)
+        except _TimeUp as up:
+            stats["rhs_calls"] += seg.rhs_calls
+            stats["jacobians"] += seg.jac_calls
+            return _finish(raw, "failed", f"the run took longer than its time limit of "
+                           f"{limit:.4g} s (wall clock) and was stopped at t = {up.t:.6g} s "
+                           f"of {t_end:g} s; give it more time (sweeps: --case-time-limit) "
+                           "or shorten run.end", up.y, up.t, model, evals0, wall0)
         except _Failure as f:
             stats["rhs_calls"] += seg.rhs_calls
             stats["jacobians"] += seg.jac_calls
@@ -177,16 +245,18 @@ def _new_solver(seg, settings, atol, t, y, first_step):
     return cls(seg.rhs, t, y, seg.t1, **opts)
 
 
-def _integrate_segment(seg, settings, atol, y, raw, stats):
-    """Step one segment; returns (t, y, event action or None)."""
+def _integrate_segment(seg, settings, atol, y, raw, stats, dt_rec, deadline=None):
+    """Step one segment; returns (t, y, event action or None). Raises
+    :class:`_TimeUp` (at the last accepted step) past the ``deadline``."""
     t = seg.t0
     events = seg.events(settings.stop)
     g = [ev(t, y) for ev in events]
     solver = _new_solver(seg, settings, atol, t, y, None)
-    dt_rec = settings.record_every
     retries = 0
     h_last = None
     while True:
+        if deadline is not None and _time.monotonic() > deadline:
+            raise _TimeUp(t, y)
         t_old, y_old = t, y
         seg.last_error = None
         msg = solver.step()

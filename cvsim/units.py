@@ -93,6 +93,7 @@ DIMENSIONS: dict[str, Dimension] = {d.name: d for d in (
     Dimension("molar_mass", "a molar mass", "kg/mol", "kg/mol", "g/mol", "g/mol, kg/mol"),
     Dimension("density", "a density", "kg/m**3", "kg/m3", "kg/m3", "kg/m3, g/L, lb/ft3"),
     Dimension("velocity", "a velocity", "m/s", "m/s", "m/s", "m/s, km/h, ft/s"),
+    Dimension("stress", "a stress", "Pa", "Pa", "MPa", "MPa, N/mm2, kPa, Pa, ksi, psi"),
     Dimension("dimensionless", "a plain number", "", "-", "", "a plain number"),
     Dimension("fraction", "a fraction", "", "-", "%", "a plain number (0.07) or a percentage (7 %)"),
 )}
@@ -304,6 +305,9 @@ def read_quantity(text: str | float | int, dimension: str, *,
     value = float(quantity.to(target).magnitude)
 
     note = ""
+    if reference is not None and dim.name == "stress":
+        raise UnitsError(f"{_quote(text)}: a stress has no gauge or absolute reference; "
+                         f"write it in MPa, N/mm2, ksi or psi")
     if reference == "gauge":
         value += atmosphere
         note = f"gauge: atmosphere {atmosphere:.6g} Pa added"

@@ -20,7 +20,6 @@ import dataclasses
 import pytest
 
 import cvsim
-import cvsim.network as nw
 from cvsim.api import run_network
 from cvsim.checks import VERIFY_TOLERANCE
 from cvsim.flow.base import Flow

@@ -40,6 +40,17 @@ class Scenario:
     sha256: str
     overrides: dict = field(default_factory=dict)
 
+    @property
+    def warnings(self) -> list[str]:
+        """What the reader found worth a look though not wrong (echo rows whose
+        note is a warning), as sentences naming the key."""
+        out = []
+        for r in self.echo:
+            head, sep, text = r.note.partition("warning: ")
+            if sep:
+                out.append(f"{r.key}: {text}")
+        return out
+
     def echo_table(self) -> str:
         """The echo as aligned text columns: key, given, used, note."""
         rows = [("key", "given", "used", "note")]
@@ -121,7 +132,16 @@ def _load(text: str, source_name: str, sha256: str, overrides: dict | None) -> S
         values = schema.read(root, ctx)
     if values is not BAD and not ctx.problems:
         read_rows = len(ctx.echo)
-        network = build_network(values, ctx)
+        try:
+            network = build_network(values, ctx)
+        except ArithmeticError as exc:  # sizes the physics cannot take (the key is unknown)
+            network = None
+            ctx.problems.append(Problem("", f"the values cannot be computed with ({exc}); "
+                                            "check the sizes and units of the vessels and "
+                                            "walls"))
+        if network is not None:
+            check_states(network, values, ctx)
+            warn_devices(network, values, ctx)
         ctx.echo[:] = _merge_echo(ctx.echo[:read_rows], ctx.echo[read_rows:])
     if ctx.problems:
         raise ScenarioError(_ordered(ctx.problems), source_name)
@@ -176,6 +196,102 @@ def build_network(values, ctx: Context) -> Network | None:
                       reservoirs=reservoirs, links=tuple(links), run=_run(values["run"]),
                       atmosphere=ctx.atmosphere, sequences=sequences)
     return network if not ctx.problems else None
+
+
+def check_states(network: Network, values, ctx: Context) -> None:
+    """Each vessel's initial state and each reservoir's states must lie inside
+    the range of the fluid's equation of state: a problem at the key otherwise
+    (the run would fail at t = 0)."""
+    from ..errors import CvsimError
+    from ..fluid import make_fluid
+    f = network.fluid
+    try:
+        fluid = make_fluid(f.name, f.model, f.molar_mass, f.cp, f.cp_temperature)
+    except CvsimError:
+        return  # reported where the fluid is read
+    for v in network.vessels:
+        initial = values["vessels"][v.name]["initial"]
+        found = _out_of_range(fluid, v.initial.pressure, v.initial.temperature,
+                              v.initial.liquid_fraction is not None)
+        if found:
+            key, text = found
+            at = getattr(initial, "where", {}).get(key) or values["vessels"][v.name].at
+            ctx.problem(at, text)
+    for r in network.reservoirs:
+        entry = values["reservoirs"][r.name]
+        (p_lo, p_hi), (T_lo, T_hi) = r.pressure.extremes(), r.temperature.extremes()
+        for p, T in ((p_hi, T_lo), (p_lo, T_hi), (p_hi, T_hi), (p_lo, T_lo)):
+            found = _out_of_range(fluid, p, T, False)
+            if found:
+                ctx.problem(entry.where[found[0]], found[1])
+                break
+
+
+def _out_of_range(fluid, p: float, T: float, saturated: bool) -> tuple[str, str] | None:
+    """(key, problem) when the fluid cannot give the state at (p, T) - as the
+    run would find at t = 0 - in the words of the range it leaves."""
+    from ..errors import StateError
+    try:
+        if saturated:
+            fluid.saturated_liquid_at_p(p)
+        else:
+            fluid.state_pt(p, T)
+        return None
+    except StateError as exc:
+        detail = exc.detail
+    advice = "; give a value inside that range"
+    t_min, t_max = getattr(fluid, "t_min", None), getattr(fluid, "t_max", None)
+    p_max = getattr(fluid, "p_max", None)
+    name = getattr(fluid, "name", "the fluid")
+    if t_min is not None and t_max is not None and not saturated and not t_min <= T <= t_max:
+        return "temperature", (f"{T - 273.15:.6g} degC ({T:.6g} K) is outside the "
+                               f"temperature range of the {name} equation of state "
+                               f"({t_min:.6g} K to {t_max:.6g} K){advice}")
+    if p_max is not None and p > p_max:
+        return "pressure", (f"{p / 1e5:.6g} bar a is above the highest pressure of the {name} "
+                            f"equation of state ({p_max / 1e5:.6g} bar){advice}")
+    return "pressure", f"{detail.rstrip('.')}{advice}"
+
+
+def warn_devices(network: Network, values, ctx: Context) -> None:
+    """Warnings (not errors) on devices that a slip of a unit often explains:
+    a relief valve set, or a disc bursting, at or below its vessel's initial
+    pressure (it opens at the start), and a device wider than its vessel."""
+    vessels = {v.name: v for v in network.vessels}
+    atm = network.atmosphere
+    for link in network.links:
+        d = link.device
+        here = values["links"][link.name]
+        source = vessels.get(link.source)
+        for field_, what in (("set_pressure", "set pressure"), ("burst_pressure",
+                                                                 "burst pressure")):
+            p_set = getattr(d, field_, None)
+            if p_set is None or source is None or p_set > source.initial.pressure:
+                continue
+            at = here.where.get(field_, here.at)
+            ctx.record(at, "", None, "", f"warning: the {what} "
+                       f"({(p_set - atm) / 1e5:.4g} bar g) is at or below the initial "
+                       f"pressure of vessel '{source.name}' "
+                       f"({(source.initial.pressure - atm) / 1e5:.4g} bar g): it opens at "
+                       "the start; check the units (barg or bara?)")
+        area = getattr(d, "area", None)
+        if not area:
+            continue
+        width = math.sqrt(4.0 * area / math.pi)
+        for name in (link.source, link.target):
+            v = vessels.get(name)
+            if v is None:
+                continue
+            g = v.geometry
+            if g.inner_diameter:
+                room, basis = g.inner_diameter, "its inner diameter"
+            else:
+                room, basis = (6.0 * g.volume / math.pi) ** (1.0 / 3.0), \
+                    "the diameter of a sphere of its volume"
+            if width > room:
+                ctx.record(here.at, "", None, "", f"warning: the opening ({width * 1e3:.4g} "
+                           f"mm across) is wider than vessel '{name}' ({basis}, "
+                           f"{room * 1e3:.4g} mm); check the units of both")
 
 
 def _fluid(values, ctx: Context) -> FluidSpec:

@@ -14,6 +14,7 @@ extra fields from a registry (the heat terms of a vessel).
 from __future__ import annotations
 
 import difflib
+import math
 import re
 from dataclasses import dataclass, replace
 from typing import Callable
@@ -21,7 +22,7 @@ from typing import Callable
 from .. import units
 from ..errors import Problem
 from ..signals import Constant, Table
-from .tree import Mapping
+from .tree import Mapping, printable, shorten
 
 
 class _Bad:
@@ -80,6 +81,12 @@ class EchoRow:
         return f"{text} {self.unit}".strip() if self.unit not in ("", "-") else text
 
 
+#: longest problem message (values quoted in it are cut)
+MESSAGE_CHARS = 1000
+#: longest key path shown in a message
+KEY_CHARS = 200
+
+
 class Context:
     """Collects problems and echo rows while a scenario is read and built."""
 
@@ -92,11 +99,12 @@ class Context:
         self.fluid = None  # FluidSpec once known
 
     def problem(self, at: At, message: str) -> None:
+        message = printable(shorten(message, MESSAGE_CHARS))  # a value echoed may be huge
         if at.default:
             message += " (this is the default; give the key explicitly)"
         if self.is_overridden(at.key):
             message += " (set by override)"
-        self.problems.append(Problem(at.key, message, at.line))
+        self.problems.append(Problem(printable(shorten(at.key, KEY_CHARS)), message, at.line))
 
     def is_overridden(self, key: str) -> bool:
         """True if ``key`` or a key above it was set by an override."""
@@ -108,7 +116,8 @@ class Context:
             notes.insert(0, "default")
         if self.is_overridden(at.key):
             notes.insert(0, "set by override")
-        self.echo.append(EchoRow(at.key, as_text(given), value, unit, "; ".join(notes)))
+        self.echo.append(EchoRow(at.key, shorten(as_text(given)), value, unit,
+                                 "; ".join(notes)))
 
 
 def as_text(given) -> str:
@@ -178,7 +187,8 @@ class Quantity(Kind):
         except units.UnitsError as exc:
             ctx.problem(at, str(exc))
             return BAD
-        message = self._limit_problem(reading.value, raw, dim)
+        message = _magnitude_problem(reading.value, raw) or self._limit_problem(
+            reading.value, raw, dim)
         if message:
             ctx.problem(at, message)
             return BAD
@@ -215,6 +225,11 @@ class Quantity(Kind):
         if not isinstance(rows, list) or not rows:
             ctx.problem(at, "expected a list of [time, value] points, e.g. "
                         "[[0 s, 10 bara], [60 s, 20 bara]]")
+            return BAD
+        if len(rows) > TABLE_POINTS:
+            ctx.problem(at, f"a table of {len(rows)} points; use at most {TABLE_POINTS} "
+                        "(values are linear between points: keep those where the value "
+                        "bends)")
             return BAD
         times, values, ok = [], [], True
         time_kind = Quantity("time")
@@ -260,6 +275,20 @@ class Quantity(Kind):
         if self.table:
             text += "; or a table in time"
         return text
+
+
+#: sizes of SI values the physics is written for: beyond them squares and cubes
+#: (areas, volumes) overflow or vanish; no scenario value comes near
+MAGNITUDE = (1e-20, 1e20)
+
+
+def _magnitude_problem(value: float, raw) -> str:
+    """A problem for a value far outside anything cvsim computes with (``""``: none)."""
+    small, large = MAGNITUDE
+    if not math.isfinite(value) or abs(value) > large or (value != 0.0 and abs(value) < small):
+        return (f"{_shown(raw)} is {value:.3g} in SI units, outside the {small:g} to {large:g} "
+                "cvsim computes with; check the number and its unit")
+    return ""
 
 
 class _Quiet:
@@ -355,6 +384,10 @@ class Sub(Kind):
 
 
 _NAME = re.compile(r"[A-Za-z0-9_][A-Za-z0-9_-]*")
+#: most points of a table in time (reading one costs about 0.2 ms)
+TABLE_POINTS = 10_000
+#: longest name of a vessel, reservoir, link or sequence (it heads columns)
+NAME_CHARS = 64
 
 
 @dataclass(frozen=True)
@@ -380,6 +413,10 @@ class Entries(Kind):
             here = at.child(name, raw.key_lines.get(name) if isinstance(raw, Mapping) else None)
             if not isinstance(name, str) or not _NAME.fullmatch(name):
                 ctx.problem(here, f"name {name!r}: use letters, digits, '_' and '-' only")
+                continue
+            if len(name) > NAME_CHARS:
+                ctx.problem(here, f"a name of {len(name)} characters; use at most "
+                            f"{NAME_CHARS} (names head the columns of the results)")
                 continue
             out[name] = read_section(entry, self.section, here, ctx)
         return out

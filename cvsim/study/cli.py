@@ -24,8 +24,11 @@ values (units as in the scenario file):
   words, mappings --vary run.solver.method="LSODA, BDF"
 
 Local worker processes are used by default (one per CPU); --cluster runs the
-cases on a Dask cluster instead (pip install 'cvsim[cluster]'). Exit status:
-0 when the table is written, 1 when every case failed, 2 for a wrong option."""
+cases on a Dask cluster instead (pip install 'cvsim[cluster]'). A case that runs
+longer than --case-time-limit (default 10 min) is stopped and fails with that
+reason. Ctrl-C (or SIGTERM) stops the sweep: the cases finished are written as
+a table marked PARTIAL. Exit status: 0 when the table is written, 1 when every
+case failed, 2 for a wrong option, 130 (143 on SIGTERM) when stopped."""
 
 SWEEP_EXAMPLES = """\
 examples:
@@ -98,6 +101,9 @@ def add_study_commands(sub) -> None:
     s.add_argument("--plot", dest="plot", action="append", default=None, metavar="OUTCOME",
                    help="an outcome to draw against the first varied key (repeatable; "
                    "default: temperatures, peak pressure, limits and end time that change)")
+    s.add_argument("--case-time-limit", default=None, metavar="TIME",
+                   help="wall-clock limit of one case, e.g. '30 min' or 'none' (default "
+                   "10 min); a case that takes longer fails with that reason")
 
     f = sub.add_parser("find", help="find the smallest or largest value that meets requirements",
                        description=FIND_HELP, epilog=FIND_EXAMPLES, formatter_class=fmt)
@@ -130,27 +136,62 @@ def _progress(args) -> bool:
     return not args.quiet and sys.stderr.isatty()
 
 
+def _time_limit(text: str | None) -> float | None:
+    from ..errors import StudyError
+    from ..units import UnitsError, parse_quantity
+    from .sweep import CASE_TIME_LIMIT
+    if text is None:
+        return CASE_TIME_LIMIT
+    if text.strip().lower() in ("none", "off", "no"):
+        return None
+    try:
+        value = parse_quantity(text, "time")
+    except UnitsError as exc:
+        raise StudyError(f"--case-time-limit: {exc}; e.g. '30 min' or 'none'") from None
+    if not value > 0:
+        raise StudyError(f"--case-time-limit: give a time above zero (e.g. '30 min') or "
+                         f"'none', not '{text}'")
+    return value
+
+
 def cmd_sweep(args) -> int:
     from ..cli import _overrides
-    from .sweep import check_distinct, parse_vary, sweep
+    from ..errors import Terminated
+    from ..outfolder import claim
+    from .sweep import Interrupted, check_distinct, parse_vary, sweep
     params = [parse_vary(v) for v in args.vary]
     check_distinct(params)
-    result = sweep(args.scenario, {p.key: p.spec for p in params}, workers=args.workers,
-                   cluster=args.cluster, progress=_progress(args),
-                   overrides=_overrides(args.overrides), plot=args.plot)
+    limit = _time_limit(args.case_time_limit)
     out = args.out or Path("results") / f"{args.scenario.stem}-sweep"
-    result.write(out, plots=not args.no_plots)
-    if args.report:
-        from ..scenario import load_scenario
-        from .report import write_study_report
-        scenario = load_scenario(args.scenario, overrides=_overrides(args.overrides))
-        notes = [f"{len(result.rows)} cases: {result.counts()}; ran on {result.ran_on} in "
-                 f"{result.wall_time:.3g} s."]
-        write_study_report(out / "report.html", result, scenario,
-                           title=f"Sweep: {result.title}", notes=notes,
-                           images=[p for k, p in result.files.items() if k == "plot"])
+    stopped = None
+    with claim(out) as folder:  # checked and locked before any case runs
+        try:
+            result = sweep(args.scenario, {p.key: p.spec for p in params},
+                           workers=args.workers, cluster=args.cluster,
+                           progress=_progress(args), overrides=_overrides(args.overrides),
+                           plot=args.plot, case_time_limit=limit)
+        except Interrupted as stop:
+            if stop.result is None:
+                raise
+            result, stopped = stop.result, stop
+            print("cvsim: stopping; writing the cases finished so far", file=sys.stderr)
+        result.write(out, plots=not args.no_plots)
+        if args.report:
+            from ..scenario import load_scenario
+            from .report import write_study_report
+            scenario = load_scenario(args.scenario, overrides=_overrides(args.overrides))
+            notes = ([result.partial + "."] if result.partial else []) + [
+                f"{len(result.rows)} cases: {result.counts()}; ran on {result.ran_on} in "
+                f"{result.wall_time:.3g} s."]
+            with folder.adding("report.html") as path:
+                write_study_report(path, result, scenario,
+                                   title=f"Sweep: {result.title}", notes=notes,
+                                   images=[p for k, p in result.files.items() if k == "plot"])
     if not args.quiet:
         print(result.text())
+    if stopped is not None:
+        print(f"Partial table written to {out}/ ({result.partial})", file=sys.stderr)
+        return 143 if isinstance(stopped.cause, Terminated) else 130
     print(f"Table and plot written to {out}/")
     c = result.counts()
     if c["failed"] == len(result.rows):
@@ -172,33 +213,17 @@ def cmd_find(args) -> int:
         tolerance = parse_quantity(args.tolerance, "fraction")
     except UnitsError as exc:
         raise StudyError(f"--tolerance: {exc}") from None
+    from ..outfolder import claim
     param = parse_vary(args.vary, need_count=False)
-    result = seek(args.scenario, {param.key: param.spec}, meet=args.meet or "limits",
-                  goal=args.goal, workers=args.workers, cluster=args.cluster,
-                  tolerance=tolerance, max_runs=args.max_runs or MAX_RUNS,
-                  progress=_progress(args), overrides=_overrides(args.overrides))
     out = args.out or Path("results") / f"{args.scenario.stem}-find"
-    result.write(out, plots=not args.no_plots, run=not args.no_run)
-    if args.report:
-        from ..scenario import load_scenario
-        from .report import write_study_report
-        scenario = load_scenario(args.scenario, overrides=_overrides(args.overrides))
-        answer = (f"{result.goal} {result.key} meeting the requirements: {result.value}"
-                  if result.value is not None else f"no value found ({result.status})")
-        notes = [f"Requirements: {'; '.join(result.requirements)}.", f"Answer: {answer}.",
-                 f"Bracket: {result.bracket}; {result.simulations} simulations in "
-                 f"{result.rounds} rounds; tolerance {result.tolerance:g}.",
-                 f"Binding check at the answer: {result.binding}."]
-        notes += [f"{m[0]}: {'met' if m[1] else 'CROSSED'}, margin {m[2]:.4g} {m[3]}"
-                  for m in result.margins]
-        images = [p for k, p in result.files.items() if k == "plot"]
-        overview = out / "run" / "overview.png"
-        if overview.exists():
-            images.append((overview, f"Run at the answer, {result.key} = {result.value}"))
-        write_study_report(out / "report.html", result.cases, scenario,
-                           title=f"Search for the {result.goal} {result.key}: "
-                           f"{result.cases.title}",
-                           notes=notes, images=images)
+    with claim(out) as folder:  # checked and locked before any case runs
+        result = seek(args.scenario, {param.key: param.spec}, meet=args.meet or "limits",
+                      goal=args.goal, workers=args.workers, cluster=args.cluster,
+                      tolerance=tolerance, max_runs=args.max_runs or MAX_RUNS,
+                      progress=_progress(args), overrides=_overrides(args.overrides))
+        result.write(out, plots=not args.no_plots, run=not args.no_run)
+        if args.report:
+            _find_report(args, result, out, folder)
     if not args.quiet:
         print(result.text())
     print(f"Results written to {out}/")
@@ -206,6 +231,31 @@ def cmd_find(args) -> int:
         print(f"cvsim: {result.message}", file=sys.stderr)
         return 1
     return 0
+
+
+def _find_report(args, result, out: Path, folder) -> None:
+    """The calculation report of a search, added to its written folder."""
+    from ..cli import _overrides
+    from ..scenario import load_scenario
+    from .report import write_study_report
+    scenario = load_scenario(args.scenario, overrides=_overrides(args.overrides))
+    answer = (f"{result.goal} {result.key} meeting the requirements: {result.value}"
+              if result.value is not None else f"no value found ({result.status})")
+    notes = [f"Requirements: {'; '.join(result.requirements)}.", f"Answer: {answer}.",
+             f"Bracket: {result.bracket}; {result.simulations} simulations in "
+             f"{result.rounds} rounds; tolerance {result.tolerance:g}.",
+             f"Binding check at the answer: {result.binding}."]
+    notes += [f"{m[0]}: {'met' if m[1] else 'CROSSED'}, margin {m[2]:.4g} {m[3]}"
+              for m in result.margins]
+    images = [p for k, p in result.files.items() if k == "plot"]
+    overview = out / "run" / "overview.png"
+    if overview.exists():
+        images.append((overview, f"Run at the answer, {result.key} = {result.value}"))
+    with folder.adding("report.html") as path:
+        write_study_report(path, result.cases, scenario,
+                           title=f"Search for the {result.goal} {result.key}: "
+                           f"{result.cases.title}",
+                           notes=notes, images=images)
 
 
 def cmd_outcomes(args) -> int:

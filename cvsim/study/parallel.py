@@ -19,6 +19,13 @@ most once. The start method, measured on the 2-core Linux machine (see
   on Linux: 1.6 s for the first worker, then fast and thread-safe;
 * ``spawn`` elsewhere (macOS, Windows), about 1.6 s per worker.
 
+Local workers never outlive their parent: each asks Linux to kill it when its
+parent ends (``prctl(PR_SET_PDEATHSIG)``) and, everywhere, watches its parent
+from a thread and ends itself when the parent is gone. Workers ignore Ctrl-C
+(the terminal sends it to every process of the command); the parent decides,
+and when it stops early (Ctrl-C, SIGTERM, an error) its workers end at once,
+running cases included, rather than after the cases they were running.
+
 A Dask cluster is used when a scheduler address is given (``tcp://host:8786``):
 ``distributed.Client(address)``, ``client.map`` and ``as_completed``. Dask is an
 optional extra (``pip install cvsim[cluster]``) imported only then.
@@ -43,6 +50,10 @@ QUEUE_PER_WORKER = 2
 CRASHES_TO_FAIL = 2
 #: seconds to wait for a Dask scheduler to answer, and for its first worker
 CONNECT_TIMEOUT = 10.0
+#: [s] how often a local worker looks whether its parent is still there
+WATCH_INTERVAL = 0.5
+#: prctl option that sends a signal to a process when its parent ends (Linux)
+PR_SET_PDEATHSIG = 1
 
 
 def default_workers() -> int:
@@ -66,6 +77,76 @@ def warm_up() -> None:
     import importlib
     for name in PRELOAD:
         importlib.import_module(name)
+
+
+def worker_start(stop=None, owner: int | None = None) -> None:
+    """Run once in each local worker: Ctrl-C is the parent's to handle, SIGTERM
+    ends the worker, and the worker ends when its parent or ``owner`` (the
+    process that made the pool; with ``forkserver`` the parent is the fork
+    server, which lives as long as its children) ends, or when ``stop`` (a
+    multiprocessing Event) is set; then :func:`warm_up`."""
+    import signal
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+    signal.signal(signal.SIGTERM, signal.SIG_DFL)
+    parent = os.getppid()
+    _die_with_parent()
+    watched = _identity(owner) if owner is not None else None
+    threading.Thread(target=_watch, args=(parent, watched, stop), name="cvsim-parent-watch",
+                     daemon=True).start()
+    warm_up()
+
+
+def _die_with_parent() -> None:
+    """Linux: have the kernel kill this process when its parent ends."""
+    if not sys.platform.startswith("linux"):
+        return
+    try:
+        import ctypes
+        import signal
+        libc = ctypes.CDLL(None, use_errno=True)
+        libc.prctl(PR_SET_PDEATHSIG, int(signal.SIGKILL), 0, 0, 0)
+    except (OSError, AttributeError):  # pragma: no cover - no libc: the watch thread remains
+        pass
+
+
+def _identity(pid: int) -> tuple[int, str | None]:
+    """(pid, start time) of a process: the start time (Linux, from /proc) tells
+    the process from a later one that reuses its number."""
+    try:
+        with open(f"/proc/{pid}/stat") as fh:
+            return pid, fh.read().rsplit(") ", 1)[1].split()[19]
+    except (OSError, IndexError):
+        return pid, None
+
+
+def _gone(identity: tuple[int, str | None]) -> bool:
+    """True when the process ``identity`` (from :func:`_identity`) has ended."""
+    pid, started = identity
+    if started is not None:
+        try:
+            with open(f"/proc/{pid}/stat") as fh:
+                fields = fh.read().rsplit(") ", 1)[1].split()
+        except (OSError, IndexError):
+            return True
+        return fields[0] in ("Z", "X") or fields[19] != started  # ended, or another process
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return True
+    except OSError:
+        return False
+    return False
+
+
+def _watch(parent: int, owner, stop) -> None:
+    """End this process once its parent is gone (it is then adopted by another
+    process), the owner of the pool has ended, or ``stop`` is set."""
+    import time
+    while True:
+        if (os.getppid() != parent or (owner is not None and _gone(owner))
+                or (stop is not None and stop.is_set())):
+            os._exit(1)
+        time.sleep(WATCH_INTERVAL)
 
 
 def versions() -> dict:
@@ -124,11 +205,23 @@ class Workers:
         self._impl.start()
         return self
 
-    def __enter__(self) -> "Workers":
-        return self.start()
+    def stop(self) -> None:
+        """End the workers now, running jobs included (on Ctrl-C, SIGTERM or
+        an error in the caller)."""
+        self._impl.stop()
 
-    def __exit__(self, *exc) -> None:
-        self.close()
+    def __enter__(self) -> "Workers":
+        try:
+            return self.start()
+        except BaseException:  # Ctrl-C while the workers start: none may stay behind
+            self.stop()
+            raise
+
+    def __exit__(self, exc_type, exc, tb) -> None:
+        if exc_type is None:
+            self.close()
+        else:
+            self.stop()
 
 
 # ------------------------------------------------------------------ local
@@ -139,6 +232,7 @@ class _Local:
         self.start_method = start_method
         self.method_used = None
         self._pool = None
+        self._stop = None
 
     def slots(self) -> int:
         return self.workers
@@ -162,7 +256,11 @@ class _Local:
                 ctx.set_forkserver_preload(list(PRELOAD))
             elif method == "fork":
                 warm_up()  # imported once here, shared by every forked worker
-            self._pool = ProcessPoolExecutor(self.workers, mp_context=ctx, initializer=warm_up)
+            if self._stop is None:
+                self._stop = ctx.Event()
+            self._pool = ProcessPoolExecutor(self.workers, mp_context=ctx,
+                                             initializer=worker_start,
+                                             initargs=(self._stop, os.getpid()))
             self.method_used = method
         return self._pool
 
@@ -221,6 +319,18 @@ class _Local:
             self._pool.shutdown(wait=True, cancel_futures=True)
             self._pool = None
 
+    def stop(self):
+        if self._pool is None:
+            return
+        if self._stop is not None:
+            self._stop.set()  # every worker's watch thread ends its process
+        processes = list((getattr(self._pool, "_processes", None) or {}).values())
+        for proc in processes:  # and at once, where the pool shows its processes
+            if proc.is_alive():
+                proc.terminate()
+        self._pool.shutdown(wait=True, cancel_futures=True)
+        self._pool = None
+
 
 # ------------------------------------------------------------------- Dask
 
@@ -275,6 +385,9 @@ class _Dask:
     def start(self):
         pass
 
+    def stop(self):
+        self.close()  # map() cancels the cases not finished as it is left
+
     def slots(self) -> int:
         return max(1, sum(self.client.nthreads().values()))
 
@@ -310,4 +423,5 @@ class _Dask:
         self.client.close()
 
 
-__all__ = ["Workers", "default_start_method", "default_workers", "versions", "warm_up"]
+__all__ = ["Workers", "default_start_method", "default_workers", "versions", "warm_up",
+           "worker_start"]

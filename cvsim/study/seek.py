@@ -362,7 +362,6 @@ def seek(scenario, vary: dict, meet="limits", goal: str = "smallest",
     if not meet:
         raise StudyError("--meet: give at least one requirement (e.g. --meet limits)")
     log = param.kind == "log"
-    lo_x, hi_x = min(param.numbers), max(param.numbers)
     reference = source.reference([param], {param.key: param.values[0]})
     if reference is None:
         reference = _any_reference(source, param)

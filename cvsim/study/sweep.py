@@ -15,7 +15,11 @@ cluster on request) and gives one row of a :class:`~cvsim.study.table.SweepResul
 the values, the status, the error of a failed case, and its outcomes
 (:mod:`cvsim.study.outcomes`). A case that fails - an impossible value the reader
 rejects, a run the solver cannot finish, even a crash of its worker - is a
-row with its error; the sweep always goes on.
+row with its error; the sweep always goes on. A case that runs longer than its
+time limit (:data:`CASE_TIME_LIMIT` unless told otherwise) is stopped and fails
+with that reason. When the sweep itself is stopped (Ctrl-C, SIGTERM) the cases
+that finished are kept: :class:`Interrupted` carries them as a table marked
+partial.
 
 >>> from cvsim import sweep                                           # doctest: +SKIP
 >>> result = sweep("scenarios/nitrogen-blowdown.yaml",
@@ -32,11 +36,28 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from ..errors import CvsimError, ScenarioError, StudyError
-from .table import SweepResult
+from .table import NOT_RUN, SweepResult
 
 #: largest number of values a range may ask for, and of cases in one sweep
 MAX_VALUES = 10_000
 MAX_CASES = 1_000_000
+#: [s] default wall-clock limit of one case (``--case-time-limit``): long enough for
+#: any demo scenario many times over, short enough that one case that cannot
+#: finish (a very long run, a solver crawling) does not hold a sweep for hours
+CASE_TIME_LIMIT = 600.0
+
+
+class Interrupted(KeyboardInterrupt):
+    """A sweep stopped by Ctrl-C or SIGTERM. ``rows``: the raw rows in case
+    order (``None`` for a case not finished); ``result``: the
+    :class:`~cvsim.study.table.SweepResult` of the finished cases, marked
+    partial (set by :func:`sweep`); ``cause``: the interrupt itself."""
+
+    def __init__(self, rows=None, cause: BaseException | None = None):
+        super().__init__("interrupted")
+        self.rows = rows
+        self.cause = cause
+        self.result = None
 
 
 # ------------------------------------------------------------- parameters
@@ -342,6 +363,7 @@ def run_case(job: dict) -> dict:
     the outcomes. Never raises: a failure is the row's status and error."""
     from ..api import run_network
     from .outcomes import outcome_values
+    from ..solve import time_limit
     row = {"case": job["case"], "si": {}, "status": "failed", "error": "",
            "outcomes": [], "figures": {}}
     try:
@@ -351,7 +373,8 @@ def run_case(job: dict) -> dict:
             r = echo.get(key)
             if r is not None and isinstance(r.value, (int, float, str)):
                 row["si"][key] = (r.value, r.unit)
-        result = run_network(scenario.network, scenario)
+        with time_limit(job.get("time_limit")):
+            result = run_network(scenario.network, scenario)
     except ScenarioError as exc:  # the case's values: name the keys, not the file
         row["error"] = "; ".join(str(p) for p in exc.problems)
         return row
@@ -380,16 +403,20 @@ def _one_line(text: str) -> str:
     return out.strip()
 
 
-def make_jobs(source: Source, cases: list[dict], first: int = 1) -> list[dict]:
+def make_jobs(source: Source, cases: list[dict], first: int = 1,
+              time_limit: float | None = CASE_TIME_LIMIT) -> list[dict]:
     return [{"case": first + i, "data": source.data, "name": source.name,
-             "fixed": source.overrides, "values": case} for i, case in enumerate(cases)]
+             "fixed": source.overrides, "values": case, "time_limit": time_limit}
+            for i, case in enumerate(cases)]
 
 
 def run_cases(source: Source, cases: list[dict], workers, progress: bool,
-              desc: str = "cases", first: int = 1) -> list[dict]:
+              desc: str = "cases", first: int = 1,
+              time_limit: float | None = CASE_TIME_LIMIT) -> list[dict]:
     """Run the cases on ``workers`` (a :class:`~cvsim.study.parallel.Workers`);
-    raw rows in case order."""
-    jobs = make_jobs(source, cases, first)
+    raw rows in case order. Ctrl-C or SIGTERM raises :class:`Interrupted`
+    with the rows finished so far."""
+    jobs = make_jobs(source, cases, first, time_limit)
     rows: list = [None] * len(jobs)
     bar = _bar(len(jobs), desc, progress)
     try:
@@ -397,9 +424,19 @@ def run_cases(source: Source, cases: list[dict], workers, progress: bool,
             rows[i] = value if ok else {"case": jobs[i]["case"], "si": {}, "status": "failed",
                                         "error": str(value), "outcomes": [], "figures": {}}
             bar.update(1)
+    except Interrupted:
+        raise
+    except KeyboardInterrupt as exc:
+        raise Interrupted(rows, exc) from None
     finally:
         bar.close()
     return rows
+
+
+def not_run_row(case: int) -> dict:
+    return {"case": case, "si": {}, "status": NOT_RUN,
+            "error": "the sweep was stopped before this case finished", "outcomes": [],
+            "figures": {}}
 
 
 def _bar(total: int | None, desc: str, progress: bool):
@@ -418,7 +455,8 @@ def _bar(total: int | None, desc: str, progress: bool):
 
 def sweep(scenario, vary: dict, workers: int | None = None, cluster: str | None = None,
           progress: bool = True, overrides: dict | None = None,
-          start_method: str | None = None, plot: list[str] | None = None) -> SweepResult:
+          start_method: str | None = None, plot: list[str] | None = None,
+          case_time_limit: float | None = CASE_TIME_LIMIT) -> SweepResult:
     """Run ``scenario`` for every combination of the values in ``vary``.
 
     Parameters
@@ -441,6 +479,9 @@ def sweep(scenario, vary: dict, workers: int | None = None, cluster: str | None 
     plot : list of str, optional
         outcomes the plot draws (default: :func:`~cvsim.study.table.default_outcomes`);
         checked before any case runs.
+    case_time_limit : float or None
+        [s] wall-clock limit of one case (default :data:`CASE_TIME_LIMIT`); a case
+        that takes longer is stopped and fails with that reason. ``None``: no limit.
 
     Returns
     -------
@@ -455,6 +496,8 @@ def sweep(scenario, vary: dict, workers: int | None = None, cluster: str | None 
         the scenario has problems that no varied value explains.
     ClusterError
         Dask missing or its scheduler unreachable.
+    Interrupted
+        Ctrl-C or SIGTERM: its ``result`` holds the finished cases, marked partial.
     """
     from .parallel import Workers
     if not isinstance(vary, dict) or not vary:
@@ -467,10 +510,28 @@ def sweep(scenario, vary: dict, workers: int | None = None, cluster: str | None 
     reference = source.reference(parameters, cases[0])
     if plot is not None:
         plot = check_outcomes(plot, reference)
+    if case_time_limit is not None and not case_time_limit > 0:
+        raise StudyError(f"the case time limit must be above zero, not {case_time_limit!r} "
+                         "(--case-time-limit; 'none' for no limit)")
     started = time.time()
-    with Workers(workers, cluster, start_method) as pool:
-        rows = run_cases(source, cases, pool, progress)
-        where = pool.describe()
+    where = ""
+    try:
+        with Workers(workers, cluster, start_method) as pool:
+            where = pool.describe()
+            rows = run_cases(source, cases, pool, progress, time_limit=case_time_limit)
+    except Interrupted as stop:
+        done = sum(r is not None for r in stop.rows)
+        rows = [r if r is not None else not_run_row(i + 1) for i, r in enumerate(stop.rows)]
+        result = SweepResult.build(source, parameters, cases, rows, reference,
+                                   ran_on=where, wall_time=time.time() - started)
+        left = len(rows) - done
+        result.partial = (f"PARTIAL: the sweep was stopped after {done} of {len(rows)} "
+                          f"cases; the {left} not finished {'is' if left == 1 else 'are'} "
+                          f"marked '{NOT_RUN}'")
+        if plot is not None:
+            result.outcome_defaults = plot
+        stop.result = result
+        raise
     result = SweepResult.build(source, parameters, cases, rows, reference,
                                ran_on=where, wall_time=time.time() - started)
     if plot is not None:
@@ -498,5 +559,5 @@ def check_distinct(parameters: list[Parameter]) -> None:
         seen.add(p.key)
 
 
-__all__ = ["Parameter", "Source", "check_distinct", "check_outcomes", "grid", "parse_values",
-           "parse_vary", "run_case", "sweep"]
+__all__ = ["CASE_TIME_LIMIT", "Interrupted", "Parameter", "Source", "check_distinct",
+           "check_outcomes", "grid", "parse_values", "parse_vary", "run_case", "sweep"]

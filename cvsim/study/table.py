@@ -7,8 +7,9 @@ the files (``sweep.csv``, ``sweep.json``, ``sweep.txt``, ``sweep.png``).
 
 Row keys (and columns, in this order): ``case``; per varied key its value as
 given (``links.vent.diameter``) and in SI (``links.vent.diameter.si``);
-``status`` (``completed``, ``stopped`` or ``failed``); ``error`` (the message of
-a failed case); then the outcomes of :mod:`cvsim.study.outcomes` (SI; blank for a
+``status`` (``completed``, ``stopped``, ``failed``, or ``not run`` in a sweep
+that was stopped: :attr:`SweepResult.partial` then says so in every file);
+``error`` (the message of a failed case); then the outcomes of :mod:`cvsim.study.outcomes` (SI; blank for a
 failed case, whose figures up to the failure would mislead), with limit
 checks' ``.met`` as True/False.
 """
@@ -29,6 +30,8 @@ DIFFERENCE_DISPLAY = {"Pa": ("bar", lambda v: v / 1e5)}
 VARIES = 1e-6
 #: the text table shows at most this many characters of a failed case's error
 ERROR_CHARS = 160
+#: status of a case a stopped sweep did not finish (as :mod:`cvsim.study.sweep` writes)
+NOT_RUN = "not run"
 
 
 @dataclass(frozen=True)
@@ -91,6 +94,8 @@ class SweepResult:
     wall_time: float = 0.0
     outcome_defaults: list = field(default_factory=list)
     files: dict = field(default_factory=dict)
+    partial: str = ""      # the sweep was stopped: what is missing ("" when complete)
+    warnings: list = field(default_factory=list)  # e.g. a plot that could not be drawn
 
     # ------------------------------------------------------------- build
     @classmethod
@@ -205,6 +210,8 @@ class SweepResult:
             "parameters": [{"key": p.key, "values": p.spec, "kind": p.kind,
                             "count": len(p.values)} for p in self.parameters],
             "cases": len(self.rows), "counts": self.counts(),
+            "complete": not self.partial, "partial": self.partial,
+            "warnings": list(self.warnings),
             "ran_on": self.ran_on, "wall_time_s": self.wall_time,
             "atmosphere_Pa": self.atmosphere,
             "columns": [asdict(c) for c in self.columns],
@@ -233,7 +240,13 @@ class SweepResult:
         files = {"csv": folder / f"{stem}.csv", "json": folder / f"{stem}.json",
                  "text": folder / f"{stem}.txt"}
         if plots:
-            files["plot"] = self.plot(folder / f"{stem}.png", outcomes)
+            try:
+                files["plot"] = self.plot(folder / f"{stem}.png", outcomes)
+            except Exception as exc:  # a plot must never cost the table
+                (folder / f"{stem}.png").unlink(missing_ok=True)
+                what = " ".join(f"{type(exc).__name__}: {exc}".split())[:200]
+                self.warnings.append(f"plot left out: '{stem}.png' could not be drawn "
+                                     f"({what}); the table is complete")
         self.files = files
         write_table_csv(self, files["csv"])
         files["text"].write_text(self.text(outcomes), encoding="utf-8")
@@ -246,7 +259,12 @@ class SweepResult:
         """Draw the chosen outcomes (default: :attr:`outcome_defaults`) against
         the first varied value into the PNG file ``path``."""
         from .plot import plot_sweep
-        return plot_sweep(self, Path(path), self._plot_outcomes(outcomes))
+        subtitle = None
+        if self.partial:
+            c = self.counts()
+            subtitle = (f"{self.partial}. {c['completed']} completed, {c['stopped']} stopped, "
+                        f"{c['failed']} failed.")
+        return plot_sweep(self, Path(path), self._plot_outcomes(outcomes), subtitle=subtitle)
 
     def _plot_outcomes(self, outcomes) -> list[str]:
         if outcomes is None:
@@ -275,10 +293,15 @@ class SweepResult:
         c = self.counts()
         n = len(self.rows)
         what = "; ".join(f"{p.key} = {p.spec}" for p in self.parameters)
-        L = [self.title, "=" * min(len(self.title), 78),
-             f"Sweep of {n} case{'s' if n != 1 else ''} over {what}",
-             f"{c['completed']} completed, {c['stopped']} stopped, {c['failed']} failed; "
-             f"ran on {self.ran_on or '-'} in {_t(self.wall_time)}", ""]
+        L = [self.title, "=" * min(len(self.title), 78)]
+        if self.partial:
+            L += [self.partial + ".", ""]
+        L += [f"Sweep of {n} case{'s' if n != 1 else ''} over {what}",
+              f"{c['completed']} completed, {c['stopped']} stopped, {c['failed']} failed"
+              + (f", {c[NOT_RUN]} {NOT_RUN}" if c.get(NOT_RUN) else "")
+              + f"; ran on {self.ran_on or '-'} in {_t(self.wall_time)}", ""]
+        if self.warnings:
+            L += ["Warnings:"] + [f"  ! {w}" for w in self.warnings] + [""]
         cols = [self.column(p.key) for p in self.parameters]
         cols += [self.column("status")] + [self._readable(self.column(x)) for x in names]
         limit_cols = [x for x in self.columns if x.kind == "limit-met"]
@@ -338,6 +361,8 @@ def write_table_csv(result: SweepResult, path: Path) -> Path:
     what = "; ".join(f"{p.key} = {p.spec}" for p in result.parameters)
     status = (f"sweep of {len(result.rows)} cases over {what}: {c['completed']} completed, "
               f"{c['stopped']} stopped, {c['failed']} failed")
+    if result.partial:
+        status = f"{result.partial}; {status}"
     with open(path, "w", newline="", encoding="utf-8") as fh:
         for line in header_lines(result.title, result.provenance, status, result.atmosphere):
             fh.write(f"# {line}\n")
