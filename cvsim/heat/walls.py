@@ -613,7 +613,9 @@ class WallTerm(HeatComponent):
             if ins.while_filling is not None:
                 text += f", {ins.while_filling:g} W/(m2 K) while a stream enters"
         else:
-            text = (f"natural convection (Churchill & Chu, {shape}) with the gas's CoolProp "
+            source = ("CoolProp" if not getattr(self._gas, "engine", None) else
+                      "corresponding-states (mixture)")
+            text = (f"natural convection (Churchill & Chu, {shape}) with the gas's {source} "
                     "transport properties at the film temperature (T_gas + T_wall)/2 and the "
                     "gas's pressure (saturated vapour's when two phases are present), "
                     "correlations for a surface in an extensive fluid applied inside")
