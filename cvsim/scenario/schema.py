@@ -10,9 +10,7 @@ validates against them and :func:`format_reference` renders them as
 from __future__ import annotations
 
 from .. import units
-from ..errors import FluidError
 from . import devices as _devices  # noqa: F401  (registers the flow devices)
-from . import properties
 from . import valves as _valves  # noqa: F401  (registers the valves)
 from .reference import DECISIONS, EXAMPLE, INTRO, WRITING_VALUES
 from .registry import DEVICES
