@@ -38,7 +38,11 @@ def run_network(network: Network, scenario=None, progress=None) -> Result:
     started = datetime.now().astimezone().isoformat(timespec="seconds")
     model = Model(network)
     raw = integrate(model, progress=progress)
-    return build_result(model, raw, {**provenance(scenario), "run_started": started})
+    prov = {**provenance(scenario), "run_started": started}
+    if network.fluid.model == "mixture":
+        from importlib.metadata import version
+        prov["thermopack"] = version("thermopack")
+    return build_result(model, raw, prov)
 
 
 def verify(result: Result, scenario=None) -> Result:

@@ -28,6 +28,14 @@ fluid object and formulas written independently of the model's right-hand side:
   points and steps. The tolerance is three times the Richardson estimate of the
   quadrature error (the rule on every second point against the rule on all) plus
   1e-6 of the energy turned over;
+* **components of every vessel** (mixture runs): the component masses sum to the
+  vessel's mass at every recorded point (|sum m_i - m| / m <= COMPONENT_TOLERANCE), and
+  the change of each component's mass against the time integral of the component
+  streams, mdot w_i with the mass fractions w_i of what each stream draws recomputed
+  from the recorded state of the node it leaves (the vapour or liquid phase of a
+  fresh flash of the recorded density, temperature and composition), with the
+  energy check's quadrature tolerance plus a tenth of the run's relative tolerance on
+  the component's content (for a component that mostly stays in the vessel);
 * **entropy produced** by every passive link (orifices, valves, lines: adiabatic
   throttling, Gibbs's inequality) at every recorded point,
   sigma = |mdot| (s(p_down, h_up - g dz) - s_up) >= 0 (dz: the rise of a line in the
@@ -74,6 +82,11 @@ ENERGY_FLOOR = 1e-6
 ZONE_ENERGY_FLOOR = 1e-4
 #: rows checked for entropy per link at most (evenly spread; (p, h) flashes cost)
 ENTROPY_ROWS = 400
+#: largest |sum of component masses - mass| / mass accepted at a recorded point
+COMPONENT_TOLERANCE = 1e-9
+#: the component balance allows this share of the integrator's relative tolerance on
+#: the component's content (the solver controls each state's error as rtol |y|)
+COMPONENT_CONTENT_SHARE = 0.1
 
 
 @dataclass
@@ -106,6 +119,8 @@ def run_checks(result, fluid) -> list[Check]:
     out += state_residuals(h)
     out += zone_residuals(h)
     out += energy_balances(h)
+    if h.mixture:
+        out += component_balances(h)
     out += liquid_zone_balances(h)
     out += link_entropy(h)
     out += heat_entropy(h)
@@ -124,9 +139,30 @@ class _Histories:
         self.names = set(result.names())
         self.vessels = {v.name: v for v in self.net.vessels}
         self.zoned = {v.name: v for v in self.net.vessels if v.zones is not None}
-        self.reservoirs = {r.name for r in self.net.reservoirs}
+        self.reservoirs = {r.name: r for r in self.net.reservoirs}
         self._drawn: dict = {}
         self._cols: dict = {}
+        #: a mixture run: component names; each row's composition is recorded per vessel
+        self.mixture = getattr(fluid, "model", "") == "mixture"
+        self.components = fluid.names if self.mixture else ()
+
+    def fluid_at(self, node: str, i: int):
+        """The fluid object of a node's contents at row ``i``: the run's fluid, or for a
+        mixture a fluid of the vessel's recorded composition (the reservoir's supply)
+        on the fresh engine."""
+        if not self.mixture:
+            return self.fluid
+        e = self.fluid.engine
+        if node in self.vessels:
+            z = np.array([self.col(f"{node}.mole_fraction.{n}")[i] for n in self.components])
+            return e.view(z / z.sum())
+        r = self.reservoirs[node]
+        return e.fluid(r.composition) if r.composition is not None else self.fluid
+
+    def vessel_state(self, node: str, i: int):
+        """The recorded state of a vessel re-solved from its density and temperature."""
+        rho = self.col(f"{node}.mass")[i] / self.vessels[node].volume
+        return self.fluid_at(node, i).state_dt(rho, self.col(f"{node}.temperature")[i])
 
     def col(self, name: str) -> np.ndarray:
         got = self._cols.get(name)
@@ -137,9 +173,19 @@ class _Histories:
     def drawn(self, node: str, draws: str, i: int):
         """(h, s, p) of what leaves ``node`` through an outlet that draws ``draws``
         at row ``i``, recomputed from the recorded state."""
+        return self.stream(node, draws, i)[:3]
+
+    def stream(self, node: str, draws: str, i: int):
+        """(h, s, p, fluid, mass fractions or None) of what leaves ``node`` through an
+        outlet that draws ``draws`` at row ``i``, recomputed from the recorded state;
+        ``fluid`` is the stream's own (its composition, for a mixture)."""
         key = (node, draws, i)
         got = self._drawn.get(key)
         if got is not None:
+            return got
+        if self.mixture:
+            got = self._mixture_stream(node, draws, i)
+            self._drawn[key] = got
             return got
         f = self.fluid
         p = self.col(f"{node}.pressure")[i]
@@ -162,9 +208,27 @@ class _Histories:
                 st = f.state_dt(rho, T)
         else:
             st = f.state_pt(p, T)
-        got = (st.h, st.s, p)
+        got = (st.h, st.s, p, f, None)
         self._drawn[key] = got
         return got
+
+    def _mixture_stream(self, node: str, draws: str, i: int):
+        p = self.col(f"{node}.pressure")[i]
+        if node in self.vessels:
+            st = self.vessel_state(node, i)
+            if st.two_phase:
+                # what the outlet draws (the rule of cvsim.outlets): its phase, or both
+                x = drawn_quality(draws, st.quality, st.liquid_fraction)
+                e = self.fluid.engine
+                wv, wl = e.view(st.y).mass_fractions(), e.view(st.x).mass_fractions()
+                w = x * wv + (1.0 - x) * wl
+                zw = w / e.M
+                f = e.view(zw / zw.sum())
+                return (x * st.vapour.h + (1.0 - x) * st.liquid.h,
+                        x * st.vapour.s + (1.0 - x) * st.liquid.s, p, f, w)
+        else:
+            st = self.fluid_at(node, i).state_pt(p, self.col(f"{node}.temperature")[i])
+        return (st.h, st.s, p, st.fluid, st.fluid.mass_fractions())
 
     def zones(self, node: str, i: int):
         """(vapour zone, liquid zone or ``None``) of a vessel held as separated zones at
@@ -188,7 +252,6 @@ class _Histories:
 
 def state_residuals(h: _Histories) -> list[Check]:
     out = []
-    scale = h.fluid.energy_scale
     for name, v in h.vessels.items():
         if name in h.zoned:
             continue  # two temperatures: each zone is checked (zone_residuals)
@@ -200,11 +263,12 @@ def state_residuals(h: _Histories) -> list[Check]:
             if not (m[i] > 0.0 and T[i] == T[i] and u[i] == u[i]):
                 continue
             try:
-                u_eos = h.fluid.state_dt(m[i] / v.volume, T[i]).u
+                st = h.vessel_state(name, i)
             except StateError:
                 worst, at = math.inf, h.t[i]
                 break
-            r = abs(u_eos - u[i]) / (abs(u[i]) + scale)
+            scale = st.fluid.energy_scale if h.mixture else h.fluid.energy_scale
+            r = abs(st.u - u[i]) / (abs(u[i]) + scale)
             if r > worst:
                 worst, at = r, h.t[i]
         out.append(Check(
@@ -277,11 +341,11 @@ def _stream_rates(h: _Histories, vessel: str) -> np.ndarray:
             if md == 0.0 or md != md:
                 continue
             if md > 0.0:
-                h_up, _, _ = h.drawn(link.source, link.draws, i)
+                h_up, _, _, f_up, _ = h.stream(link.source, link.draws, i)
                 h_in = h_up - g_dz
                 if delivery is not None:
                     p_to = h.col(f"{link.target}.pressure")[i]
-                    h_in = h.fluid.state_pt(p_to, delivery).h
+                    h_in = f_up.state_pt(p_to, delivery).h
                 if link.source == vessel:
                     rate[i] -= md * h_up
                 if link.target == vessel:
@@ -306,6 +370,22 @@ def _trapezoid(t: np.ndarray, y: np.ndarray) -> float:
     return float(np.sum(0.5 * (y[1:] + y[:-1]) * np.diff(t)))
 
 
+def _closure(t: np.ndarray, rate: np.ndarray, change) -> tuple[float, float, float, float]:
+    """(residual, tolerance, integral, turned over) of ``change(ok)`` (the change of a
+    content over the finite rows ``ok``) against the trapezoidal integral of ``rate``;
+    tolerance ENERGY_FLOOR + 3 x the Richardson estimate (every second point)."""
+    ok = np.isfinite(rate)
+    tt, yy = t[ok], rate[ok]
+    if len(tt) < 3:
+        return math.nan, math.nan, math.nan, math.nan
+    full = _trapezoid(tt, yy)
+    half = _trapezoid(tt[::2], yy[::2]) if len(tt) % 2 == 1 else _trapezoid(
+        np.append(tt[:-1:2], tt[-1]), np.append(yy[:-1:2], yy[-1]))
+    d = change(ok)
+    turned = max(abs(d), _trapezoid(tt, np.abs(yy)), 1e-300)
+    return abs(d - full) / turned, ENERGY_FLOOR + 3.0 * abs(full - half) / turned, full, turned
+
+
 def energy_balances(h: _Histories) -> list[Check]:
     out = []
     t = h.t
@@ -319,16 +399,10 @@ def energy_balances(h: _Histories) -> list[Check]:
                 heat += np.nan_to_num(h.col(col))
         total = rate + heat
         ok = np.isfinite(total)
-        tt, yy = t[ok], total[ok]
-        if len(tt) < 3:
+        if ok.sum() < 3:
             continue
-        full = _trapezoid(tt, yy)
-        half = _trapezoid(tt[::2], yy[::2]) if len(tt) % 2 == 1 else _trapezoid(
-            np.append(tt[:-1:2], tt[-1]), np.append(yy[:-1:2], yy[-1]))
         dU = m[ok][-1] * u[ok][-1] - m[ok][0] * u[ok][0]
-        turned = max(abs(dU), _trapezoid(tt, np.abs(yy)), 1e-300)
-        residual = abs(dU - full) / turned
-        tol = ENERGY_FLOOR + 3.0 * abs(full - half) / turned
+        residual, tol, full, _ = _closure(t, total, lambda ok_: dU)
         out.append(Check(
             f"first law of vessel '{name}'",
             "|change of U - integral of streams and heat| / energy turned over",
@@ -419,6 +493,68 @@ def liquid_zone_balances(h: _Histories) -> list[Check]:
 
 # ------------------------------------------------------------------ entropy
 
+# ------------------------------------------------------------------ components
+
+def _component_rates(h: _Histories, vessel: str) -> np.ndarray:
+    """Component mass streams into ``vessel`` minus those out [kg/s], rows x components,
+    with the mass fractions of each stream recomputed from the recorded states."""
+    n = len(h.t)
+    rate = np.zeros((n, len(h.components)))
+    for link in h.net.links:
+        if vessel not in (link.source, link.target):
+            continue
+        mdot = h.col(f"{link.name}.mass_flow")
+        for i in range(n):
+            md = mdot[i]
+            if md == 0.0 or md != md:
+                continue
+            up, draws = (link.source, link.draws) if md > 0.0 else (link.target, "vapour")
+            w = h.stream(up, draws, i)[4]
+            if link.target == vessel:
+                rate[i] += md * w
+            if link.source == vessel:
+                rate[i] -= md * w
+    return rate
+
+
+def component_balances(h: _Histories) -> list[Check]:
+    """The component masses of each vessel sum to its mass at every recorded point, and
+    each component's change closes against the recomputed component streams."""
+    out = []
+    for name in h.vessels:
+        m = h.col(f"{name}.mass")
+        masses = np.array([h.col(f"{name}.component_mass.{c}") for c in h.components]).T
+        total = masses.sum(axis=1)
+        ok = m > 0.0
+        dev = np.abs(total[ok] - m[ok]) / m[ok] if ok.any() else np.zeros(1)
+        k = int(np.argmax(dev))
+        worst = float(dev[k])
+        out.append(Check(
+            f"component masses of vessel '{name}'",
+            "largest |sum of component masses - mass| / mass", worst, COMPONENT_TOLERANCE,
+            worst <= COMPONENT_TOLERANCE, f"at t = {h.t[ok][k]:.6g} s" if ok.any() else ""))
+        rates = _component_rates(h, name)
+        worst, where, tol_at = 0.0, "", COMPONENT_TOLERANCE
+        rtol = h.net.run.rtol
+        for j, c in enumerate(h.components):
+            col = masses[:, j]
+            residual, tol, full, turned = _closure(
+                h.t, rates[:, j], lambda ok_, col=col: col[ok_][-1] - col[ok_][0])
+            # a component that stays mostly in the vessel (its content >> what passes)
+            # carries the integrator's error on its content: allow a tenth of rtol of it
+            tol += COMPONENT_CONTENT_SHARE * rtol * float(np.max(np.abs(col))) / turned
+            if residual == residual and residual / tol > worst / tol_at:
+                worst, tol_at = residual, tol
+                where = (f"{c}: change {1e3 * (col[-1] - col[0]):.6g} g, streams "
+                         f"{1e3 * full:.6g} g (mass fractions recomputed from the recorded "
+                         "states)")
+        out.append(Check(
+            f"components of vessel '{name}'",
+            "largest |change of a component's mass - integral of its streams| / mass "
+            "turned over", worst, tol_at, worst <= tol_at, where))
+    return out
+
+
 def _sample(n: int, k: int) -> range | np.ndarray:
     if n <= k:
         return range(n)
@@ -428,7 +564,6 @@ def _sample(n: int, k: int) -> range | np.ndarray:
 def link_entropy(h: _Histories) -> list[Check]:
     from .network import FixedFlow
     out = []
-    R = 8.314462618 / h.fluid.molar_mass
     for link in h.net.links:
         if isinstance(link.device, FixedFlow):
             continue
@@ -441,11 +576,12 @@ def link_entropy(h: _Histories) -> list[Check]:
                 continue
             up, down, draws = ((link.source, link.target, link.draws) if md > 0.0 else
                                (link.target, link.source, "vapour"))
-            h_up, s_up, _ = h.drawn(up, draws, i)
+            h_up, s_up, _, f_up, _ = h.stream(up, draws, i)
             p_down = h.col(f"{down}.pressure")[i]
+            R = 8.314462618 / f_up.molar_mass
             h_down = h_up - (g_dz if md > 0.0 else -g_dz)
             try:
-                s_down = h.fluid.state_ph(p_down, h_down).s
+                s_down = f_up.state_ph(p_down, h_down).s
             except StateError:
                 skipped += 1
                 continue

@@ -197,7 +197,13 @@ def run_figures(model, result) -> tuple[dict, list[str]]:
             after = ~full[k:]
             if after.any():
                 d["liquid_full_until_s"] = float(t[k + int(after.argmax())])
-            rise = hydraulic_pressure_rise(model.fluid, rho, T)
+            fluid = model.fluid
+            if model.mix is not None:   # a mixture: the vessel's composition at that time
+                import numpy as np
+                z = np.array([result.fine(f"{n}.mole_fraction.{c}")[k]
+                              for c in model.mix.names])
+                fluid = model.mix.engine.view(z / z.sum())
+            rise = hydraulic_pressure_rise(fluid, rho, T)
             d["liquid_full_pressure_rise_Pa_per_K"] = rise
             warnings.append(liquid_full_warning(n, float(t[k]), rho, rise))
         out[n] = d

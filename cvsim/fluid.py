@@ -85,6 +85,13 @@ class State:
                 f"h={self.h:.6g} J/kg, {self.phase}{q})")
 
 
+def fluid_of(state, default):
+    """The fluid object a state belongs to: a mixture state carries its own (its phase
+    or stream composition, :class:`cvsim.mixture.MixtureState`); any other state the
+    ``default`` (the run's fluid)."""
+    return getattr(state, "fluid", None) or default
+
+
 def _cp_module():
     # CoolProp takes about a second to import; import it only when a fluid is made.
     import CoolProp.CoolProp as CP
@@ -687,6 +694,16 @@ class IdealGas:
 
 
 Fluid = RealFluid | IdealGas
+
+
+def fluid_for(spec):
+    """A new fluid object for a :class:`cvsim.network.FluidSpec`: CoolProp, ideal gas,
+    or a mixture on its own new engine (:class:`cvsim.mixture.MixtureEngine`)."""
+    if spec.model == "mixture":
+        from .mixture import MixtureEngine
+        engine = MixtureEngine(spec.components, spec.equation)
+        return engine.fluid(spec.mole_fractions, spec.name)
+    return make_fluid(spec.name, spec.model, spec.molar_mass, spec.cp, spec.cp_temperature)
 
 
 def make_fluid(name: str, model: str = "real", molar_mass: float | None = None,

@@ -48,7 +48,9 @@ from .components import (COMPONENTS, EQUATIONS, GERG_COMPONENTS,  # noqa: F401 (
                          Composition, CompositionWarning, component_name, equation_name,
                          make_composition)
 from .errors import FluidError, StateError
-from .fluid import NAN, R_UNIVERSAL, State, root_on_bracket
+from .fluid import NAN, R_UNIVERSAL, State
+from .numerics import root_on_bracket
+from .mixture_calls import LeanCalls
 
 #: relative residual tolerance of the mixture state solves (v and u, s relative to
 #: |u| + R Tc, |s| + R); looser than the pure-fluid STATE_RTOL because the (T, p)
@@ -58,6 +60,19 @@ MIX_RTOL = 1e-11
 MIX_RTOL_FLOOR = 1e-9
 MAX_ITERATIONS = 60
 
+#: views of compositions closer than this (max |dz|) are the same view (MixtureEngine.view)
+VIEW_SAME = 1e-12
+#: a view borrows the phase envelope and critical point of an anchor composition
+#: within this (max |dz|). Measured (PR): the cricondentherm moves by at most 0.06 K
+#: and the cricondenbar by 0.04 % per 1e-4 for a C1-C4 + N2 gas, and by 0.62 K and
+#: 0.43 % per 1e-4 for a C1-C7 + N2 + CO2 gas with 0.2 % heptane: at 3e-5 at most
+#: 0.2 K and 0.13 %, a tenth of the screen's margins (ENVELOPE_MARGIN_T, _P)
+VIEW_SHARE = 3e-5
+#: an anchor's envelope is traced after it has served this many views
+ANCHOR_TRACE_AFTER = 100
+MAX_ANCHORS = 64
+
+
 # ----------------------------------------------------------------------- states
 class MixtureState(State):
     """An equilibrium state of a mixture: a :class:`cvsim.fluid.State` plus its phases.
@@ -65,10 +80,12 @@ class MixtureState(State):
     ``z`` overall, ``x`` liquid and ``y`` vapour mole fractions (numpy arrays;
     in one phase both equal z), ``beta`` the vapour mole fraction (NaN in one
     phase), ``vapour`` and ``liquid`` the phases as States at the same T and p
-    (None in one phase), ``molar_mass`` [kg/mol] of the overall mixture.
+    (None in one phase), ``molar_mass`` [kg/mol] of the overall mixture, ``fluid``
+    the :class:`MixtureFluid` of composition z that made it (devices take the stream's
+    properties from it, :func:`cvsim.fluid.fluid_of`).
     """
 
-    __slots__ = ("z", "x", "y", "beta", "vapour", "liquid", "molar_mass")
+    __slots__ = ("z", "x", "y", "beta", "vapour", "liquid", "molar_mass", "fluid")
 
     def __init__(self, rho, T, p, u, h, s, cp, cv, c, quality=NAN, phase="gas",
                  liquid_fraction=0.0, z=None, x=None, y=None, beta=NAN, vapour=None,
@@ -76,6 +93,8 @@ class MixtureState(State):
         super().__init__(rho, T, p, u, h, s, cp, cv, c, quality, phase, liquid_fraction)
         self.z, self.x, self.y, self.beta = z, x, y, beta
         self.vapour, self.liquid, self.molar_mass = vapour, liquid, molar_mass
+        #: the :class:`MixtureFluid` of composition z this state belongs to (or None)
+        self.fluid = None
 
 
 @dataclass
@@ -87,6 +106,14 @@ class FlashHint:
     p: float = NAN
     two_phase: bool = False
     jac: np.ndarray | None = None
+    #: one phase: the last root was liquid (pressure-based solves pick the root by it)
+    liquid: bool = False
+    #: two phases at fixed p: the last slope dy/dT of s or h [J/(mol K) per K or J/(mol K)]
+    slope: float = NAN
+    #: two phases at fixed v: the last solution's molar volume and u (or s), and which
+    v: float = NAN
+    y: float = NAN
+    kind: str = ""
 
 
 class _Phase:
@@ -137,8 +164,11 @@ class MixtureEngine:
         self.t_min = tp.get_tmin()
         self.t_max = tp.get_tmax()
         self.p_max = tp.get_pmax()
+        self._lean = LeanCalls(tp, self.nc)
         self.evaluations = 0   # equation-of-state property calls
         self.flashes = 0       # (T, p) flashes
+        self._anchors: list = []     # [view, views served] (see view())
+        self._anchor_z = np.zeros((MAX_ANCHORS, self.nc))
         self._tc = np.array([tp.critical_temperature(i + 1) for i in range(self.nc)])
         self._pc = np.array([tp.critical_pressure(i + 1) for i in range(self.nc)])
 
@@ -146,22 +176,57 @@ class MixtureEngine:
         """The fixed-composition fluid object for overall mole fractions z on this engine."""
         return MixtureFluid(self, z, name)
 
+    def view(self, z: np.ndarray, last: "MixtureFluid | None" = None) -> "MixtureFluid":
+        """The fluid object for a composition z that changes along a run (a vessel's
+        contents, the phase a stream draws).
+
+        ``last`` (the view used for the same vessel or stream before) is returned
+        while max |z - last.z| <= VIEW_SAME: the state error that makes is of that
+        order, far below the solver's tolerances. Otherwise a new view, which takes
+        the phase envelope (the screen of :meth:`MixtureFluid._surely_single`) and
+        the critical point of an anchor composition within VIEW_SHARE (see there for
+        the error); an anchor's envelope is traced once it has served
+        ANCHOR_TRACE_AFTER views (tracing costs 5-10 ms, one (T, p) flash 0.05 ms).
+        Without an envelope every state is flash-tested.
+        """
+        if last is not None and float(np.max(np.abs(z - last.z))) <= VIEW_SAME:
+            return last
+        f = MixtureFluid(self, z, checked=True)
+        anchors = self._anchors
+        k = -1
+        if anchors:
+            d = np.max(np.abs(self._anchor_z[:len(anchors)] - f.z), axis=1)
+            k = int(np.argmin(d))
+            if d[k] > VIEW_SHARE:
+                k = -1
+        if k < 0:
+            if len(anchors) >= MAX_ANCHORS:   # forget the oldest
+                anchors.pop(0)
+                self._anchor_z[:-1] = self._anchor_z[1:].copy()
+            anchors.append([f, 0])
+            self._anchor_z[len(anchors) - 1] = f.z
+            k = len(anchors) - 1
+        entry = anchors[k]
+        entry[1] += 1
+        anchor = entry[0]
+        if anchor._envelope is None and entry[1] >= ANCHOR_TRACE_AFTER:
+            anchor.envelope()
+        f._envelope = anchor._envelope if anchor._envelope is not None else False
+        f._crit = anchor._crit
+        return f
+
     # -------------------------------------------------------------- phases
     def _phase_tv(self, T: float, v: float, w: np.ndarray) -> _Phase:
-        tp = self._tp
         self.evaluations += 3
         ph = _Phase()
         ph.T, ph.v, ph.w = T, v, w
         ph.M = float(w @ self.M)
-        ph.p, ph.dpdt, ph.dpdv = tp.pressure_tv(T, v, w, dpdt=True, dpdv=True)
-        ph.u, ph.cv = tp.internal_energy_tv(T, v, w, dedt=True)
-        ph.s, = tp.entropy_tv(T, v, w)
+        ph.p, ph.dpdt, ph.dpdv, ph.u, ph.cv, ph.s = self._lean.tv(T, v, w)
         return ph
 
     def _phase_tp(self, T: float, p: float, w: np.ndarray, flag: int) -> _Phase:
         self.evaluations += 1
-        v, = self._tp.specific_volume(T, p, w, flag)
-        return self._phase_tv(T, v, w)
+        return self._phase_tv(T, self._lean.volume(T, p, w, flag), w)
 
     @staticmethod
     def _state_of(ph: _Phase, phase: str) -> State:
@@ -190,19 +255,14 @@ class MixtureEngine:
         beta in (0, 1) in two phases; 1 (vapour/gas/supercritical) or 0 (liquid) in one.
         """
         self.flashes += 1
-        try:
-            r = self._tp.two_phase_tpflash(T, p, z)
-        except Exception as exc:  # thermopack raises bare Exception
-            raise StateError(f"mixture flash failed at T = {T:.6g} K, p = {p:.6g} Pa: "
-                             f"{exc}") from None
-        if r.phase == self._TWO and 0.0 < r.betaV < 1.0:
-            y, x = np.asarray(r.y), np.asarray(r.x)
-            return (r.betaV, x, y, self._phase_tp(T, p, y, self._VAP),
+        phase, betaV, x, y = self._lean.flash(T, p, z)
+        if phase == self._TWO and 0.0 < betaV < 1.0:
+            return (betaV, x, y, self._phase_tp(T, p, y, self._VAP),
                     self._phase_tp(T, p, x, self._LIQ))
-        if r.phase == self._LIQ:
+        if phase == self._LIQ:
             return 0.0, z, z, None, self._phase_tp(T, p, z, self._LIQ)
         V = self._phase_tp(T, p, z, self._VAP)
-        if r.phase != self._VAP:
+        if phase != self._VAP:
             # one phase (thermopack could not tell which): the root of least Gibbs energy
             L = self._phase_tp(T, p, z, self._LIQ)
             if abs(L.v - V.v) > 1e-9 * V.v and (L.u - T * L.s + p * L.v) < (V.u - T * V.s + p * V.v):
@@ -253,30 +313,52 @@ class MixtureFluid:
 
     model = "mixture"
 
-    def __init__(self, engine: MixtureEngine, z, name: str | None = None):
+    def __init__(self, engine: MixtureEngine, z, name: str | None = None, *,
+                 checked: bool = False):
         z = np.asarray(z, dtype=float)
-        if z.shape != (engine.nc,) or not np.all(np.isfinite(z)) or np.any(z < 0) or z.sum() <= 0:
+        if not checked and (z.shape != (engine.nc,) or not np.all(np.isfinite(z))
+                            or np.any(z < 0) or z.sum() <= 0):
             raise FluidError(f"composition {list(z)} does not fit the components "
                              f"{', '.join(engine.names)}: give one fraction >= 0 for each.")
         self.engine = engine
         self.z = z / z.sum()
         self.names = engine.names
         self.equation = engine.equation
-        self.name = name or ("mixture (" + ", ".join(
-            f"{n} {f:.4g}" for n, f in zip(engine.names, self.z)) + ")")
+        self._name = name
         self.molar_mass = float(self.z @ engine.M)
         self.t_min, self.t_max, self.p_max = engine.t_min, engine.t_max, engine.p_max
         self.t_triple = self.t_min   # no solid model: the equation of state's lower end
         R = R_UNIVERSAL
         self._u_scale = R * max(float(self.z @ engine._tc), 100.0)   # [J/mol]
         self._s_scale = R                                             # [J/(mol K)]
-        self._hints = {"u": FlashHint(), "s": FlashHint(), "T": FlashHint()}
+        #: the energy scale of the residual tolerances [J/kg] (R T_pc per kilogram)
+        self.energy_scale = self._u_scale / self.molar_mass
+        self._hints = {"u": FlashHint(), "s": FlashHint(), "T": FlashHint(),
+                       "ps": FlashHint(), "ph": FlashHint()}
         self._envelope = None
         self._crit = None
         #: one component: two phases lie on its saturation curve (lever rule)
         self._pure = int(np.count_nonzero(self.z)) == 1
         #: corrections made to the composition on the way in (see make_composition)
         self.notes: list[str] = []
+
+    @property
+    def name(self) -> str:
+        """Label: the name given, else the components and their mole fractions."""
+        if self._name is None:
+            self._name = "mixture (" + ", ".join(
+                f"{n} {f:.4g}" for n, f in zip(self.names, self.z) if f > 0.0) + ")"
+        return self._name
+
+    def mass_fractions(self) -> np.ndarray:
+        """Mass fractions w_i = z_i M_i / sum z M [-] in the engine's component order."""
+        w = self.z * self.engine.M
+        return w / w.sum()
+
+    def _make(self, T: float, p: float, fl) -> MixtureState:
+        st = self.engine.make_state(self.z, T, p, fl)
+        st.fluid = self
+        return st
 
     # ------------------------------------------------------------ counters
     @property
@@ -357,7 +439,7 @@ class MixtureFluid:
         self._check_T(T, "pressure-temperature state")
         self._check_p(p)
         e = self.engine
-        return e.make_state(self.z, T, p, e.flash_tp(T, p, self.z))
+        return self._make(T, p, e.flash_tp(T, p, self.z))
 
     def state_dt(self, rho: float, T: float) -> MixtureState:
         """Equilibrium state from density [kg/m3] and temperature [K]."""
@@ -373,7 +455,7 @@ class MixtureFluid:
         p, fl = out
         self._check_p(p)
         hint.T, hint.p, hint.two_phase = T, p, fl[3] is not None and fl[4] is not None
-        return self.engine.make_state(self.z, T, p, fl)
+        return self._make(T, p, fl)
 
     def _equilibrium_tv(self, T: float, v: float, p_guess: float | None = None):
         """Equilibrium at (T [K], v [m3/mol]): (p [Pa], flash tuple), or None.
@@ -443,7 +525,6 @@ class MixtureFluid:
         return T, p, fl
 
     def _single(self, ph: _Phase, fl=None) -> MixtureState:
-        e = self.engine
         if fl is None:
             fl = (1.0, self.z, self.z, ph, None)
         elif fl[3] is None:          # the flash found liquid: keep this root, labelled liquid
@@ -451,7 +532,7 @@ class MixtureFluid:
         else:
             fl = (1.0, self.z, self.z, ph, None)
         self._check_p(ph.p)
-        return e.make_state(self.z, ph.T, ph.p, fl)
+        return self._make(ph.T, ph.p, fl)
 
     def state_du(self, rho: float, u: float, T_guess: float | None = None,
                  hint: FlashHint | None = None) -> MixtureState:
@@ -501,6 +582,18 @@ class MixtureFluid:
         else:
             T0 = T_guess if T_guess else hint.T
             p0 = hint.p
+            if hint.jac is not None and hint.kind == kind and math.isfinite(hint.v):
+                # predictor: the residual of the last solution for the new target is
+                # known without a flash; one step with the kept Jacobian (composition
+                # changes since then are left to the Newton iteration that follows)
+                sc = abs(target) + scale
+                r = np.array([(hint.v - v) / v, (hint.y - target) / sc])
+                try:
+                    dx = -np.linalg.solve(hint.jac, r)
+                except np.linalg.LinAlgError:
+                    dx = None
+                if dx is not None and np.all(np.abs(dx) < 0.05):
+                    T0, p0 = hint.T * math.exp(dx[0]), hint.p * math.exp(dx[1])
         if self._pure:
             out = self._pure_two_phase(v, target, kind, T0, tol)
         else:
@@ -518,8 +611,9 @@ class MixtureFluid:
         self._check_T(T, "state")
         self._check_p(p)
         hint.T, hint.p = T, p
+        hint.v, hint.y, hint.kind = v, target, kind
         hint.two_phase = fl[3] is not None and fl[4] is not None
-        return e.make_state(z, T, p, fl)
+        return self._make(T, p, fl)
 
     @staticmethod
     def _same_root(fl, v: float) -> bool:
@@ -713,33 +807,218 @@ class MixtureFluid:
             f"could not be solved to the residual tolerance ({MIX_RTOL:g} relative); this is a "
             "defect of the mixture flash: please report it with the scenario.")
 
-    def isentrope_at_p(self, p: float, s: float, T_guess: float) -> MixtureState:
+    def isentrope_at_p(self, p: float, s: float, T_guess: float | None = None,
+                       hint: FlashHint | None = None) -> MixtureState:
         """Equilibrium state at pressure p [Pa] with specific entropy s [J/(kg K)]
-        (homogeneous equilibrium), by a bracketed secant in T over (T, p) flashes,
-        converged on |s(T, p) - s| <= MIX_RTOL (|s| + R)."""
-        if not (p > 0.0):
+        (homogeneous equilibrium), converged on |s(T, p) - s| <= MIX_RTOL (|s| + R);
+        warm-started from ``T_guess`` and ``hint`` (one per nozzle link)."""
+        return self._solve_p(p, s * self.molar_mass, T_guess, hint or self._hints["ps"], "s")
+
+    def state_ph(self, p: float, h: float, T_guess: float | None = None,
+                 hint: FlashHint | None = None) -> MixtureState:
+        """Equilibrium state from pressure p [Pa] and specific enthalpy h [J/kg],
+        converged on |h(T, p) - h| <= MIX_RTOL (|h| + R T_pc)."""
+        return self._solve_p(p, h * self.molar_mass, T_guess, hint or self._hints["ph"], "h")
+
+    def _solve_p(self, p: float, target: float, T_guess, hint: FlashHint,
+                 kind: str) -> MixtureState:
+        """(p, s) or (p, h) flash. One phase first (unless the hint was two-phase):
+        Newton on T at fixed p on the hinted root (vapour unless the last state was
+        liquid), dy/dT = c_p/T (s) or c_p (h), kept when the envelope screen or the
+        (T, p) flash confirms that root. Otherwise two phases: y(T, p) rises with T
+        at fixed p (c_p > 0 also in equilibrium), solved by secant steps from the
+        hint's slope, then false position on the bracket (lever rule on the
+        saturation curve for a single component)."""
+        if not (p > 0.0) or not math.isfinite(p):
             raise StateError(f"pressure {p:.6g} Pa is not positive")
         self._check_p(p)
         e, z = self.engine, self.z
-        target = s * self.molar_mass
-        tol = MIX_RTOL * (abs(target) + self._s_scale)
+        tol = MIX_RTOL * (abs(target) + (self._s_scale if kind == "s" else self._u_scale))
+        T0 = T_guess if (T_guess and self.t_min < T_guess < self.t_max) else (
+            hint.T if math.isfinite(hint.T) else 300.0)
+        if not hint.two_phase:
+            flag = e._LIQ if hint.liquid else e._VAP
+            ph = self._single_T_p(p, target, T0, kind, tol, flag)
+            if ph is not None:
+                one = self._surely_single(ph.T, p)
+                fl = None if one else e.flash_tp(ph.T, p, z)
+                if one or self._same_root(fl, ph.v):
+                    hint.T, hint.p, hint.two_phase = ph.T, p, False
+                    hint.liquid = fl is not None and fl[3] is None
+                    return self._single(ph, fl)
+                T0 = ph.T
+        out = (self._pure_at_p(p, target, kind) if self._pure else
+               self._two_phase_at_p(p, target, kind, T0, hint, tol))
+        if out is None:
+            raise self._unsolved_p(p, target / self.molar_mass, kind)
+        T, fl = out
+        self._check_T(T, "pressure-" + ("entropy" if kind == "s" else "enthalpy") + " state")
+        hint.T, hint.p = T, p
+        hint.two_phase = fl[3] is not None and fl[4] is not None
+        if not hint.two_phase:
+            hint.liquid = fl[3] is None
+        return self._make(T, p, fl)
+
+    def _single_T_p(self, p: float, target: float, T0: float, kind: str, tol: float,
+                    flag: int):
+        """One-phase temperature at pressure p on the root ``flag`` with s (or h) =
+        target: Newton with dy/dT = c_p/T (or c_p), bracketed in [t_min, t_max];
+        None when it does not converge (the root vanished, or no T in range)."""
+        e, z = self.engine, self.z
+        lo, hi = self.t_min, self.t_max
+        T = T0
+        f_lo = f_hi = None
+        for _ in range(MAX_ITERATIONS):
+            ph = e._phase_tv(T, e._lean.volume(T, p, z, flag), z)
+            if not (ph.dpdv < 0.0):
+                return None
+            val = ph.s if kind == "s" else ph.u + p * ph.v
+            err = val - target
+            if abs(err) <= tol:
+                return ph
+            if err > 0.0:
+                hi, f_hi = T, err
+            else:
+                lo, f_lo = T, err
+            cp = ph.cv - T * ph.dpdt ** 2 / ph.dpdv
+            slope = cp / T if kind == "s" else cp
+            T_new = T - err / slope if slope > 0.0 else NAN
+            if not (lo < T_new < hi):
+                if f_lo is not None and f_hi is not None:
+                    T_new = lo - f_lo * (hi - lo) / (f_hi - f_lo)
+                else:
+                    T_new = 0.5 * (lo + hi) if abs(hi - lo) < 50.0 else (
+                        min(T * 1.2, 0.5 * (T + hi)) if err < 0.0 else max(T / 1.2, 0.5 * (T + lo)))
+            if hi - lo <= 1e-14 * hi:
+                return ph if abs(err) <= MIX_RTOL_FLOOR / MIX_RTOL * tol else None
+            T = T_new
+        return None
+
+    def _two_phase_at_p(self, p, target, kind, T0, hint: FlashHint, tol):
+        """Equilibrium (two or one phase) at p with y = target by secant steps in T
+        from the hint's slope dy/dT, then false position once bracketed.
+        Returns (T, flash) or None."""
+        e, z = self.engine, self.z
+        seen = {}
 
         def f(T):
-            _, _, ss, fl = e.equilibrium_tp(T, p, z)
-            f.last = (T, fl)
-            return ss - target
+            v, u, s, fl = e.equilibrium_tp(T, p, z)
+            r = (s if kind == "s" else u + p * v) - target
+            seen[T] = (fl, r)
+            return r
 
-        f.last = None
-        T0 = T_guess if (T_guess and self.t_min < T_guess < self.t_max) else 300.0
-        T = _solve_increasing(f, T0, 0.02 * T0, self.t_min, self.t_max, tol)
+        lo, hi = self.t_min, self.t_max
+        T0 = min(max(T0, lo), hi)
+        try:
+            f0 = f(T0)
+            if abs(f0) <= tol:
+                return T0, seen[T0][0]
+            slope = hint.slope if (math.isfinite(hint.slope) and hint.slope > 0.0) else NAN
+            T1 = T0 - f0 / slope if slope == slope else T0 * (0.99 if f0 > 0.0 else 1.01)
+            T1 = min(max(T1, T0 - 0.05 * T0, lo), T0 + 0.05 * T0, hi)
+            T = None
+            for _ in range(8):
+                f1 = f(T1)
+                if abs(f1) <= tol:
+                    T = T1
+                    break
+                if (f1 > 0.0) != (f0 > 0.0):
+                    a, b, fa, fb = (T0, T1, f0, f1) if f0 < 0.0 else (T1, T0, f1, f0)
+                    T = root_on_bracket(f, a, b, fa, fb, tol)
+                    break
+                step = -f1 * (T1 - T0) / (f1 - f0) if f1 != f0 else NAN
+                if not (step == step) or (step > 0.0) != (f1 < 0.0):
+                    step = math.copysign(0.02 * T1, -f1)
+                T0, f0 = T1, f1
+                T1 = min(max(T1 + max(min(step, 0.1 * T1), -0.1 * T1), lo), hi)
+            if T is None:
+                T = _solve_increasing(f, T0, 0.02 * T0, lo, hi, tol)
+        except StateError:
+            return None
         if T is None:
-            raise self._unsolved_p(p, s)
-        T, fl = f.last if f.last[0] == T else (T, e.flash_tp(T, p, z))
-        return e.make_state(z, T, p, fl)
+            return None
+        fl = seen[T][0] if T in seen else e.flash_tp(T, p, z)
+        # the slope dy/dT between the two points nearest the root, for the next call
+        near = sorted(seen, key=lambda x: abs(x - T))[:2]
+        if len(near) == 2 and near[0] != near[1]:
+            sl = (seen[near[0]][1] - seen[near[1]][1]) / (near[0] - near[1])
+            if sl > 0.0:
+                hint.slope = sl
+        return T, fl
 
-    def _unsolved_p(self, p, s):
+    def _pure_at_p(self, p: float, target: float, kind: str):
+        """A single component at p inside its two-phase region: T = T_sat(p), the
+        vapour mole fraction by the lever rule on s (or h). (T, flash) or None."""
+        e, z = self.engine, self.z
+        try:
+            T = self.dew_temperature(p)
+        except StateError:
+            return None
+        V = e._phase_tp(T, p, z, e._VAP)
+        L = e._phase_tp(T, p, z, e._LIQ)
+        yV = V.s if kind == "s" else V.u + p * V.v
+        yL = L.s if kind == "s" else L.u + p * L.v
+        if not (yV > yL):
+            return None
+        beta = (target - yL) / (yV - yL)
+        if not (0.0 < beta < 1.0):
+            return None
+        return T, (beta, z, z, V, L)
+
+    def phase_state(self, st: MixtureState, which: str,
+                    last: "MixtureFluid | None" = None) -> MixtureState:
+        """One phase of a two-phase state as a state of its own composition (y for
+        ``vapour``, x for ``liquid``) at the same T and p, on the view of that
+        composition (:meth:`MixtureEngine.view`; ``last``: the view used for the same
+        stream before). It is saturated: vapour at its dew point (quality 1), liquid
+        at its bubble point (quality 0), as a pure fluid's saturated phases are."""
+        e = self.engine
+        vapour = which == "vapour"
+        view = e.view(st.y if vapour else st.x, last)
+        ph = e._phase_tp(st.T, st.p, view.z, e._VAP if vapour else e._LIQ)
+        out = view._make(st.T, st.p, (1.0, view.z, view.z, ph, None) if vapour else
+                         (0.0, view.z, view.z, None, ph))
+        out.phase, out.quality = ("gas", 1.0) if vapour else ("liquid", 0.0)
+        out.liquid_fraction = 0.0 if vapour else 1.0
+        return out
+
+    def stream_state(self, st: MixtureState, quality: float,
+                     last: "MixtureFluid | None" = None) -> MixtureState:
+        """The stream an outlet draws from two-phase contents ``st`` when it carries the
+        vapour mass fraction ``quality`` (1: the vapour phase, 0: the liquid phase,
+        between: both phases as they are in the vessel, e.g. a top outlet the level has
+        reached; :mod:`cvsim.outlets`): its composition is the phases' in that
+        proportion, its state the same phases at the vessel's T and p, on the view of
+        that composition."""
+        if quality >= 1.0:
+            return self.phase_state(st, "vapour", last)
+        if quality <= 0.0:
+            return self.phase_state(st, "liquid", last)
+        e = self.engine
+        V = e._phase_tp(st.T, st.p, st.y, e._VAP)
+        L = e._phase_tp(st.T, st.p, st.x, e._LIQ)
+        nV, nL = quality / V.M, (1.0 - quality) / L.M
+        beta = nV / (nV + nL)
+        view = e.view(beta * st.y + (1.0 - beta) * st.x, last)
+        return view._make(st.T, st.p, (beta, st.x, st.y, V, L))
+
+    def sound_speed(self, st: MixtureState) -> float:
+        """Equilibrium speed of sound [m/s] of a state of this mixture: the phase's own
+        in one phase; in two phases with mechanical, thermal and phase equilibrium
+        kept through the wave (thermopack's two-phase sound velocity; the homogeneous
+        equilibrium model's c, checked in the tests against (dp/drho)_s from the
+        isentrope)."""
+        if not st.two_phase:
+            return st.c
+        e = self.engine
+        e.evaluations += 1
+        return e._lean.sound_speed(st.T, st.p, st.x, st.y, st.z, st.beta, e._TWO)
+
+    def _unsolved_p(self, p, y, kind="s"):
+        what = "entropy" if kind == "s" else "enthalpy"
+        unit = "J/(kg K)" if kind == "s" else "J/kg"
         return StateError(
-            f"no {self.name} state at p = {p / 1e5:.6g} bar a with entropy {s:.6g} J/(kg K) "
+            f"no {self.name} state at p = {p / 1e5:.6g} bar a with {what} {y:.6g} {unit} "
             f"within {self.t_min:.6g} to {self.t_max:.6g} K; below the range solids may form, "
             "which cvsim does not model.")
 
@@ -776,7 +1055,7 @@ class MixtureFluid:
         T = self.dew_temperature(p)
         e = self.engine
         ph = e._phase_tp(T, p, self.z, e._VAP)
-        st = e.make_state(self.z, T, p, (1.0, self.z, self.z, ph, None))
+        st = self._make(T, p, (1.0, self.z, self.z, ph, None))
         st.phase, st.quality = "gas", 1.0
         return st
 
@@ -785,7 +1064,7 @@ class MixtureFluid:
         T = self.bubble_temperature(p)
         e = self.engine
         ph = e._phase_tp(T, p, self.z, e._LIQ)
-        st = e.make_state(self.z, T, p, (0.0, self.z, self.z, None, ph))
+        st = self._make(T, p, (0.0, self.z, self.z, None, ph))
         st.phase, st.quality = "liquid", 0.0
         return st
 
@@ -794,8 +1073,7 @@ class MixtureFluid:
         cp0 = sum z_i cp0_i(T) (``rho`` unused, kept for the common interface)."""
         self.engine.evaluations += 1
         # the ideal-gas part of the equation of state at any volume: cv0, cp0 = cv0 + R
-        _, cv0 = self.engine._tp.internal_energy_tv(T, 1.0, self.z, dedt=True,
-                                                    property_flag="I")
+        cv0 = self.engine._lean.ideal_cv(T, self.z)
         cp0 = cv0 + R_UNIVERSAL
         return cp0 / (cp0 - R_UNIVERSAL)
 
@@ -808,7 +1086,7 @@ ENVELOPE_MARGIN_P = 0.02    # [-] relative, above the cricondenbar
 def _solve_increasing(f, x0: float, dx0: float, lo: float, hi: float, tol: float):
     """Root of an increasing function f on [lo, hi] from x0: step outward by dx0
     (doubling) until the sign changes, then Illinois false position
-    (:func:`cvsim.fluid.root_on_bracket`) to |f| <= tol. None when no sign change."""
+    (:func:`cvsim.numerics.root_on_bracket`) to |f| <= tol. None when no sign change."""
     x0 = min(max(x0, lo), hi)
     f0 = f(x0)
     if abs(f0) <= tol:

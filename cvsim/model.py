@@ -6,6 +6,8 @@ State vector ``y`` (all SI):
 * per vessel held as separated vapour and liquid zones: the liquid zone's mass and
   internal energy (the vapour zone is the rest; :mod:`cvsim.zones`);
 * per heat term with states of its own (walls, later): those states;
+* a mixture run: per vessel the mass of each component [kg]
+  (:mod:`cvsim.mixture_contents`);
 * bookkeeping integrals, which never feed back into the dynamics: per link the
   mass that passed [kg], the energy that left the node the stream leaves [J]
   and the energy that entered the node it enters [J]; per heat term the heat
@@ -56,7 +58,7 @@ from .flow.line import LineDevice
 from .flow.orifice import OrificeDevice
 from .flow.regulator import RegulatorDevice
 from .flow.relief import ReliefValveDevice
-from .fluid import make_fluid
+from .fluid import fluid_for
 from .outlets import drawn_state
 from .heat.definitions import GasFire, Wall
 from .heat.loads import AmbientExchangeTerm, HeatLoadTerm
@@ -90,7 +92,7 @@ ACC_PER_LINK = 3  # mass, energy out of the node left, energy into the node ente
 
 
 class VesselRuntime:
-    __slots__ = ("name", "index", "volume", "i_m", "i_U", "T_hint", "heat")
+    __slots__ = ("name", "index", "volume", "i_m", "i_U", "T_hint", "heat", "i_c")
 
     def __init__(self, definition: nw.Vessel, index: int):
         self.name = definition.name
@@ -100,6 +102,7 @@ class VesselRuntime:
         self.i_U = 2 * index + 1
         self.T_hint = definition.initial.temperature
         self.heat = []
+        self.i_c = None   # a mixture run: first index of its component masses
 
 
 class Model:
@@ -107,8 +110,12 @@ class Model:
 
     def __init__(self, network: nw.Network):
         self.network = network
-        f = network.fluid
-        self.fluid = make_fluid(f.name, f.model, f.molar_mass, f.cp, f.cp_temperature)
+        self.fluid = fluid_for(network.fluid)
+        #: a mixture run: compositions of the vessels and reservoirs (else None)
+        self.mix = None
+        if self.fluid.model == "mixture":
+            from .mixture_contents import MixtureContents
+            self.mix = MixtureContents(self.fluid, network)
         self.vessels = [VesselRuntime(v, i) for i, v in enumerate(network.vessels)]
         self.reservoirs = list(network.reservoirs)
         self.node_names = [v.name for v in network.vessels] + [r.name for r in network.reservoirs]
@@ -120,6 +127,11 @@ class Model:
         self.zoned: dict[int, ZonedVessel] = {}
         for vrt, vdef in zip(self.vessels, network.vessels):
             if vdef.zones is not None:
+                if self.mix is not None:
+                    from .errors import FluidError
+                    raise FluidError(f"vessel '{vdef.name}': separated vapour and liquid "
+                                     "zones are not built for mixtures; hold it in "
+                                     "equilibrium (one zone)")
                 from .heat.transport import GasProperties
                 zv = ZonedVessel(vdef, vrt, self.fluid, offset, GasProperties(self.fluid))
                 offset += zv.n_states
@@ -144,6 +156,12 @@ class Model:
         #: but the heat terms, so the cache of vessel states and flows ignores them
         self.heat_states = (self.heat_terms[0][1].offset if self.heat_terms else offset,
                             offset)
+        # a mixture run: the component masses of each vessel
+        self.i_comp = offset
+        if self.mix is not None:
+            for vrt in self.vessels:
+                vrt.i_c = offset
+                offset += self.mix.nc
         self.n_dynamic = offset
 
         # links
@@ -187,7 +205,7 @@ class Model:
         self.i_acc_heat = offset
         offset += len(self.heat_terms)
         self.n_states = offset
-        self._reservoir_cache: dict[tuple[float, float], object] = {}
+        self._reservoir_cache: dict[tuple[int, float, float], object] = {}
         self.jacobian_groups = self._jacobian_groups()
 
     # ------------------------------------------------------------ set-up
@@ -197,7 +215,11 @@ class Model:
         for v in self.network.vessels:
             try:
                 if v.initial.liquid_fraction is None:
-                    out.append(self.fluid.state_pt(v.initial.pressure, v.initial.temperature))
+                    st = self.fluid.state_pt(v.initial.pressure, v.initial.temperature)
+                    if self.mix is not None:   # a state of the vessel's own view
+                        st = self.mix.views[len(out)].state_du(st.rho, st.u, st.T,
+                                                               self.mix.hints[len(out)])
+                    out.append(st)
                 else:
                     out.append(self._saturated_mixture(v.initial.pressure,
                                                        v.initial.liquid_fraction))
@@ -224,6 +246,8 @@ class Model:
             y[vrt.i_m] = m
             y[vrt.i_U] = m * st.u
             vrt.T_hint = st.T
+            if self.mix is not None:
+                y[vrt.i_c:vrt.i_c + self.mix.nc] = self.mix.initial_masses(m)
         for vi, zv in self.zoned.items():
             zv.check_initial(states[vi])
             y[zv.offset:zv.offset + 2] = zv.initial(states[vi])
@@ -257,6 +281,8 @@ class Model:
             m = max(rho * vrt.volume, y0[vrt.i_m], 1e-12)
             e = m * max(abs(y0[vrt.i_U]) / max(y0[vrt.i_m], 1e-30), 1000.0 * T)
             sc[vrt.i_m], sc[vrt.i_U] = m, e
+            if vrt.i_c is not None:
+                sc[vrt.i_c:vrt.i_c + self.mix.nc] = m
             zv = self.zoned.get(vrt.index)
             if zv is not None:
                 sc[zv.offset], sc[zv.offset + 1] = m, e
@@ -318,12 +344,14 @@ class Model:
         return Segment(self, t0, t1, discrete)
 
     # ------------------------------------------------------------ helpers
-    def reservoir_state(self, p: float, T: float, name: str, t: float):
-        key = (p, T)
+    def reservoir_state(self, p: float, T: float, name: str, t: float, j: int = 0):
+        """State of reservoir ``name`` (index ``j``) at (p [Pa], T [K]), cached."""
+        key = (j, p, T)
         st = self._reservoir_cache.get(key)
         if st is None:
             try:
-                st = self.fluid.state_pt(p, T)
+                st = (self.fluid.state_pt(p, T) if self.mix is None else
+                      self.mix.reservoir_state(j, p, T))
             except StateError as exc:
                 raise StateError(exc.detail, where=f"reservoir '{name}'", time=t) from None
             if len(self._reservoir_cache) > 256:
@@ -341,6 +369,10 @@ class Model:
                          ("vapour_quality", "-")):
                 cols.append((f"{v.name}.{q}", u, "vessel"))
             cols += contents.columns(self.network.vessels[v.index])
+            if self.mix is not None:
+                from .mixture_contents import component_mass_columns, mole_fraction_columns
+                cols += mole_fraction_columns(v.name, self.mix.names)
+                cols += component_mass_columns(v.name, self.mix.names)
             for term in v.heat:
                 cols.append((f"{v.name}.heat.{term.name}", "W", "heat"))
                 if term.has_source:
@@ -375,6 +407,8 @@ class Model:
         per Jacobian. Columns that change nothing (bookkeeping integrals) are left out.
         """
         groups = [([j], None) for j in range(self.heat_states[0])]   # vessels, zones
+        # the component masses of a mixture run change every vessel state and flow
+        groups += [([j], None) for j in range(self.i_comp, self.controller_states[0])]
         groups += [([j], None) for j in range(*self.controller_states)]
         declared = []
         for k, (vi, term) in enumerate(self.heat_terms):
@@ -408,15 +442,18 @@ class States:
     outlet (saturated liquid when two phases are present; ``None`` when no link
     draws liquid)."""
 
-    __slots__ = ("t", "states", "outflow", "liquid", "y")
+    __slots__ = ("t", "states", "outflow", "liquid", "y", "w_out", "w_liq")
 
-    def __init__(self, t, states, outflow, liquid=None, y=None):
+    def __init__(self, t, states, outflow, liquid=None, y=None, w_out=None, w_liq=None):
         self.t = t
         self.states = states
         self.outflow = outflow
         self.liquid = liquid
         #: the state vector they were made from (controllers read their own states)
         self.y = y
+        #: a mixture run: mass fractions of the top- and bottom-outlet streams per node
+        self.w_out = w_out
+        self.w_liq = w_liq
 
 
 class Segment:
@@ -462,6 +499,10 @@ class Segment:
         if key == self._key:
             return self._states
         m = self.model
+        if m.mix is not None:
+            s = self._mixture_states(t, y)
+            self._key, self._states = key, s
+            return s
         fluid = m.fluid
         states = []
         outflow = []
@@ -489,7 +530,7 @@ class Segment:
         for r in m.reservoirs:
             p = self.signal(r.pressure, t)
             T = self.signal(r.temperature, t)
-            st = m.reservoir_state(p, T, r.name, t)
+            st = m.reservoir_state(p, T, r.name, t, len(states) - len(m.vessels))
             states.append(st)
             outflow.append(st)
             if liquid is not None:
@@ -502,6 +543,41 @@ class Segment:
         """Travel [-] the controller that moves link ``link``'s valve sets at the state
         last evaluated by :meth:`flows`."""
         return self.driven[link]
+
+    def _mixture_states(self, t: float, y: np.ndarray) -> States:
+        """Node states of a mixture run: each vessel's composition from its component
+        masses, the phases its outlets draw, the reservoirs' supplies
+        (:class:`cvsim.mixture_contents.MixtureContents`)."""
+        m = self.model
+        mix = m.mix
+        nc = mix.nc
+        states, outflow, w_out = [], [], []
+        liquid, w_liq = ([], []) if m.draws_liquid else (None, None)
+        for v in m.vessels:
+            mass = y[v.i_m]
+            try:
+                st, top, bottom, wt, wb = mix.vessel_states(
+                    v.index, mass / v.volume, y[v.i_U] / mass if mass > 0 else math.nan,
+                    y[v.i_c:v.i_c + nc], v.T_hint, m.draws_liquid)
+            except StateError as exc:
+                raise StateError(exc.detail, where=f"vessel '{v.name}'", time=t) from None
+            v.T_hint = st.T
+            states.append(st)
+            outflow.append(top)
+            w_out.append(wt)
+            if liquid is not None:
+                liquid.append(bottom)
+                w_liq.append(wb)
+        for j, r in enumerate(m.reservoirs):
+            st = m.reservoir_state(self.signal(r.pressure, t), self.signal(r.temperature, t),
+                                   r.name, t, j)
+            states.append(st)
+            outflow.append(st)
+            w_out.append(mix.reservoir_w[j])
+            if liquid is not None:
+                liquid.append(st)
+                w_liq.append(mix.reservoir_w[j])
+        return States(t, states, outflow, liquid, y, w_out, w_liq)
 
     @property
     def current_flows(self) -> list[Flow]:
@@ -578,6 +654,19 @@ class Segment:
             dydt[j] = mdot
             dydt[j + 1] = e_src
             dydt[j + 2] = e_tgt
+            if m.mix is not None:
+                # component flows: the mass fractions of what the stream draws
+                if mdot > 0.0:
+                    w = (s.w_liq if m.links[k].draws == "liquid" else s.w_out)[d.source]
+                else:
+                    w = s.w_out[d.target]
+                nc = m.mix.nc
+                if d.source < nv:
+                    i = m.vessels[d.source].i_c
+                    dydt[i:i + nc] -= mdot * w
+                if d.target < nv:
+                    i = m.vessels[d.target].i_c
+                    dydt[i:i + nc] += mdot * w
         for vi, zv in zoned.items():   # rain-out, boil-off, interface
             mdot_l, e_l = zv.liquid_rates(s.states[vi])
             dydt[zv.offset] += mdot_l
@@ -674,6 +763,9 @@ class Segment:
             row += [st.p, st.T, mass, st.rho, st.h, y[v.i_U] / mass if mass > 0 else st.u,
                     st.s, st.quality]
             row += contents.values(m.network.vessels[v.index], st)
+            if m.mix is not None:
+                row += list(st.z)
+                row += list(y[v.i_c:v.i_c + m.mix.nc])
             scratch = np.zeros(m.n_states)
             for term in v.heat:
                 own = y[term.offset:term.offset + term.n_states]

@@ -22,11 +22,17 @@ from .signals import Constant, Signal
 class FluidSpec:
     """Which fluid and which property model.
 
-    name        CoolProp fluid name (pure or pseudo-pure), e.g. ``Nitrogen``.
-    model       ``real`` (CoolProp HEOS) or ``ideal-gas`` (constant heat capacities).
+    name        CoolProp fluid name (pure or pseudo-pure), e.g. ``Nitrogen``; for a
+                mixture its label.
+    model       ``real`` (CoolProp HEOS), ``ideal-gas`` (constant heat capacities) or
+                ``mixture`` (named components on an equation of state, :mod:`cvsim.mixture`).
     molar_mass  [kg/mol] ideal-gas model only; ``None``: CoolProp's value.
     cp          [J/(kg K)] ideal-gas model only; ``None``: CoolProp's ideal-gas
                 value at ``cp_temperature``.
+    components  mixture only: component names (CoolProp's), in the engine's order
+    mole_fractions  mixture only: overall mole fractions of the network's contents
+                (normalised), one per component
+    equation    mixture only: ``Peng-Robinson``, ``SRK`` or ``GERG-2008``
     """
 
     name: str
@@ -34,6 +40,9 @@ class FluidSpec:
     molar_mass: float | None = None
     cp: float | None = None
     cp_temperature: float = 298.15
+    components: tuple[str, ...] = ()
+    mole_fractions: tuple[float, ...] = ()
+    equation: str = ""
 
 
 # ------------------------------------------------------------------ geometry
@@ -222,11 +231,16 @@ class Vessel:
 
 @dataclass(frozen=True)
 class Reservoir:
-    """A node with imposed pressure [Pa] and temperature [K] (constant or tables)."""
+    """A node with imposed pressure [Pa] and temperature [K] (constant or tables).
+
+    composition  mixture only: mole fractions of what it supplies, one per component
+                 of the fluid; ``None``: the fluid's composition
+    """
 
     name: str
     pressure: Signal
     temperature: Signal
+    composition: tuple[float, ...] | None = None
 
 
 # ------------------------------------------------------------------ devices

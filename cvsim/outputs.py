@@ -76,7 +76,8 @@ def header_lines(title: str, provenance: dict, status: str, atmosphere: float) -
     p = provenance
     return [title,
             f"cvsim {p.get('cvsim', '?')}, CoolProp {p.get('coolprop', '?')}, "
-            f"scenario {p.get('scenario', '?')} sha256 {p.get('scenario_sha256', '?')[:16]}",
+            + (f"thermopack {p['thermopack']}, " if "thermopack" in p else "")
+            + f"scenario {p.get('scenario', '?')} sha256 {p.get('scenario_sha256', '?')[:16]}",
             status,
             "pressures absolute (bar a); gauge = absolute - "
             f"{atmosphere / 1e5:.5g} bar (the scenario's atmosphere)",
@@ -154,6 +155,11 @@ def summary_text(result: Result) -> str:
         if "two_phase_from_s" in v:
             L.append(f"  two phases present from {_t(v['two_phase_from_s'])} "
                      f"(lowest vapour quality {v['min_vapour_quality']:.4f})")
+        if "final_mole_fractions" in v:
+            L.append("  composition mole fractions, start -> end: " + ", ".join(
+                f"{c} {v['initial_mole_fractions'][c]:.4g} -> {z:.4g}"
+                for c, z in v["final_mole_fractions"].items()
+                if z > 0.0 or v["initial_mole_fractions"][c] > 0.0))
         L += summary_lines(v, _t)
     if s["targets"]:
         L.append("")

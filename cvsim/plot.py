@@ -123,8 +123,9 @@ def plot_run(result: Result, folder: Path) -> list[Path]:
     ``pressure.png``, ``temperature.png``, ``mass.png``, ``flow.png`` and,
     only when the result has ``<link>.opening`` columns, ``opening.png``; only
     with layered walls, ``wall.png``; only when a vessel holds liquid at some time,
-    ``level.png``; only with a rupture screening, ``rupture.png``. Returns the paths
-    written, in that order.
+    ``level.png``; a mixture run whose vessel holds two phases, ``phases.png`` (vapour
+    share of the mass, liquid share of the volume); only with a rupture screening,
+    ``rupture.png``. Returns the paths written, in that order.
     """
     folder = Path(folder)
     folder.mkdir(parents=True, exist_ok=True)
@@ -137,13 +138,15 @@ def plot_run(result: Result, folder: Path) -> list[Path]:
         panels.append(("wall", _wall))
     if view.liquid:
         panels.append(("level", _level))
+    if view.phases:
+        panels.append(("phases", _phases))
     if view.rupture:
         panels.append(("rupture", _rupture))
     written = []
 
-    # the overview holds the four quantities and the openings; walls, levels and the
-    # rupture screening have their own pages
-    overview = [p for p in panels if p[0] not in ("wall", "level", "rupture")]
+    # the overview holds the four quantities and the openings; walls, levels, phases
+    # and the rupture screening have their own pages
+    overview = [p for p in panels if p[0] not in ("wall", "level", "phases", "rupture")]
     path = folder / "overview.png"
     with _figure(OVERVIEW_SIZE, view) as fig:
         if view.openings:  # valve states under the four quantities, across the page
@@ -199,6 +202,9 @@ class _View:
         # vessels that hold liquid at some recorded time
         self.liquid = [v for v in self.vessels if n and f"{v}.liquid_fraction" in names
                        and bool(np.any(result[f"{v}.liquid_fraction"] > 0.0))]
+        # a mixture run: vessels that hold two phases at some recorded time
+        self.phases = [v for v in self.vessels if n and net.fluid.model == "mixture"
+                       and bool(np.any(~np.isnan(result[f"{v}.vapour_quality"])))]
         self.extra_temperatures = self._extra_temperatures(names)
         # vessels with a rupture screening (cvsim.rupture)
         self.rupture = [v for v in self.vessels if f"{v}.rupture.stress" in names]
@@ -235,7 +241,8 @@ class _View:
     def subtitle(self) -> str:
         r = self.result
         fluid = r.network.fluid
-        props = "real-fluid properties" if fluid.model == "real" else "ideal gas"
+        props = {"real": "real-fluid properties", "mixture": f"{fluid.equation} mixture"
+                 }.get(fluid.model, "ideal gas")
         head = f"{fluid.name} ({props})"
         if self.empty:
             return (f"{head}. Run {r.status.upper()} before the first record: "
@@ -423,9 +430,26 @@ def _level(ax, view: _View, overview: bool):
         title = "Liquid level"
     else:
         ax.set_ylabel("Liquid share of the volume [%]")
-        ax.set_ylim(-2.0, 102.0)
+        top = max(float(np.nanmax(r[f"{v}.liquid_fraction"])) for v in view.liquid)
+        # a small share (condensate) is drawn on its own scale, not on 0-100 %
+        ax.set_ylim(-2.0, 102.0) if top > 0.25 else ax.set_ylim(bottom=0.0)
         title = "Liquid share of each vessel's volume (100 %: liquid-full)"
     _finish(ax, view, title, floor=None, overview=overview)
+
+
+def _phases(ax, view: _View, overview: bool):
+    """A mixture's phases in each vessel that holds two: the vapour's share of the mass
+    (solid) and the liquid's share of the volume (dashed), in per cent."""
+    r = view.result
+    for v in view.phases:
+        _line(ax, view, 100.0 * r[f"{v}.vapour_quality"], f"{v}: vapour, % of the mass",
+              view.colour[v], lw=1.6)
+        _line(ax, view, 100.0 * r[f"{v}.liquid_fraction"], f"{v}: liquid, % of the volume",
+              view.colour[v], lw=1.2, ls="--")
+    ax.set_ylabel("Share [%]")
+    ax.set_ylim(-2.0, 102.0)
+    _finish(ax, view, "Phases: vapour share of the mass, liquid share of the volume",
+            floor=None, overview=overview)
 
 
 def _line(ax, view: _View, y, label, colour, lw, ls="-"):

@@ -79,8 +79,8 @@ SUMMARY_SHOWN = {"title", "status", "message", "end_time_s", "vessels", "links",
                  "self_checks", "self_checks_failed",
                  "assumptions", "provenance", "caution", "warnings"}
 
-VERSION_LABELS = (("cvsim", "cvsim"), ("coolprop", "CoolProp"), ("scipy", "SciPy"),
-                  ("numpy", "NumPy"), ("python", "Python"))
+VERSION_LABELS = (("cvsim", "cvsim"), ("coolprop", "CoolProp"), ("thermopack", "thermopack"),
+                  ("scipy", "SciPy"), ("numpy", "NumPy"), ("python", "Python"))
 
 
 # =================================================================== one run
@@ -127,7 +127,9 @@ def render_run_report(result: Result, scenario=None, plots=None) -> str:
             ("Run", f"{_status_line(result)}; started {prov.get('run_started', '-')}"),
             ("Design limits", limits),
             ("Software", f"cvsim {prov.get('cvsim', __version__)}, CoolProp "
-                         f"{prov.get('coolprop', '?')}"),
+                         f"{prov.get('coolprop', '?')}" + (
+                             f", thermopack {prov['thermopack']}" if "thermopack" in prov
+                             else "")),
             ("Report written", _now())]
     lead = Html("")
     if not result.ok:
@@ -195,7 +197,10 @@ def _job(result: Result, s: dict, scenario) -> Html:
     links = "; ".join(f"{k.name}: {_words(type(k.device).__name__)} from {k.source} to "
                       f"{k.target}" for k in net.links)
     props = (f"real-fluid properties of {fluid.name} (CoolProp equation of state)"
-             if fluid.model == "real" else f"{fluid.name} taken as an ideal gas")
+             if fluid.model == "real" else
+             f"the {fluid.name} mixture on the {fluid.equation} equation of state, with the "
+             "composition of each vessel followed through the run" if fluid.model == "mixture"
+             else f"{fluid.name} taken as an ideal gas")
     stops = [c.describe() for c in net.run.stop]
     until = f"{_t(net.run.end_time)}" + (f", or until {' or '.join(stops)}" if stops else "")
     what = (f"cvsim {__version__} simulated how the gas in {_plural(len(net.vessels), 'vessel')} "
@@ -330,6 +335,19 @@ def _model(result: Result, scenario) -> Html:
         rows.append(["Fluid properties", f"{f.name}: real fluid, Helmholtz-energy equation of "
                      f"state of CoolProp {prov.get('coolprop', '')} (HEOS backend), equilibrium "
                      "single- and two-phase states"])
+    elif f.model == "mixture":
+        comp = ", ".join(f"{n} {z:.4g}" for n, z in zip(f.components, f.mole_fractions)
+                         if z > 0.0)
+        rows.append(["Fluid properties", f"{f.name}: mixture of mole fractions {comp}; "
+                     f"{f.equation} equation of state of thermopack "
+                     f"{prov.get('thermopack', '')}, equilibrium single- and two-phase states "
+                     "(our own density-energy flash over thermopack's pressure-temperature "
+                     "flash); each vessel's composition from its component masses"])
+        for r in net.reservoirs:
+            if r.composition is not None:
+                own = ", ".join(f"{n} {z:.4g}" for n, z in zip(f.components, r.composition)
+                                if z > 0.0)
+                rows.append([f"Supply of {r.name}", f"mole fractions {own}"])
     else:
         rows.append(["Fluid properties", f"{f.name}: ideal gas with constant heat capacities"])
     for k in net.links:

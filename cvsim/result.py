@@ -188,6 +188,12 @@ class Result:
                 first = int(np.argmax(~np.isnan(q)))
                 d["two_phase_from_s"] = float(t_all[first])
                 d["min_vapour_quality"] = float(np.nanmin(q))
+            if self.network.fluid.model == "mixture":
+                # the composition at the start and at the end (mole fractions)
+                comps = self.network.fluid.components
+                for when, row in (("initial", 0), ("final", -1)):
+                    d[f"{when}_mole_fractions"] = {
+                        c: float(self[f"{n}.mole_fraction.{c}"][row]) for c in comps}
             d.update(self.contents.get(n, {}))
             d.update(self.rupture.get(n, {}))
             d.update(zone_figures(self, n))
@@ -262,9 +268,8 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
 def self_checks(result: Result) -> list:
     """The self-checks of :mod:`cvsim.checks`, with a fresh fluid object."""
     from .checks import run_checks
-    from .fluid import make_fluid
-    f = result.network.fluid
-    return run_checks(result, make_fluid(f.name, f.model, f.molar_mass, f.cp, f.cp_temperature))
+    from .fluid import fluid_for
+    return run_checks(result, fluid_for(result.network.fluid))
 
 
 def check_limits(result: Result) -> list:
@@ -402,6 +407,9 @@ def assumptions(model: Model) -> list[str]:
     if f.model == "real":
         out.append(f"Fluid properties: {f.name}, Helmholtz-energy equation of state (CoolProp "
                    "HEOS), equilibrium single- and two-phase states.")
+    elif f.model == "mixture":
+        from .mixture_contents import assumption_lines
+        out += assumption_lines(f, net)
     else:
         fl = model.fluid
         out.append(f"Fluid properties: {f.name} as an ideal gas with constant heat capacities "
@@ -412,7 +420,8 @@ def assumptions(model: Model) -> list[str]:
                + ").")
     out.append("A stream leaving a vessel carries the specific enthalpy of what it draws: the "
                "vessel's contents while single phase; with two phases present, saturated "
-               "vapour"
+               "vapour" + (" (the vapour phase, with its own composition)"
+                           if f.model == "mixture" else "")
                + (" (saturated liquid through links that draw liquid: "
                   + ", ".join(k.name for k in net.links if k.draws == "liquid") + ")"
                   if any(k.draws == "liquid" for k in net.links) else "")

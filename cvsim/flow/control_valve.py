@@ -417,6 +417,12 @@ class ControlValveDevice(Device):
                 f"a two-phase mixture (quality {up.quality:.3g}) reaches the control valve; "
                 "IEC 60534-2-1 has no equation for it: draw liquid or vapour, or use an "
                 "orifice (homogeneous equilibrium) for this link")
+        if self.fluid.model == "mixture":
+            raise StateError(
+                f"the control valve passes the liquid of a mixture ({up.p / 1e5:.6g} bar a, "
+                f"{up.T - 273.15:.4g} degC), which cvsim does not model for control valves "
+                "(IEC 60534-2-1 liquid sizing needs a pure fluid's vapour pressure); draw "
+                "vapour, or use an orifice (homogeneous equilibrium) for this link")
         if self._props is None:
             self._props = LiquidProperties(self.fluid.name)
         pv = up.p if up.two_phase else min(self._props.saturation_pressure(up.T), up.p)

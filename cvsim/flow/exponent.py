@@ -22,6 +22,8 @@ assumption register says so (:data:`EXPONENT_ASSUMPTION`).
 """
 from __future__ import annotations
 
+from ..fluid import fluid_of
+
 #: the exponent in words, for the assumption register
 EXPONENT_ASSUMPTION = (
     "exponent k = ideal-gas heat-capacity ratio cp0/(cp0 - R) at the upstream temperature, "
@@ -39,6 +41,7 @@ def perfect_gas_exponent(fluid, up) -> float:
     Parameters
     ----------
     fluid : the run's fluid object (:mod:`cvsim.fluid`), offering ``ideal_gas_gamma``
+        (a mixture state brings its own composition's, :func:`cvsim.fluid.fluid_of`)
     up : upstream stagnation state (:class:`cvsim.fluid.State`); single phase,
         saturated or two-phase alike (cp0 depends on the temperature only)
 
@@ -50,7 +53,7 @@ def perfect_gas_exponent(fluid, up) -> float:
     Source: API 520 Part I, sec. 5.6 (k of the ideal gas at relieving temperature);
     IEC 60534-2-1:2011, eq. 20 (Fg = gamma/1.40).
     """
-    return fluid.ideal_gas_gamma(up.rho, up.T)
+    return fluid_of(up, fluid).ideal_gas_gamma(up.rho, up.T)
 
 
 __all__ = ["EXPONENT_ASSUMPTION", "perfect_gas_exponent"]

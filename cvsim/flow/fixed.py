@@ -2,6 +2,7 @@
 from __future__ import annotations
 
 from .base import NO_FLOW, Device, Flow, Switch
+from ..fluid import fluid_of
 
 
 class FixedFlowDevice(Device):
@@ -66,6 +67,7 @@ class FixedFlowDevice(Device):
             return NO_FLOW
         h_to = a.h
         if self.d.delivery_temperature is not None:
-            st = self.fluid.state_pt(b.p, self.d.delivery_temperature)
+            # the stream keeps its composition (a mixture state carries its own fluid)
+            st = fluid_of(a, self.fluid).state_pt(b.p, self.d.delivery_temperature)
             h_to = st.h
         return Flow(mdot, a.h, h_to, False)

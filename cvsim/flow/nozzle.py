@@ -38,7 +38,7 @@ from __future__ import annotations
 import math
 
 from ..errors import StateError
-from ..fluid import State
+from ..fluid import State, fluid_of
 
 #: Relative pressure difference (p0 - pb)/p0 below which the flux is linear in
 #: the difference instead of following the square root (regularisation). Since
@@ -117,11 +117,13 @@ class NozzleHint:
     """Warm start for the real-gas throat search of one link (log density ratio
     of the last throat and the temperature there)."""
 
-    __slots__ = ("x", "T")
+    __slots__ = ("x", "T", "mixture")
 
     def __init__(self):
         self.x = None
         self.T = None
+        #: the warm start of a mixture's throat search (:mod:`cvsim.flow.mixture_nozzle`)
+        self.mixture = None
 
 
 def real_gas_mass_flux(fluid, up: State, pb: float, hint: NozzleHint | None = None
@@ -130,7 +132,9 @@ def real_gas_mass_flux(fluid, up: State, pb: float, hint: NozzleHint | None = No
 
     Parameters
     ----------
-    fluid : a fluid object (``cvsim.fluid``) offering ``isentrope_at``
+    fluid : a fluid object (``cvsim.fluid``) offering ``isentrope_at``; a mixture
+        (``model == "mixture"``) takes :func:`cvsim.flow.mixture_nozzle.mixture_mass_flux`
+        on the composition of ``up``
     up : upstream stagnation state
     pb : back pressure [Pa]
     hint : warm start kept per link between calls (optional)
@@ -144,6 +148,12 @@ def real_gas_mass_flux(fluid, up: State, pb: float, hint: NozzleHint | None = No
         return 0.0, False, p0
     if hint is None:
         hint = NozzleHint()
+    if fluid.model == "mixture":
+        # a mixture: the throat is searched in pressure, on the stream's own composition
+        from .mixture_nozzle import MixtureNozzleHint, mixture_mass_flux
+        if hint.mixture is None:
+            hint.mixture = MixtureNozzleHint()
+        return mixture_mass_flux(fluid_of(up, fluid), up, pb, hint.mixture, LINEAR_BELOW)
     T_entry = _dome_entry(fluid, up)
     frac = (p0 - pb) / p0
     if frac < LINEAR_BELOW:

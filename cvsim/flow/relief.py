@@ -49,7 +49,8 @@ from __future__ import annotations
 
 import math
 
-from ..fluid import R_UNIVERSAL
+from ..errors import StateError
+from ..fluid import R_UNIVERSAL, fluid_of
 from .base import NO_FLOW, Device, Flow, Switch
 from .liquid import LiquidProperties, passes_liquid
 from .nozzle import LINEAR_BELOW, NozzleHint, critical_pressure_ratio, real_gas_mass_flux
@@ -405,7 +406,8 @@ class ReliefValveDevice(Device):
         super().__init__(definition, fluid, index, source, target)
         self.molar_mass = fluid.molar_mass
         self.pop = definition.action == "pop"
-        self._liquid = LiquidProperties(fluid.name)
+        # a mixture has no CoolProp name: its liquid is refused at run time (liquid_flow)
+        self._liquid = LiquidProperties(fluid.name) if fluid.model != "mixture" else None
         self._hint = NozzleHint()
 
     # ---------------------------------------------------------- discrete state
@@ -464,9 +466,10 @@ class ReliefValveDevice(Device):
             w, critical = self.liquid_flow(a, b.p)
             return Flow(lift * w, a.h, a.h, critical)
         d = self.d
-        M = self.molar_mass
+        own = fluid_of(a, self.fluid)    # a mixture stream: its own composition
+        M = own.molar_mass
         Z = compressibility_factor(a.p, a.rho, a.T, M)
-        k = self.fluid.ideal_gas_gamma(a.rho, a.T)
+        k = own.ideal_gas_gamma(a.rho, a.T)
         w, critical = api520_mass_flow(d.area, a.p, b.p, a.T, Z, M, k, d.kd, d.kb, d.kc,
                                        d.design == "balanced-bellows")
         return Flow(lift * w, a.h, a.h, critical)
@@ -486,6 +489,12 @@ class ReliefValveDevice(Device):
         d = self.d
         if up.p <= p2:
             return 0.0, False
+        if self._liquid is None:
+            raise StateError(
+                f"the relief valve passes the liquid of a mixture ({up.p / 1e5:.6g} bar a, "
+                f"{up.T - 273.15:.4g} degC), which cvsim does not model for relief valves "
+                "(the API 520 liquid and flashing methods need a pure fluid's vapour "
+                "pressure). Draw vapour (keep a vapour space) or relieve through an orifice.")
         if not up.two_phase and up.T < self.fluid.t_crit and \
                 self._liquid.saturation_pressure(up.T) <= p2:
             w1 = api520_liquid_mass_flow(d.area, up.rho, up.p, p2, d.kd_liquid, d.kw, d.kc)

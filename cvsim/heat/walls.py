@@ -44,7 +44,7 @@ from .convection import (JET_CAUTION, NATURAL, RangeWatch, jet_reynolds, nu_fill
 from .definitions import FlameExposure, PoolFire, Wall
 from .fire import FIRE_HEIGHT, SIGMA, api521_pool_fire_heat, flame_heat_flux, pool_fire_area
 from .loads import HeatComponent
-from .transport import AirTable, GasProperties
+from .transport import AirTable, gas_properties
 
 ZERO_CELSIUS = 273.15
 T_TABLE_TOP = 5000.0  # [K] energy tables reach this far (end values held beyond the data)
@@ -354,7 +354,7 @@ class WallTerm(HeatComponent):
     def bind(self, model) -> None:
         d = self.d
         if d.inside.model in ("natural", "natural+jet"):
-            self._gas = GasProperties(model.fluid)
+            self._gas = gas_properties(model.fluid)
         if d.outside.model == "natural":
             self._air = AirTable(model.network.atmosphere)
         vi = model.node_index[self.vessel]
@@ -613,7 +613,9 @@ class WallTerm(HeatComponent):
             if ins.while_filling is not None:
                 text += f", {ins.while_filling:g} W/(m2 K) while a stream enters"
         else:
-            text = (f"natural convection (Churchill & Chu, {shape}) with the gas's CoolProp "
+            source = ("CoolProp" if not getattr(self._gas, "engine", None) else
+                      "corresponding-states (mixture)")
+            text = (f"natural convection (Churchill & Chu, {shape}) with the gas's {source} "
                     "transport properties at the film temperature (T_gas + T_wall)/2 and the "
                     "gas's pressure (saturated vapour's when two phases are present), "
                     "correlations for a surface in an extensive fluid applied inside")

@@ -16,6 +16,7 @@ from ..network import FluidSpec, Link, Network, RunSettings, StopCondition
 from . import properties, schema, tree
 from . import vessels as vessels_
 from .controllers import build_controller, build_fill
+from .mixtures import MixtureGiven, mixture_spec
 from .sequences import build_sequence
 from .service import check_liquid_service
 from .spec import BAD, At, Context, EchoRow
@@ -182,6 +183,8 @@ def build_network(values, ctx: Context) -> Network | None:
                     for name, v in values["vessels"].items())
     reservoirs = tuple(vessels_.build_reservoir(name, v, ctx)
                        for name, v in (values["reservoirs"] or {}).items())
+    #: compositions of the reservoirs that supply their own (mixture runs)
+    ctx.supplies = {r.name: r.composition for r in reservoirs if r.composition is not None}
     links = []
     for name, v in (values["links"] or {}).items():
         device = v.variant.build(v, ctx)
@@ -307,6 +310,8 @@ def warn_devices(network: Network, values, ctx: Context) -> None:
 
 def _fluid(values, ctx: Context) -> FluidSpec:
     name, model = values["fluid"], values["properties"]
+    if isinstance(name, MixtureGiven):
+        return mixture_spec(name, values["reservoirs"] or {})
     ideal = values["ideal_gas"] or {}
     molar_mass, cp = ideal.get("molar_mass"), ideal.get("heat_capacity")
     if model == "ideal-gas":

@@ -214,12 +214,16 @@ def _build_fixed_flow(values, ctx) -> FixedFlow:
     if mass_flow is None:
         flow: FlowValue = values["flow"]
         basis = flow.basis or values["basis"]
+        supply = getattr(ctx, "supplies", {}).get(values.get("from"))
         try:
-            rho = properties.basis_density(ctx.fluid, basis.pressure, basis.temperature)
+            rho = properties.basis_density(ctx.fluid, basis.pressure, basis.temperature,
+                                           supply)
         except FluidError as exc:
             ctx.problem(values.where["flow"], str(exc))
             return None
-        source = "p M / (R T)" if ctx.fluid.model == "ideal-gas" else "CoolProp"
+        source = {"ideal-gas": "p M / (R T)", "mixture": "mixture equation of state, "
+                  + ("the supply's composition" if supply is not None else
+                     "the fluid's composition")}.get(ctx.fluid.model, "CoolProp")
         ctx.record(values.where["flow"].child("basis_density", None),
                    f"{basis.name}: {basis.pressure:g} Pa, {basis.temperature:g} K", rho,
                    "kg/m3", f"{ctx.fluid.name}, {source}; mass flow = flow x density")

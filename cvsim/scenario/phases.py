@@ -53,7 +53,7 @@ def build_phases(values, at, ctx) -> SeparatedZones | None:
     if values is None or values["model"] != "separated":
         return None
     fluid = ctx.fluid
-    if fluid is not None and fluid.model != "real":
+    if fluid is not None and fluid.model == "ideal-gas":
         ctx.problem(at, "separated zones need 'properties: real' (an ideal gas has no "
                     "liquid)")
     if fluid is not None and (getattr(fluid, "components", None) or "&" in fluid.name):

@@ -56,13 +56,19 @@ def ideal_gas_cp(name: str, temperature: float) -> float:
     return _coolprop().PropsSI("Cp0mass", "T", temperature, "P", 101325.0, name)
 
 
-def basis_density(fluid: FluidSpec, pressure: float, temperature: float) -> float:
+def basis_density(fluid: FluidSpec, pressure: float, temperature: float,
+                  composition: tuple[float, ...] | None = None) -> float:
     """Density [kg/m3] of the gas at a standard-volume basis (``pressure`` [Pa], ``temperature`` [K]).
 
-    real model: CoolProp HEOS density; ideal-gas model: rho = p M / (R T).
+    real model: CoolProp HEOS density; ideal-gas model: rho = p M / (R T); mixture:
+    the mixture's equation of state at the basis for its composition (``composition``:
+    mole fractions of a supply that differs from the fluid's), so the molar mass of
+    the mixture and its compressibility there enter.
     Raises :class:`FluidError` when the fluid is not a gas at the basis (a
     standard volume of a liquid has no meaning).
     """
+    if fluid.model == "mixture":
+        return _mixture_basis_density(fluid, pressure, temperature, composition)
     CP = _coolprop()
     if fluid.model == "ideal-gas":
         M = fluid.molar_mass if fluid.molar_mass is not None else molar_mass(fluid.name)
@@ -113,3 +119,21 @@ def saturation(fluid: FluidSpec, pressure: float | None = None,
         raise FluidError(f"{fluid.name} has two phases only between its triple point "
                          f"({Tt:.6g} K) and its critical point ({Tc:.6g} K, {pc / 1e5:.6g} "
                          "bar a); give a pressure or temperature in that range") from None
+
+
+def _mixture_basis_density(fluid: FluidSpec, pressure: float, temperature: float,
+                           composition) -> float:
+    from ..errors import CvsimError
+    from ..fluid import fluid_for
+    f = fluid_for(fluid)
+    if composition is not None:
+        f = f.engine.fluid(composition)
+    try:
+        st = f.state_pt(pressure, temperature)
+    except CvsimError as exc:
+        raise FluidError(f"no density for the {fluid.name} at {pressure:g} Pa, "
+                         f"{temperature:g} K: {exc}") from None
+    if st.two_phase or st.phase == "liquid":
+        raise FluidError(f"the {fluid.name} is not all gas at the basis ({pressure:g} Pa, "
+                         f"{temperature:g} K: {st.phase}); give the flow as a mass flow")
+    return st.rho

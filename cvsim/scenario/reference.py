@@ -130,7 +130,13 @@ Where practice differs, the reader takes these choices; each is visible in the e
    `flow_model: real-gas`, `opens_at: 0 s`, `record_every: 1 s`, solver settings,
    `atmosphere: 101.325 kPa`) and are echoed as defaults.
 6. **Fluid names** are CoolProp's; aliases (`N2`, `CO2`) are replaced by CoolProp's own
-   name in the echo. Mixtures are not accepted yet.
+   name in the echo. A **mixture** is written as its components with their fractions
+   (mole by default, or mass), on an equation of state (Peng-Robinson by default, SRK or
+   GERG-2008); fractions that do not sum to 1 are divided by their sum, with a warning in
+   the echo, which also lists the mole fractions used. A reservoir may supply its own
+   composition; the components of every composition together make the mixture's list.
+   A mixture's two-phase contents follow from its pressure and temperature (the flash),
+   so `liquid_fraction` is not given for it.
 7. **A vessel without links** is allowed (heat terms alone may act on it); the echo
    notes it.
 8. **Stop conditions watch vessels** (a reservoir's state is imposed, so it is known in

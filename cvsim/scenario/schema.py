@@ -10,9 +10,7 @@ validates against them and :func:`format_reference` renders them as
 from __future__ import annotations
 
 from .. import units
-from ..errors import FluidError
 from . import devices as _devices  # noqa: F401  (registers the flow devices)
-from . import properties
 from . import valves as _valves  # noqa: F401  (registers the valves)
 from .reference import DECISIONS, EXAMPLE, INTRO, WRITING_VALUES
 from .registry import DEVICES
@@ -20,31 +18,13 @@ from .sequences import SEQUENCE, check_sequences
 from .uncertainty import UNCERTAINTY
 from .spec import (BAD, At, Choice, Entries, Field, Kind, Node, OneOrMore, Quantity, Section,
                    Sub, Text, as_text, read_section)
+from .mixtures import FluidKind, check_mixture_top
 from .vessels import RESERVOIR, VESSEL
 from . import walls as _walls  # noqa: E402,F401  (registers walls and fire exposure)
 from . import lines as _lines  # noqa: E402,F401  (registers lines and regulators)
 from .controllers import CONTROLLER, FILL, check_controllers  # noqa: E402
 
 # ------------------------------------------------------------ special kinds
-
-
-class FluidName(Kind):
-    """A CoolProp fluid name; aliases are replaced by CoolProp's own name."""
-
-    def read(self, raw, at, ctx):
-        if not isinstance(raw, str) or not raw.strip():
-            ctx.problem(at, "expected a CoolProp fluid name such as Nitrogen, Air, Hydrogen")
-            return BAD
-        try:
-            name = properties.canonical_fluid(raw.strip())
-        except FluidError as exc:
-            ctx.problem(at, str(exc))
-            return BAD
-        ctx.record(at, raw, name, "", "CoolProp name" if name != raw else "")
-        return name
-
-    def describe(self) -> str:
-        return "CoolProp fluid name"
 
 
 ALTITUDE = Section(
@@ -230,13 +210,15 @@ TOP = Section(
     "The keys of a scenario file.",
     fields=(
         Field("title", Text(), "One line saying what the scenario is.", default="(untitled)"),
-        Field("fluid", FluidName(),
+        Field("fluid", FluidKind(),
               "CoolProp name of a pure or pseudo-pure fluid (`Nitrogen`, `Air`, `Hydrogen`, "
-              "`Methane`, `CarbonDioxide`); aliases such as `N2` are accepted.",
+              "`Methane`, `CarbonDioxide`); aliases such as `N2` are accepted. Or a gas "
+              "mixture of named components (see [fluid as a mixture](#fluid-as-a-mixture)).",
               required=True),
         Field("properties", Choice(("real", "ideal-gas")),
-              "`real`: CoolProp equation of state; `ideal-gas`: ideal gas with constant "
-              "heat capacities.", default="real"),
+              "`real`: CoolProp equation of state (a mixture: its own equation of state); "
+              "`ideal-gas`: ideal gas with constant heat capacities (pure fluids only).",
+              default="real"),
         Field("ideal_gas", Sub(IDEAL_GAS), "Ideal-gas constants (optional)."),
         Field("atmosphere", Atmosphere(),
               "Local atmospheric pressure: the reference of every gauge pressure.",
@@ -256,7 +238,7 @@ TOP = Section(
         Field("uncertainty", Sub(UNCERTAINTY),
               "Uncertain inputs for `cvsim uncertainty`; a run uses the values stated."),
     ),
-    checks=(_check_top,),
+    checks=(_check_top, check_mixture_top),
 )
 
 

@@ -24,10 +24,10 @@ REVERSIBLE = (Orifice, ControlValve, Line)
 def node_phases(fluid_spec, vessels, reservoirs) -> dict[str, str]:
     """Phase of every node at time 0: ``liquid``, ``two-phase``, ``gas`` (gas, vapour or
     supercritical), from the vessels' initial states and the reservoirs' first values."""
-    from ..fluid import make_fluid
-    if fluid_spec.model != "real":
+    from ..fluid import fluid_for
+    if fluid_spec.model not in ("real", "mixture"):
         return {n.name: "gas" for n in (*vessels, *reservoirs)}
-    fluid = make_fluid(fluid_spec.name, fluid_spec.model)
+    fluid = fluid_for(fluid_spec)
     out = {}
     for v in vessels:
         f = v.initial.liquid_fraction
@@ -36,7 +36,10 @@ def node_phases(fluid_spec, vessels, reservoirs) -> dict[str, str]:
             continue
         out[v.name] = _phase(fluid, v.initial.pressure, v.initial.temperature)
     for r in reservoirs:
-        out[r.name] = _phase(fluid, r.pressure(0.0), r.temperature(0.0))
+        supply = fluid
+        if getattr(r, "composition", None) is not None:
+            supply = fluid.engine.fluid(r.composition)
+        out[r.name] = _phase(supply, r.pressure(0.0), r.temperature(0.0))
     return out
 
 
@@ -45,7 +48,10 @@ def _phase(fluid, p: float, T: float) -> str:
         st = fluid.state_pt(p, T)
     except CvsimError:
         return "gas"   # reported where the state itself is checked
-    return "liquid" if st.phase == "liquid" else "gas"
+    if st.phase == "liquid":
+        return "liquid"
+    # a mixture inside its phase envelope holds two phases at (p, T)
+    return "two-phase" if fluid.model == "mixture" and st.two_phase else "gas"
 
 
 def liquid_reasons(link, phases: dict[str, str], vessel_names) -> list[str]:
@@ -70,11 +76,11 @@ def check_liquid_service(fluid_spec, vessels, reservoirs, links, link_at, ctx) -
     ``link_at[name]`` is the link's :class:`~cvsim.scenario.spec.At` (key and line).
     """
     for link in links:
-        if link.draws == "liquid" and fluid_spec.model != "real":
+        if link.draws == "liquid" and fluid_spec.model == "ideal-gas":
             ctx.problem(link_at[link.name].child("draws", None),
                         "draws: liquid needs the real-fluid property model: an ideal gas has "
                         "no liquid (write properties: real, or draw vapour)")
-    if fluid_spec.model != "real":
+    if fluid_spec.model not in ("real", "mixture"):
         return
     phases = node_phases(fluid_spec, vessels, reservoirs)
     names = {v.name for v in vessels}
@@ -84,6 +90,8 @@ def check_liquid_service(fluid_spec, vessels, reservoirs, links, link_at, ctx) -
         if not reasons or check is None:
             continue
         problem, model = check(link.device)
+        if fluid_spec.model == "mixture" and not problem:
+            problem, model = _mixture_liquid(link.device, model)
         at = link_at[link.name]
         why = "; ".join(reasons)
         if problem:
@@ -92,6 +100,18 @@ def check_liquid_service(fluid_spec, vessels, reservoirs, links, link_at, ctx) -
         else:
             ctx.record(at.child("liquid_service", None), "(from the initial states)", model,
                        "", why)
+
+
+def _mixture_liquid(device, model: str) -> tuple[str, str]:
+    """A mixture's liquid passes orifices only (the homogeneous equilibrium nozzle on
+    the liquid's own composition); the liquid forms of the valve equations need a pure
+    fluid's vapour pressure and are refused."""
+    if isinstance(device, Orifice) and device.flow_model == "real-gas":
+        return "", ("homogeneous equilibrium nozzle on the mixture's equation of state "
+                    "(the liquid phase's own composition)")
+    return ("the liquid of a mixture passes only an orifice with flow_model: real-gas in "
+            "this version (the valve equations for liquid need a pure fluid's vapour "
+            "pressure); draw vapour, or use an orifice", model)
 
 
 __all__ = ["REVERSIBLE", "check_liquid_service", "liquid_reasons", "node_phases"]

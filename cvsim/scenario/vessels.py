@@ -11,6 +11,7 @@ from ..heat import geometry as geo
 from ..network import AmbientExchange, Geometry, HeatLoad, InitialState, Reservoir, Vessel
 from . import properties
 from .limits import LIMITS_FIELD, build_limits
+from .mixtures import RESERVOIR_FIELDS, reservoir_composition
 from .phases import PHASES, build_phases, check_phases
 from .registry import HEAT_TERMS, SHAPES, HeatTermKind, register_heat_term, register_shape
 from .spec import BAD, Choice, Field, Quantity, Section, Sub, Variant
@@ -231,7 +232,7 @@ RESERVOIR = Section(
         Field("temperature", Quantity("temperature", table=True),
               "Temperature (flow out of the reservoir leaves at this temperature).",
               required=True),
-    ),
+    ) + RESERVOIR_FIELDS,
 )
 
 
@@ -260,4 +261,5 @@ def build_vessel(name: str, values, ctx) -> Vessel:
 
 def build_reservoir(name: str, values, ctx) -> Reservoir:
     """A :class:`~cvsim.network.Reservoir` from the values read for ``reservoirs.<name>``."""
-    return Reservoir(name=name, pressure=values["pressure"], temperature=values["temperature"])
+    return Reservoir(name=name, pressure=values["pressure"], temperature=values["temperature"],
+                     composition=reservoir_composition(name, values, ctx.fluid, values.at, ctx))
