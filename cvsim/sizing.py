@@ -142,6 +142,17 @@ class ReliefSizing:
     def met(self) -> bool:
         return bool(self.peak_pressure <= self.allowed_pressure)
 
+    def changes(self) -> list:
+        """The values the confirming run uses in place of the scenario's: the chosen
+        API 526 letter and its effective area (:class:`cvsim.changes.Change`)."""
+        from .changes import Change
+        if self.letter is None or self.confirm is None:
+            return []
+        why = "cvsim relief: the API 526 letter sized for the relief load"
+        return [Change(f"links.{self.link}.orifice_letter", self.letter, "", why),
+                Change(f"links.{self.link}.area", float(self.letter_area), "m2",
+                       f"{why} (its effective area)")]
+
     def as_dict(self) -> dict:
         from .result import CAUTION
         d = {f.name: getattr(self, f.name) for f in dataclasses.fields(self)

@@ -32,7 +32,7 @@ RUN_SECTIONS = ["title-block", "caution-top", "contents", "job", "inputs", "inpu
                 "inputs-used", "model", "model-choices", "assumptions", "warnings", "summary",
                 "limits", "plots", "checks", "balances", "solver", "software", "sign-off",
                 "caution-end"]
-SWEEP_SECTIONS = ["title-block", "caution-top", "job", "inputs", "parameters", "cases",
+SWEEP_SECTIONS = ["title-block", "caution-top", "job", "parameters", "cases",
                   "plots", "notes", "software", "sign-off", "caution-end"]
 VOID = {"meta", "img", "br", "wbr", "col", "hr", "input", "link"}
 
@@ -195,15 +195,19 @@ def test_limits_table_lists_each_limit_and_marks_crossed_rows_in_words(blowdown_
                                                                       blowdown_result):
     _, result = blowdown_result
     assert result.limits and result.limits_crossed  # the demo crosses its MDMT
-    table = Tree(blowdown_html).by_id("limits").find("table")[0]
+    section = Tree(blowdown_html).by_id("limits")
+    table = section.find("table")[0]
     rows = table.find("tbody")[0].find("tr")
     assert len(rows) == len(result.limits)
-    for row, check in zip(rows, result.limits):
+    basis = section.find("ul", cls="limits-basis")[0].find("li")
+    for i, (row, check) in enumerate(zip(rows, result.limits), 1):
         text = words(row.text())
         assert check.name in text and check.vessel in text
         assert ("CROSSED" in text) == (not check.met)
         assert ("crossed" in row.attrs.get("class", "")) == (not check.met)
-        assert check.practice.split(";")[0] in text
+        assert f"L{i}" in text  # the row points to its basis below the table
+        assert basis[i - 1].attrs["id"] == f"L{i}"
+        assert words(check.practice) in words(basis[i - 1].text())
 
 
 def test_software_section_names_versions_hash_and_time(blowdown_html):
@@ -227,9 +231,24 @@ def test_inputs_show_the_file_verbatim_and_every_value_as_used(blowdown_html,
     rows = tree.by_id("inputs-used").find("tbody")[0].find("tr")
     data = [r for r in rows if "group" not in r.attrs.get("class", "")]
     assert len(data) == len(scenario.echo)
+    atm = scenario.network.atmosphere
     for row, echo in zip(data, scenario.echo):
         cells = [c.text() for c in row.find("td")]
-        assert cells == [echo.key, echo.given, echo.used, echo.note]
+        assert [cells[0], cells[1], cells[3]] == [echo.key, echo.given, echo.note]
+        # values as used in engineering units, converted here independently of cvsim
+        if echo.unit == "Pa":
+            assert cells[2] == (f"{echo.value / 1e5:.6g} bar a "
+                                f"({(echo.value - atm) / 1e5:.6g} bar g)"), echo.key
+        elif echo.unit == "K":
+            assert cells[2] == f"{echo.value - 273.15:.6g} degC", echo.key
+        elif echo.unit == "m" and echo.value < 1.0:
+            assert cells[2] == f"{echo.value * 1e3:.6g} mm", echo.key
+        elif echo.unit == "m2" and echo.value < 0.01:
+            assert cells[2] == f"{echo.value * 1e6:.6g} mm2", echo.key
+        else:
+            assert cells[2] == echo.used, echo.key
+    # e.g. the initial pressure "150 barg" is shown as used: 151.325 bar a (150 bar g)
+    assert "151.325 bar a (150 bar g)" in [c.text() for c in tree.by_id("inputs-used").find("td")]
 
 
 def test_summary_and_checks_show_results_with_times(blowdown_html, blowdown_result):
@@ -421,6 +440,7 @@ def test_sweep_report_from_plain_data(sweep_files, tmp_path):
     assert "N1 Each case" in words(tree.by_id("notes").text())
     assert scenario.sha256 in tree.by_id("software").text()
     assert tree.by_id("inputs-given").find("pre")[0].text() == scenario.source_text
+    assert "inputs-used" in tree.ids()
     for id_ in ("caution-top", "caution-end"):
         assert CAUTION in words(tree.by_id(id_).text())
 

@@ -155,7 +155,7 @@ def _time_limit(text: str | None) -> float | None:
 
 
 def cmd_sweep(args) -> int:
-    from ..cli import _overrides
+    from ..cliargs import parse_overrides
     from ..errors import Terminated
     from ..outfolder import claim
     from .sweep import Interrupted, check_distinct, parse_vary, sweep
@@ -168,7 +168,7 @@ def cmd_sweep(args) -> int:
         try:
             result = sweep(args.scenario, {p.key: p.spec for p in params},
                            workers=args.workers, cluster=args.cluster,
-                           progress=_progress(args), overrides=_overrides(args.overrides),
+                           progress=_progress(args), overrides=parse_overrides(args.overrides),
                            plot=args.plot, case_time_limit=limit)
         except Interrupted as stop:
             if stop.result is None:
@@ -179,7 +179,7 @@ def cmd_sweep(args) -> int:
         if args.report:
             from ..scenario import load_scenario
             from .report import write_study_report
-            scenario = load_scenario(args.scenario, overrides=_overrides(args.overrides))
+            scenario = load_scenario(args.scenario, overrides=parse_overrides(args.overrides))
             notes = ([result.partial + "."] if result.partial else []) + [
                 f"{len(result.rows)} cases: {result.counts()}; ran on {result.ran_on} in "
                 f"{result.wall_time:.3g} s."]
@@ -204,7 +204,7 @@ def cmd_sweep(args) -> int:
 
 
 def cmd_find(args) -> int:
-    from ..cli import _overrides
+    from ..cliargs import parse_overrides
     from ..errors import StudyError
     from .seek import MAX_RUNS, seek
     from .sweep import parse_vary
@@ -220,7 +220,7 @@ def cmd_find(args) -> int:
         result = seek(args.scenario, {param.key: param.spec}, meet=args.meet or "limits",
                       goal=args.goal, workers=args.workers, cluster=args.cluster,
                       tolerance=tolerance, max_runs=args.max_runs or MAX_RUNS,
-                      progress=_progress(args), overrides=_overrides(args.overrides))
+                      progress=_progress(args), overrides=parse_overrides(args.overrides))
         result.write(out, plots=not args.no_plots, run=not args.no_run)
         if args.report:
             _find_report(args, result, out, folder)
@@ -235,10 +235,10 @@ def cmd_find(args) -> int:
 
 def _find_report(args, result, out: Path, folder) -> None:
     """The calculation report of a search, added to its written folder."""
-    from ..cli import _overrides
+    from ..cliargs import parse_overrides
     from ..scenario import load_scenario
     from .report import write_study_report
-    scenario = load_scenario(args.scenario, overrides=_overrides(args.overrides))
+    scenario = load_scenario(args.scenario, overrides=parse_overrides(args.overrides))
     answer = (f"{result.goal} {result.key} meeting the requirements: {result.value}"
               if result.value is not None else f"no value found ({result.status})")
     notes = [f"Requirements: {'; '.join(result.requirements)}.", f"Answer: {answer}.",

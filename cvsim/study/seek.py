@@ -232,7 +232,7 @@ class SeekResult:
         }
 
     def text(self) -> str:
-        from ..outputs import _t
+        from ..display import duration as _t
         from .table import Column, cell_text
         word = "smallest" if self.goal == "smallest" else "largest"
         L = [self.cases.title, "=" * min(len(self.cases.title), 78),
@@ -263,7 +263,7 @@ class SeekResult:
         ``run``, the full outputs of one more run at the value found (``run/``),
         atomically."""
         from ..outputs import atomic_folder, write_run_files
-        from ..outputs import _jsonable
+        from ..display import jsonable as _jsonable
         import json
         folder = Path(folder)
         with atomic_folder(folder) as tmp:

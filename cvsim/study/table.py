@@ -54,7 +54,7 @@ class Column:
 
     def shown(self) -> tuple[str, object]:
         """(unit shown in files, converter from SI)."""
-        from ..outputs import display
+        from ..display import display
         if self.kind == "parameter-si":  # the value as the scenario used it: SI
             return self.unit, (lambda v: v)
         if self.difference and self.unit in DIFFERENCE_DISPLAY:
@@ -103,7 +103,6 @@ class SweepResult:
               wall_time=0.0) -> "SweepResult":
         from ..api import provenance as versions
         from .outcomes import outcome_list
-        from .sweep import value_text
         columns = [Column("case", "", "case", "case number")]
         for p in parameters:
             si_unit = next((r["si"][p.key][1] for r in raw_rows if p.key in r["si"]), "")
@@ -225,7 +224,7 @@ class SweepResult:
     def write(self, folder, plots: bool = True, outcomes: list[str] | None = None) -> dict:
         """Write sweep.csv, sweep.json, sweep.txt and (unless ``plots=False``)
         sweep.png into ``folder``, atomically; returns {name: path}."""
-        from ..outputs import atomic_folder
+        from ..outfolder import atomic_folder
         folder = Path(folder)
         names = self._plot_outcomes(outcomes)
         with atomic_folder(folder) as tmp:
@@ -250,7 +249,7 @@ class SweepResult:
         self.files = files
         write_table_csv(self, files["csv"])
         files["text"].write_text(self.text(outcomes), encoding="utf-8")
-        from ..outputs import _jsonable
+        from ..display import jsonable as _jsonable
         with open(files["json"], "w", encoding="utf-8") as fh:
             json.dump(_jsonable(self.as_dict()), fh, indent=1)
             fh.write("\n")
@@ -280,7 +279,7 @@ class SweepResult:
         """A time column in min or h when its values are long (text and plots)."""
         if col.unit != "s":
             return col
-        from ..plot import time_unit
+        from ..display import time_unit
         values = [v for v in self.values(col.name) if isinstance(v, float) and math.isfinite(v)]
         unit, size = time_unit(max(values, default=0.0))
         return _Scaled(col.name, col.unit, col.kind, col.text, col.difference, unit, size)
@@ -288,7 +287,7 @@ class SweepResult:
     def text(self, outcomes: list[str] | None = None) -> str:
         """A readable summary: what was varied, a table of the chosen outcomes,
         the failed cases with their errors, the caution."""
-        from ..outputs import _t
+        from ..display import duration as _t
         names = self._plot_outcomes(outcomes)
         c = self.counts()
         n = len(self.rows)
@@ -334,6 +333,13 @@ class SweepResult:
               f"{self.atmosphere / 1e5:.5g} bar; all columns in sweep.csv.",
               "", "CAUTION: " + CAUTION]
         return "\n".join(L) + "\n"
+
+
+def value_text(value) -> str:
+    """A value as shown in tables (text as given)."""
+    from ..scenario.spec import as_text
+    return value if isinstance(value, str) else as_text(value)
+
 
 
 def cell_text(column: Column, value, digits: int = 6) -> str:
