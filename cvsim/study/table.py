@@ -405,7 +405,19 @@ def default_outcomes(result: SweepResult, reference) -> list[str]:
     present = {c.name for c in result.columns}
     wanted = [w for w in wanted if w in present]
     varying = [w for w in wanted if _varies(result, w)]
-    return varying or wanted[:1]
+    return _distinct(result, varying) or wanted[:1]
+
+
+def _distinct(result: SweepResult, names: list[str]) -> list[str]:
+    """``names`` without those whose values equal an earlier one's in every case (the
+    lowest gas temperature and the MDMT check on the gas are the same numbers: one
+    panel, with the limit drawn on it)."""
+    out = []
+    for name in names:
+        values = [r.get(name) for r in result.rows]
+        if not any(values == [r.get(o) for r in result.rows] for o in out):
+            out.append(name)
+    return out
 
 
 def _has_walls(result: SweepResult, vessel: str) -> bool:
