@@ -47,9 +47,8 @@ def as_simulated(echo, changes) -> list:
         if c is None:
             out.append(row)
             continue
-        note = f"{CHANGED} by {c.why} (the file: {row.used or row.given})"
-        out.append(dataclasses.replace(row, value=c.value, unit=c.unit,
-                                       note=note + ("; " + row.note if row.note else "")))
+        note = f"{CHANGED} by {c.why} (was {row.used or row.given})"
+        out.append(dataclasses.replace(row, value=c.value, unit=c.unit, note=note))
     for c in by_key.values():
         out.append(EchoRow(c.key, "(not in the file)", c.value, c.unit,
                            f"{CHANGED} by {c.why}"))

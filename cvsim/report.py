@@ -127,7 +127,7 @@ def render_run_report(result: Result, scenario=None, plots=None, relief: dict | 
                         new_page=False)]
     if relief is not None:
         sections.append(Section("relief-sizing", "Relief valve sizing",
-                                _relief(relief, net.atmosphere, u)))
+                                _relief(relief, net.atmosphere, u), new_page=False))
     sections += [
         Section("inputs", "Inputs", _inputs(scenario, prov, echo, changes), new_page=False),
         Section("model", "Model choices and assumptions", _model(result, scenario, u),
@@ -328,7 +328,7 @@ def _relief_answer(r: dict, atm: float) -> str:
     if not r.get("letter"):
         return (f"required effective area {r['required_area'] * 1e6:.5g} mm2: more than the "
                 "largest API 526 letter (T); no confirming run")
-    text = (f'API 526 letter <b id="relief-letter">{esc(r["letter"])}</b> '
+    text = (f'API 526 letter <b>{esc(r["letter"])}</b> '
             f"({r['letter_area'] * 1e6:.5g} mm2) for a required effective area of "
             f"{r['required_area'] * 1e6:.5g} mm2")
     peak = r.get("peak_pressure", math.nan)
@@ -390,7 +390,7 @@ def _relief(r: dict, atm: float, u: RunUnits) -> Html:
     chosen = []
     if r.get("letter"):
         chosen.append(("Letter chosen", Html(
-            f'<b class="relief-letter-chosen">{esc(r["letter"])}</b>, effective area '
+            f'<b id="relief-letter">{esc(r["letter"])}</b>, effective area '
             f"{r['letter_area'] * 1e6:.5g} mm2 ({r['letter_area'] / INCH2:.4g} in2)")))
         chosen.append(("Its capacity at relieving conditions",
                        f"{r['load'] / share * 3600:.6g} kg/h ({100 / share:.4g} % of the load), "
@@ -433,7 +433,7 @@ def _inputs(scenario, prov: dict, echo, changes) -> Html:
             for k, v in scenario.overrides.items()]
     given = {r.key: r for r in scenario.echo}
     rows += [[tag("code", c.key), Html(f"<b>{esc(engineering(c.value, c.unit))}</b>"
-                                       + (f" (the file: {esc(given[c.key].given)})"
+                                       + (f" (was {esc(given[c.key].used or given[c.key].given)})"
                                           if c.key in given else " (not in the file)")),
               c.why] for c in changes]
     if rows:

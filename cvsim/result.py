@@ -20,6 +20,10 @@ from .model import ACC_PER_LINK, Model
 from .network import Network
 from .solve import RawRun
 
+#: values within this fraction of a column's extreme count as reaching it (for the time
+#: of the extreme): the accuracy a solver event places a switch to, well above round-off
+EXTREME_RTOL = 1e-6
+
 CAUTION = ("Screening estimate - verify against the governing codes (e.g. ASME Section VIII, "
            "API 520/521, ISO 4126, ISO 23251, local regulations) and have it reviewed by a "
            "qualified engineer.")
@@ -113,13 +117,18 @@ class Result:
     # -------------------------------------------------------------- summary
     def extreme(self, name: str, kind: str) -> tuple[float, float]:
         """(value, time) of the maximum (``kind='max'``) or minimum of a column,
-        over recorded points and every solver step."""
+        over recorded points and every solver step. The time is the first the column
+        comes within :data:`EXTREME_RTOL` of the extreme: a relief valve that pops at
+        the same pressure again and again peaks at its first pop."""
         allrows = self._all()
         col = allrows[:, self._col(name)]
         if np.all(np.isnan(col)):
             return (math.nan, math.nan)
         i = int(np.nanargmax(col) if kind == "max" else np.nanargmin(col))
-        return float(col[i]), float(allrows[i, 0])
+        v = float(col[i])
+        tol = EXTREME_RTOL * abs(v)
+        near = np.nonzero((col >= v - tol) if kind == "max" else (col <= v + tol))[0]
+        return v, float(allrows[int(near[0]) if near.size else i, 0])
 
     def targets(self) -> list[dict]:
         """Time each stop condition of the run was first met (``None``: not reached)."""
@@ -242,6 +251,7 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
                     stats=dict(raw.stats), totals=totals, balance=balance,
                     assumptions=assumptions(model), provenance=dict(provenance or {}),
                     warnings=warnings, device_figures=figures)
+    result.warnings += still_rising(result)
     result.limits = check_limits(result)
     result.contents, liquid_full = run_figures(model, result)
     result.warnings += liquid_full
@@ -249,6 +259,34 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
     result.warnings += [f"SELF-CHECK FAILED - do not use these results: {c.text()}"
                         for c in result.checks_failed]
     return result
+
+
+#: a vessel's pressure still rising at the end of a completed run by more than this
+#: fraction of its range over the last tenth of the run: the peak may come later
+RISING_SHARE = 0.01
+
+
+def still_rising(result: Result) -> list[str]:
+    """Warnings for a run that ran to its end time (no stop) while a vessel's pressure
+    was still at its highest and rising: its peak may lie beyond the end."""
+    if result.status != "completed" or len(result.data) < 3:
+        return []
+    t = result.fine("time")
+    t_end = float(t[-1])
+    last = t >= t[0] + 0.9 * (t_end - t[0])
+    out = []
+    for v in result.vessel_names():
+        p = result.fine(f"{v}.pressure")
+        if not np.all(np.isfinite(p)):
+            continue
+        span = float(p.max() - p.min())
+        tail = p[last]
+        if span > 0.0 and tail.size > 1 and p[-1] >= p.max() - EXTREME_RTOL * abs(p[-1]) \
+                and tail[-1] - tail[0] > RISING_SHARE * span:
+            out.append(f"vessel '{v}': the pressure is still rising at the end of the run "
+                       f"(t = {t_end:.6g} s), so its peak may come later: run longer "
+                       "(run.end) or stop on a condition (run.stop_when)")
+    return out
 
 
 def self_checks(result: Result) -> list:

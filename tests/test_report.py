@@ -536,3 +536,127 @@ def test_sweep_command_writes_a_study_report(tmp_path):
     assert "data:image/png;base64," in html
     assert "LIMIT CROSSED" in html  # 14 mm is too slow for the 15-minute guideline
     assert "http://" not in html and "https://" not in html
+
+
+# ------------------------------------------------------------ the relief report
+
+@pytest.fixture(scope="module")
+def relief_report(tmp_path_factory):
+    """`cvsim relief --report` on the blocked-outlet demo with a D valve set in place of the
+    file's letter: the sizing chooses a larger letter and the confirming run uses it."""
+    out = tmp_path_factory.mktemp("relief") / "psv"
+    code = main(["relief", str(ROOT / "scenarios" / "relief-blocked-outlet.yaml"), "--valve",
+                 "psv", "--blocked-outlet", "--set", "links.psv.orifice_letter=D", "--out",
+                 str(out), "--report"])
+    assert code == 0
+    import json
+    sizing = json.loads((out / "relief-sizing.json").read_text())
+    return out, sizing, Tree((out / "report.html").read_text(encoding="utf-8"))
+
+
+def test_relief_report_shows_the_sizing_calculation(relief_report):
+    out, sizing, tree = relief_report
+    section = tree.by_id("relief-sizing")
+    text = words(section.text())
+    assert sizing["letter"] == "G"
+    assert words(tree.by_id("relief-letter").text()) == "G"
+    assert "G" in words(tree.by_id("title-block").text())
+    # the required area by the API 520 Part I critical-flow equation, SI form,
+    # recomputed here from the relieving conditions the report states:
+    # A [mm2] = W [kg/h] / (C Kd P1 [kPa a] Kb Kc) sqrt(T Z / M),
+    # C = 0.03948 sqrt(k (2/(k+1))^((k+1)/(k-1)))
+    # source: API Std 520 Part I, 10th ed., sec. 5.6.3, eq. (2) (SI units)
+    k, Z, M = sizing["k"], sizing["Z"], sizing["molar_mass"] * 1e3
+    C = 0.03948 * math.sqrt(k * (2 / (k + 1)) ** ((k + 1) / (k - 1)))
+    A = (sizing["load"] * 3600 / (C * sizing["kd"] * sizing["relieving_pressure"] / 1e3)
+         * math.sqrt(sizing["relieving_temperature"] * Z / M))
+    assert A == pytest.approx(sizing["required_area"] * 1e6, rel=2e-3)
+    areas = words(tree.by_id("relief-areas").text())
+    assert f"{A:.4g}"[:4] in areas
+    # API 526 effective areas: F 0.307 in2 < A <= G 0.503 in2 (source: API Std 526)
+    assert 0.307 * 645.16 < A <= 0.503 * 645.16
+    assert "324.5" in areas  # 0.503 in2 = 324.52 mm2
+    for item in ("blocked outlet", "Relieving pressure P1", "Back pressure", "Kd",
+                 "Confirming run", "within the allowed pressure: met"):
+        assert item in text, item
+
+
+def test_relief_report_and_inputs_state_the_values_simulated(relief_report):
+    out, sizing, tree = relief_report
+    changed = words(tree.by_id("inputs-changed").text())
+    assert "links.psv.orifice_letter" in changed and "links.psv.area" in changed
+    assert "was D" in changed
+    rows = {c[0].text(): [x.text() for x in c] for c in
+            (r.find("td") for r in tree.by_id("inputs-used").find("tr")) if c}
+    letter = rows["links.psv.orifice_letter"]
+    assert letter[2] == "G" and letter[3].startswith("CHANGED")
+    assert rows["links.psv.area"][2] == "324.515 mm2"  # 0.503 in2 (API 526 G) x 645.16
+    text = (out / "inputs.txt").read_text()
+    line = next(ln for ln in text.splitlines() if ln.startswith("links.psv.orifice_letter"))
+    assert "->  G" in line and "CHANGED" in line
+    # the file itself is shown verbatim (its letter G, before the --set D)
+    assert "orifice_letter: G" in tree.by_id("inputs-given").find("pre")[0].text()
+
+
+# ------------------------------------------------------------ study reports
+
+def test_find_report_states_the_answer_in_the_title_block_and_job(tmp_path):
+    path = tmp_path / "vent.yaml"
+    path.write_text(IDEAL_VENT)
+    out = tmp_path / "find"
+    code = main(["find", str(path), "--vary", "links.vent.diameter=2 mm:20 mm", "--smallest",
+                 "--meet", "tank.min_pressure <= 6 barg", "--out", str(out), "--report",
+                 "--workers", "1", "--quiet"])
+    assert code == 0
+    import json
+    seek = json.loads((out / "seek.json").read_text())
+    tree = Tree((out / "report.html").read_text(encoding="utf-8"))
+    head = words(tree.by_id("title-block").text())
+    job = words(tree.by_id("answer").text())
+    for where in (head, job):
+        assert f"Answer{seek['value']}: the smallest links.vent.diameter" in where
+        assert (f"between {seek['bracket'][0]} (not met) and {seek['bracket'][1]} (met)"
+                in where)
+        assert "tank.min_pressure <= 6 barg: met, margin +" in where
+    assert "('" not in tree.by_id("notes").text()
+    # the bracket's lower end was simulated and does not meet: it leaves the tank above
+    # 6 barg after 20 s (the requirement checked here on the case's own number)
+    lower = [r for r in json.loads((out / "cases.json").read_text())["rows"]
+             if r["links.vent.diameter"] == seek["bracket"][0]]
+    assert lower and lower[0]["tank.min_pressure"] > 6e5 + 101325.0
+
+
+def test_a_wide_table_of_cases_is_split_and_printed_landscape():
+    from cvsim.report import MOST_COLUMNS
+    cols = ["links.vent.diameter"] + [f"outcome_{i}" for i in range(15)]
+    rows = [{c: (f"{d} mm" if c == "links.vent.diameter" else 1.5 * i)
+             for i, c in enumerate(cols)} for d in (8, 10, 12)]
+    tree = Tree(render_sweep_report("Wide", rows=rows, columns=cols, keep=1))
+    cases = tree.by_id("cases")
+    assert "landscape" in cases.attrs["class"].split()
+    tables = cases.find("table")
+    assert len(tables) == 2
+    seen = []
+    for t in tables:
+        head = [words(th.text()) for th in t.find("thead")[0].find("th")]
+        assert len(head) <= MOST_COLUMNS
+        assert head[:2] == ["Case", "links.vent.diameter"]  # repeated in every part
+        seen += head[2:]
+        assert len(t.find("tbody")[0].find("tr")) == 3
+    assert seen == cols[1:]  # every column once, in order
+
+
+@needs_chromium
+def test_chromium_prints_the_wide_table_of_cases_on_landscape_pages(tmp_path):
+    cols = ["links.vent.diameter"] + [f"outcome_{i}" for i in range(15)]
+    rows = [{c: (f"{d} mm" if c == "links.vent.diameter" else 1.5 * i)
+             for i, c in enumerate(cols)} for d in (8, 10, 12)]
+    page = tmp_path / "wide.html"
+    write_sweep_report(page, "Wide", rows=rows, columns=cols)
+    pdf = tmp_path / "wide.pdf"
+    chromium(tmp_path, "--no-pdf-header-footer", f"--print-to-pdf={pdf}",
+             page.resolve().as_uri())
+    boxes = re.findall(rb"/MediaBox\s*\[\s*0 0 ([\d.]+) ([\d.]+)\s*\]", pdf.read_bytes())
+    sizes = {(round(float(w)), round(float(h))) for w, h in boxes}
+    # A4 is 595 x 842 pt (ISO 216: 210 x 297 mm); the cases on landscape pages
+    assert (842, 595) in sizes and (595, 842) in sizes

@@ -234,19 +234,30 @@ def cmd_find(args) -> int:
 
 
 def _find_report(args, result, out: Path, folder) -> None:
-    """The calculation report of a search, added to its written folder."""
+    """The calculation report of a search, added to its written folder: the answer (the
+    value, its bracket and its margins) in the title block and the job statement."""
     from ..cliargs import parse_overrides
+    from ..display import margin
     from ..scenario import load_scenario
     from .report import write_study_report
     scenario = load_scenario(args.scenario, overrides=parse_overrides(args.overrides))
-    answer = (f"{result.goal} {result.key} meeting the requirements: {result.value}"
-              if result.value is not None else f"no value found ({result.status})")
-    notes = [f"Requirements: {'; '.join(result.requirements)}.", f"Answer: {answer}.",
-             f"Bracket: {result.bracket}; {result.simulations} simulations in "
-             f"{result.rounds} rounds; tolerance {result.tolerance:g}.",
-             f"Binding check at the answer: {result.binding}."]
-    notes += [f"{m[0]}: {'met' if m[1] else 'CROSSED'}, margin {m[2]:.4g} {m[3]}"
-              for m in result.margins]
+    answer = [("Answer", f"{result.value}: the {result.goal} {result.key} meeting every "
+               "requirement (simulated and met)" if result.value is not None
+               else f"no value found ({result.status}): {result.message}")]
+    if result.bracket[0] is not None:
+        answer.append(("Bracket", f"the crossing lies between {result.bracket[0]} (not met) "
+                       f"and {result.bracket[1]} (met), relative width at most "
+                       f"{result.tolerance:g}; {result.simulations} simulations in "
+                       f"{result.rounds} rounds"))
+    if result.margins:
+        answer.append(("Margins at the answer", "; ".join(
+            f"{c}: {'met' if m else 'CROSSED'}, margin {margin(g, u)}"
+            for c, m, g, u in result.margins)))
+    if result.binding:
+        answer.append(("Binding requirement", result.binding))
+    answer.append(("Requirements", "; ".join(result.requirements)))
+    notes = [f"Every simulation of the search is a row of the table; cases.csv holds them "
+             f"all. The answer's own run is in run/."]
     images = [p for k, p in result.files.items() if k == "plot"]
     overview = out / "run" / "overview.png"
     if overview.exists():
@@ -255,7 +266,7 @@ def _find_report(args, result, out: Path, folder) -> None:
         write_study_report(path, result.cases, scenario,
                            title=f"Search for the {result.goal} {result.key}: "
                            f"{result.cases.title}",
-                           notes=notes, images=images)
+                           notes=notes, images=images, answer=answer)
 
 
 def cmd_outcomes(args) -> int:
