@@ -136,6 +136,21 @@ def _parser() -> argparse.ArgumentParser:
 
 
 def cmd_run(args) -> int:
+    # plotting helpers import matplotlib while this process reads and solves
+    painters = _painters(not args.no_plots or args.report)
+    with painters or contextlib.nullcontext():
+        return _run(args, painters)
+
+
+def _painters(wanted: bool):
+    """Plotting helper processes (:mod:`cvsim.painters`) when plots will be drawn."""
+    if not wanted:
+        return None
+    from .painters import Painters
+    return Painters.start()
+
+
+def _run(args, painters) -> int:
     from .api import run
     from .outfolder import claim
     from .outputs import summary_text, write_run_outputs
@@ -168,7 +183,7 @@ def cmd_run(args) -> int:
         result.warnings[:0] = scenario.warnings  # the reader's warnings join the summary's
         write_run_outputs(result, out, plots=not args.no_plots, echo=scenario.echo,
                           report=args.report, scenario=scenario,
-                          decimal_comma=args.decimal_comma)
+                          decimal_comma=args.decimal_comma, painters=painters)
     if not args.quiet:
         print(summary_text(result))
     print(f"Results written to {out}/")
@@ -219,6 +234,12 @@ def cmd_check(args) -> int:
 
 
 def cmd_relief(args) -> int:
+    painters = _painters(bool(args.out) and not args.no_confirm)
+    with painters or contextlib.nullcontext():
+        return _relief(args, painters)
+
+
+def _relief(args, painters) -> int:
     import json
     from .errors import CvsimError
     from .display import jsonable
@@ -262,7 +283,7 @@ def cmd_relief(args) -> int:
             write_run_outputs(sizing.confirm, args.out, echo=scenario.echo,
                               report=args.report, scenario=scenario, extra_files=extra,
                               relief=jsonable(sizing.as_dict()), changes=sizing.changes(),
-                              decimal_comma=args.decimal_comma)
+                              decimal_comma=args.decimal_comma, painters=painters)
             print(f"Confirming run and sizing written to {args.out}/")
     if sizing.confirm is not None and not sizing.met:
         return 3

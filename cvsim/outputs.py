@@ -223,7 +223,7 @@ def limits_text(result: Result) -> str:
 def write_run_outputs(result: Result, out_dir: Path, plots: bool = True,
                       echo: list | None = None, report: bool = False,
                       scenario=None, extra_files: dict | None = None, relief: dict | None = None,
-                      changes=(), decimal_comma: bool = False) -> list[Path]:
+                      changes=(), decimal_comma: bool = False, painters=None) -> list[Path]:
     """Write history.csv, steps.csv, summary.txt, summary.json, inputs.txt and
     plots into ``out_dir``, atomically: all of them or none.
 
@@ -233,28 +233,41 @@ def write_run_outputs(result: Result, out_dir: Path, plots: bool = True,
     changed after reading the scenario (:class:`cvsim.changes.Change`): inputs.txt and
     the report show them as simulated and marked as changed. ``extra_files`` maps
     further file names to their text (written in the same atomic step).
-    ``decimal_comma``: CSV files separated by ``;`` with decimal commas."""
+    ``decimal_comma``: CSV files separated by ``;`` with decimal commas. ``painters``:
+    helper processes that draw the plots (:class:`cvsim.painters.Painters`)."""
     out_dir = Path(out_dir)
     with atomic_folder(out_dir) as tmp:
         write_run_files(result, tmp, plots=plots, echo=echo, report=report,
                         scenario=scenario, extra_files=extra_files, relief=relief,
-                        changes=changes, decimal_comma=decimal_comma)
+                        changes=changes, decimal_comma=decimal_comma, painters=painters)
     return sorted(out_dir.iterdir())
 
 
 def write_run_files(result: Result, folder: Path, plots: bool = True,
                     echo: list | None = None, report: bool = False, scenario=None,
                     extra_files: dict | None = None, relief: dict | None = None,
-                    changes=(), decimal_comma: bool = False) -> None:
+                    changes=(), decimal_comma: bool = False, painters=None) -> None:
     """The files of :func:`write_run_outputs`, written into an existing folder.
 
     Plots are drawn first: one that fails is left out with a warning in the
     summary (naming it), and the histories and summary are written all the same."""
     drawn = None  # plots for the report: None = the report draws its own
+    if report and not plots and painters is not None and len(result.data) > 1:
+        # the report's plots, drawn by the helpers into a folder of their own
+        import tempfile
+        with tempfile.TemporaryDirectory(prefix="cvsim-report-") as tmp:
+            write_run_files(result, folder, plots=False, echo=echo, report=False,
+                            extra_files=extra_files, changes=changes,
+                            decimal_comma=decimal_comma)
+            from .report import write_run_report
+            write_run_report(result, folder / "report.html", scenario,
+                             plots=_plots(result, Path(tmp), painters), relief=relief,
+                             changes=changes)
+        return
     if plots:
         drawn = []
         if len(result.data) > 1:
-            drawn = _plots(result, folder)
+            drawn = _plots(result, folder, painters)
     units = run_units(result)
     write_csv(result, folder / "history.csv", decimal_comma=decimal_comma, units=units)
     write_csv(result, folder / "steps.csv", fine=True, decimal_comma=decimal_comma,
@@ -277,11 +290,18 @@ PLOT_FILES = ("overview.png", "pressure.png", "temperature.png", "mass.png", "fl
               "opening.png", "wall.png")
 
 
-def _plots(result: Result, folder: Path) -> list[Path]:
-    """Draw the run's plots; a plot that fails must not cost the results: the
-    plots drawn whole are kept, the rest left out, and the result carries a
-    warning naming the first one that could not be drawn."""
+def _plots(result: Result, folder: Path, painters=None) -> list[Path]:
+    """Draw the run's plots (by the helper processes ``painters`` when given); a plot
+    that fails must not cost the results: the plots drawn whole are kept, the rest
+    left out, and the result carries a warning naming the first one that could not be
+    drawn."""
     before = set(folder.iterdir())
+    if painters is not None:
+        from .plot import plot_names
+        try:
+            return painters.draw(result, folder, plot_names(result))
+        except RuntimeError:
+            pass  # drawn again below, in this process, where the failure shows
     try:
         from .plot import plot_run
         return plot_run(result, folder)

@@ -91,7 +91,23 @@ LIMIT_DASH = {"mawp": (0, (4, 2)), "allowed": (0, (8, 2, 2, 2)), "set": (0, (1, 
 
 # ---------------------------------------------------------------- the run
 
-def plot_run(result: Result, folder: Path) -> list[Path]:
+def plot_names(result: Result) -> list[str]:
+    """Stems of the files :func:`plot_run` writes for ``result``, in order."""
+    names = ["overview", "pressure", "temperature", "mass", "flow"]
+    n = len(result.data)
+    columns = result.names()
+    if any(f"{k}.opening" in columns for k in result.link_names()):
+        names.append("opening")
+    if any(c.startswith(f"{v}.wall.node") for v in result.vessel_names() for c in columns):
+        names.append("wall")
+    if n and any(f"{v}.liquid_fraction" in columns
+                 and bool(np.any(result[f"{v}.liquid_fraction"] > 0.0))
+                 for v in result.vessel_names()):
+        names.append("level")
+    return names
+
+
+def plot_run(result: Result, folder: Path, only=None) -> list[Path]:
     """Write the plots of ``result`` into ``folder`` (created if missing).
 
     Files: ``overview.png`` (pressure, temperature, mass, mass flow, and the
@@ -99,7 +115,8 @@ def plot_run(result: Result, folder: Path) -> list[Path]:
     ``pressure.png``, ``temperature.png``, ``mass.png``, ``flow.png`` and,
     only when the result has ``<link>.opening`` columns, ``opening.png``; only
     with layered walls, ``wall.png``; only when a vessel holds liquid at some time,
-    ``level.png``. Returns the paths written, in that order.
+    ``level.png``. Returns the paths written, in that order. ``only``: the stems
+    to draw (of :func:`plot_names`), so that several processes can share the work.
     """
     folder = Path(folder)
     folder.mkdir(parents=True, exist_ok=True)
@@ -112,12 +129,20 @@ def plot_run(result: Result, folder: Path) -> list[Path]:
         panels.append(("wall", _wall))
     if view.liquid:
         panels.append(("level", _level))
+    wanted = set(plot_names(result) if only is None else only)
     written = []
+    if "overview" in wanted:
+        written.append(_draw_overview(view, panels, folder / "overview.png"))
+    for name, draw in panels:
+        if name in wanted:
+            written.append(_draw_single(view, name, draw, folder / f"{name}.png"))
+    return written
 
-    # the overview holds the four quantities and the openings; walls and levels have
-    # their own pages
+
+def _draw_overview(view: _View, panels, path: Path) -> Path:
+    """The overview holds the four quantities and the openings; walls and levels have
+    their own pages."""
     overview = [p for p in panels if p[0] not in ("wall", "level")]
-    path = folder / "overview.png"
     with _figure(OVERVIEW_SIZE, view) as fig:
         if view.openings:  # valve states under the four quantities, across the page
             grid = fig.subplot_mosaic([["pressure", "temperature"], ["mass", "flow"],
@@ -133,23 +158,22 @@ def plot_run(result: Result, folder: Path) -> list[Path]:
         for ax in bottom:
             ax.set_xlabel(view.time_label)
         fig.savefig(path, dpi=DPI, pil_kwargs=PNG_OPTIONS)
-    written.append(path)
+    return path
 
-    for name, draw in panels:
-        path = folder / f"{name}.png"
-        with _figure(SINGLE_SIZE, view) as fig:
-            if name == "mass" and view.mass_apart:
-                axes = fig.subplots(len(view.vessels), 1, sharex=True, squeeze=False)[:, 0]
-                for ax, v in zip(axes, view.vessels):
-                    _mass_of(ax, view, v)
-                axes[-1].set_xlabel(view.time_label)
-            else:
-                ax = fig.subplots()
-                draw(ax, view, overview=False)
-                ax.set_xlabel(view.time_label)
-            fig.savefig(path, dpi=DPI, pil_kwargs=PNG_OPTIONS)
-        written.append(path)
-    return written
+
+def _draw_single(view: _View, name: str, draw, path: Path) -> Path:
+    with _figure(SINGLE_SIZE, view) as fig:
+        if name == "mass" and view.mass_apart:
+            axes = fig.subplots(len(view.vessels), 1, sharex=True, squeeze=False)[:, 0]
+            for ax, v in zip(axes, view.vessels):
+                _mass_of(ax, view, v)
+            axes[-1].set_xlabel(view.time_label)
+        else:
+            ax = fig.subplots()
+            draw(ax, view, overview=False)
+            ax.set_xlabel(view.time_label)
+        fig.savefig(path, dpi=DPI, pil_kwargs=PNG_OPTIONS)
+    return path
 
 
 class _View:
@@ -816,5 +840,5 @@ def _wrap(text: str, width_in: float, size_pt: float, bold: bool = False,
     return lines
 
 
-__all__ = ["figure", "flow_unit", "least_span", "place_legend", "plot_run",
+__all__ = ["figure", "flow_unit", "least_span", "place_legend", "plot_names", "plot_run",
            "temperature_label", "time_unit"]

@@ -284,3 +284,41 @@ def test_units_agree_across_plots_summary_and_csv(tmp_path):
     head = [ln for ln in write_csv(res, tmp_path / "h.csv").read_text().splitlines()
             if not ln.startswith("#")][0]
     assert "vent.mass_flow [g/s]" in head and head.startswith("time [s],time [min],")
+
+
+# ------------------------------------------------------------- plotting helpers
+
+def test_helper_processes_draw_the_same_figures_and_end(tmp_path):
+    from cvsim.painters import Painters
+    from cvsim.plot import plot_names
+    res = limited_vent()
+    painters = Painters.start()
+    if painters is None:
+        pytest.skip("no fork on this platform or a single core")
+    (tmp_path / "a").mkdir()
+    with painters:
+        processes = [p for p, _ in painters.helpers]
+        paths = painters.draw(res, tmp_path / "a", plot_names(res))
+    assert [p.name for p in paths] == [f"{n}.png" for n in plot_names(res)]
+    assert_pictures(paths, [f"{n}.png" for n in plot_names(res)])
+    # drawn in this process: the same pictures (same size; the same limits drawn)
+    alone = plot_run(res, tmp_path / "b")
+    import matplotlib.image as mpimg
+    for a, b in zip(paths, alone):
+        assert mpimg.imread(a).shape == mpimg.imread(b).shape
+    assert not any(p.is_alive() for p in processes)  # closed with the block
+
+
+def test_a_failing_helper_leaves_the_drawing_to_the_main_process(tmp_path):
+    from cvsim.outputs import _plots
+    from cvsim.painters import Painters
+    res = vent()
+    painters = Painters.start()
+    if painters is None:
+        pytest.skip("no fork on this platform or a single core")
+    with painters:
+        for p, _ in painters.helpers:  # helpers that died (killed, out of memory)
+            p.kill()
+            p.join()
+        paths = _plots(res, tmp_path, painters)
+    assert [p.name for p in paths] == QUANTITIES

@@ -198,3 +198,31 @@ def test_docstring_examples():
     import doctest
 
     assert doctest.testmod(units).failed == 0
+
+
+def test_every_unit_read_without_pint_agrees_with_pint():
+    """The units read by the fast table (no pint loaded) convert exactly as pint does:
+    pint is the general-purpose reference here."""
+    from cvsim.units import DIMENSIONS, FAST_UNITS, registry
+    ureg = registry()
+    for (dimension, expression), (factor, offset) in FAST_UNITS.items():
+        si = DIMENSIONS[dimension].si
+        for number in (0.0, 1.0, 37.5):
+            q = ureg.Quantity(number, ureg.parse_units(expression))
+            target = ureg.parse_units(si) if si else ureg.dimensionless
+            assert q.dimensionality == target.dimensionality, (dimension, expression)
+            expected = float(q.to(target).magnitude)
+            assert number * factor + offset == pytest.approx(expected, rel=1e-12, abs=1e-12), \
+                (dimension, expression, number)
+
+
+def test_a_scenario_in_common_units_does_not_load_pint():
+    import subprocess
+    import sys
+    from pathlib import Path
+    demo = Path(__file__).resolve().parents[1] / "scenarios" / "nitrogen-blowdown.yaml"
+    code = ("import sys; from cvsim.scenario import load_scenario; "
+            f"load_scenario({str(demo)!r}); print('pint' in sys.modules)")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         check=True)
+    assert out.stdout.strip() == "False"
