@@ -54,6 +54,16 @@ def _serve(conn) -> None:
         conn.close()
 
 
+def _light(result):
+    """What the plots read of a result, as :class:`~cvsim.histories.Histories` (with its
+    limit checks): unpickling it loads neither the solver nor the property library."""
+    from .histories import Histories
+    light = Histories(result.network, result.status, result.message, result.columns,
+                      result.data, result.fine_data, result.events)
+    light.limits = list(getattr(result, "limits", []))
+    return light
+
+
 class Painters:
     """Helper processes that draw a run's plots (see the module notes)."""
 
@@ -62,9 +72,12 @@ class Painters:
 
     @classmethod
     def start(cls, n: int = HELPERS) -> "Painters | None":
-        """Start ``n`` helpers; ``None`` where forking is not available or there is
-        one core only (then the main process draws)."""
+        """Start ``n`` helpers; ``None`` where forking is not available, there is
+        one core only, or the environment sets ``CVSIM_PLOT_HELPERS=0`` (then the main
+        process draws)."""
         import multiprocessing as mp
+        if os.environ.get("CVSIM_PLOT_HELPERS", "").strip() == "0":
+            return None
         if (os.cpu_count() or 1) < 2 or "fork" not in mp.get_all_start_methods():
             return None
         ctx = mp.get_context("fork")
@@ -87,7 +100,7 @@ class Painters:
         """Draw the figures ``names`` of ``result`` into ``folder``, shared among the
         helpers; returns the paths in the order of ``names``. Raises RuntimeError
         naming what failed (the caller draws the rest itself)."""
-        data = pickle.dumps(result, protocol=pickle.HIGHEST_PROTOCOL)
+        data = pickle.dumps(_light(result), protocol=pickle.HIGHEST_PROTOCOL)
         shares = [[] for _ in self.helpers]
         load = [0.0] * len(self.helpers)
         for name in sorted(names, key=lambda n: -COST.get(n, 1.0)):

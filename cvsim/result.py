@@ -14,15 +14,12 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from .contents import run_figures
+from .histories import EXTREME_RTOL, Histories
 from .flow.exponent import EXPONENT_ASSUMPTION
 from .limits import check_vessel, first_time_at_or_below
 from .model import ACC_PER_LINK, Model
 from .network import Network
 from .solve import RawRun
-
-#: values within this fraction of a column's extreme count as reaching it (for the time
-#: of the extreme): the accuracy a solver event places a switch to, well above round-off
-EXTREME_RTOL = 1e-6
 
 CAUTION = ("Screening estimate - verify against the governing codes (e.g. ASME Section VIII, "
            "API 520/521, ISO 4126, ISO 23251, local regulations) and have it reviewed by a "
@@ -30,14 +27,10 @@ CAUTION = ("Screening estimate - verify against the governing codes (e.g. ASME S
 
 
 @dataclass
-class Result:
-    network: Network
-    status: str
-    message: str
-    columns: list            # (name, SI unit, kind)
-    data: np.ndarray         # recorded rows x columns (SI)
-    fine_data: np.ndarray    # every accepted step x columns (SI)
-    events: list             # (time [s], text)
+class Result(Histories):
+    """A run: its histories (:class:`~cvsim.histories.Histories`: network, status,
+    message, columns, recorded and step data, events) and what was made of them."""
+
     stats: dict
     totals: dict             # per link: mass [kg], energy out [J], energy in [J]; per heat term
     balance: dict            # mass and energy closure of the whole run
@@ -65,46 +58,6 @@ class Result:
         """The design limits this run crosses."""
         return [c for c in self.limits if c.crossed]
 
-    # -------------------------------------------------------------- access
-    @property
-    def ok(self) -> bool:
-        return self.status != "failed"
-
-    @property
-    def time(self) -> np.ndarray:
-        return self.data[:, 0]
-
-    def names(self) -> list[str]:
-        return [c[0] for c in self.columns]
-
-    def unit(self, name: str) -> str:
-        return self.columns[self._col(name)][1]
-
-    def _col(self, name: str) -> int:
-        for i, c in enumerate(self.columns):
-            if c[0] == name:
-                return i
-        raise KeyError(f"no column '{name}'; columns are: {', '.join(self.names())}")
-
-    def __getitem__(self, name: str) -> np.ndarray:
-        return self.data[:, self._col(name)]
-
-    def fine(self, name: str) -> np.ndarray:
-        """History of one column at every accepted solver step (and recorded points)."""
-        return self._all()[:, self._col(name)]
-
-    def _all(self) -> np.ndarray:
-        if self.fine_data.size == 0:
-            return self.data
-        both = np.vstack([self.data, self.fine_data])
-        return both[np.argsort(both[:, 0], kind="stable")]
-
-    def vessel_names(self) -> list[str]:
-        return [v.name for v in self.network.vessels]
-
-    def link_names(self) -> list[str]:
-        return [k.name for k in self.network.links]
-
     def to_dataframe(self):
         """The recorded histories as a pandas DataFrame (SI units; needs pandas), with
         the caution and provenance in ``df.attrs``."""
@@ -115,21 +68,6 @@ class Result:
         return df
 
     # -------------------------------------------------------------- summary
-    def extreme(self, name: str, kind: str) -> tuple[float, float]:
-        """(value, time) of the maximum (``kind='max'``) or minimum of a column,
-        over recorded points and every solver step. The time is the first the column
-        comes within :data:`EXTREME_RTOL` of the extreme: a relief valve that pops at
-        the same pressure again and again peaks at its first pop."""
-        allrows = self._all()
-        col = allrows[:, self._col(name)]
-        if np.all(np.isnan(col)):
-            return (math.nan, math.nan)
-        i = int(np.nanargmax(col) if kind == "max" else np.nanargmin(col))
-        v = float(col[i])
-        tol = EXTREME_RTOL * abs(v)
-        near = np.nonzero((col >= v - tol) if kind == "max" else (col <= v + tol))[0]
-        return v, float(allrows[int(near[0]) if near.size else i, 0])
-
     def targets(self) -> list[dict]:
         """Time each stop condition of the run was first met (``None``: not reached)."""
         out = []

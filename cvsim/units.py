@@ -356,7 +356,8 @@ def read_quantity(text: str | float | int, dimension: str, *,
         value += atmosphere
         note = f"gauge: atmosphere {atmosphere:.6g} Pa added"
     elif reference is None and dim.name == "pressure" and _pressure_base(unit) in _AMBIGUOUS:
-        note = f"'{unit}' read as absolute; write {unit}a or {unit}g to be explicit"
+        note = (f"warning: '{unit}' read as absolute; write {unit}a or {unit}g to be "
+                "explicit")
     return Reading(value, unit, reference, note)
 
 

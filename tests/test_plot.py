@@ -322,3 +322,15 @@ def test_a_failing_helper_leaves_the_drawing_to_the_main_process(tmp_path):
             p.join()
         paths = _plots(res, tmp_path, painters)
     assert [p.name for p in paths] == QUANTITIES
+
+
+def test_what_the_helpers_receive_loads_neither_solver_nor_property_library(tmp_path):
+    import pickle
+    from cvsim.painters import _light
+    path = tmp_path / "light.pkl"
+    path.write_bytes(pickle.dumps(_light(limited_vent())))
+    code = ("import pickle, sys; pickle.loads(open(sys.argv[1], 'rb').read()); "
+            "print('scipy' in sys.modules, 'CoolProp' in sys.modules)")
+    out = subprocess.run([sys.executable, "-c", code, str(path)], capture_output=True,
+                         text=True, check=True)
+    assert out.stdout.split() == ["False", "False"]

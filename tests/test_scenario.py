@@ -363,3 +363,24 @@ def test_docs_reference_is_up_to_date():
     on_disk = (ROOT / "docs" / "scenario-format.md").read_text(encoding="utf-8")
     assert on_disk == format_reference(), (
         "docs/scenario-format.md is stale: run python -m cvsim.scenario > docs/scenario-format.md")
+
+
+def test_an_override_creates_a_missing_section_and_null_removes_a_key():
+    scenario = load_scenario_text(GOOD, overrides={"run.solver.method": "BDF",
+                                                   "run.record_every": "null"})
+    assert scenario.network.run.method == "BDF"   # no 'solver:' section in the file
+    notes = {r.key: r.note for r in scenario.echo}
+    given = {r.key: r.given for r in scenario.echo}
+    assert "set by override" in notes["run.solver.method"]
+    # record_every removed: its default (1 s) applies and the echo says so
+    assert scenario.network.run.record_every == 1.0
+    assert "default" in notes["run.record_every"] and given["run.record_every"] == "1 s"
+
+
+def test_an_override_mapping_for_a_section_is_read_and_null_on_a_required_key_is_a_problem():
+    scenario = load_scenario_text(GOOD, overrides={"run.solver": "{method: BDF}"})
+    assert scenario.network.run.method == "BDF"
+    with pytest.raises(ScenarioError) as info:
+        load_scenario_text(GOOD, overrides={"links.vent.diameter": "~"})
+    (problem,) = info.value.problems
+    assert problem.key == "links.vent" and "'diameter'" in problem.message

@@ -226,3 +226,26 @@ def test_a_scenario_in_common_units_does_not_load_pint():
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                          check=True)
     assert out.stdout.strip() == "False"
+
+
+def test_a_plain_bar_pressure_is_a_warning_in_check_and_run(tmp_path, capsys):
+    """'60 bar' (no a or g) is read as absolute and said so as a warning: in check, when a
+    run starts, and in the run's summary."""
+    from cvsim.cli import main
+    path = tmp_path / "plain.yaml"
+    path.write_text("""
+title: Plain bar
+fluid: Nitrogen
+properties: ideal-gas
+ideal_gas: {molar_mass: 28.0134 g/mol, heat_capacity: 1040 J/kg/K}
+vessels:
+  v: {volume: 1 m3, initial: {pressure: 60 bar, temperature: 15 degC}}
+run: {end: 2 s}
+""")
+    assert main(["check", str(path)]) == 0
+    out = capsys.readouterr().out
+    assert "warning" in out and "'bar' read as absolute" in out
+    assert main(["run", str(path), "--out", str(tmp_path / "out"), "--no-plots"]) == 0
+    captured = capsys.readouterr()
+    assert "warning: vessels.v.initial.pressure: 'bar' read as absolute" in captured.err
+    assert "'bar' read as absolute" in (tmp_path / "out" / "summary.txt").read_text()

@@ -73,8 +73,9 @@ WRITING_VALUES = """
   `MPa`, `atm`, and any unit marked `a`, `(a)` or `abs`. Pressures must be above vacuum
   (`-2 barg` is a problem).
 - **Plain `bar`, `mbar`, `psi` and `kg/cm2`** are read as absolute, but the trade uses
-  them both ways: the echo notes each one ("'bar' read as absolute; write bara or barg to
-  be explicit"). Write `bara`/`barg` in files others will review.
+  them both ways: each one is a warning (in `cvsim check`, on the screen when a run
+  starts, in the summary and the report): "'bar' read as absolute; write bara or barg to
+  be explicit". Write `bara`/`barg` in files others will review.
 - **Temperatures**: `K`, `degC` or `°C`, `degF` or `°F`, `degR`. Inside a compound
   unit (`W/m2/degC`, `J/kg/degF`) a degree is a temperature difference.
 - **Exponents**: `m3`, `m^3` or `m³`; `W/m2/K` and `W/(m2 K)` are the same.
