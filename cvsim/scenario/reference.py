@@ -33,7 +33,7 @@ vessels:
   receiver:
     shape: {kind: cylinder, inner_diameter: 1.13 m, length: 1.52 m, orientation: vertical,
             heads: 2:1-ellipsoidal}
-    initial: {pressure: 150 barg, temperature: 15 degC}
+    initial: {pressure: 60 barg, temperature: 15 degC}
     heat:
       to_ambient: {coefficient: 5 W/m2/K, ambient: 15 degC}
 reservoirs:
@@ -43,7 +43,7 @@ links:
     from: receiver
     to: atmosphere
     device: orifice
-    diameter: 10 mm
+    diameter: 5 mm
     discharge_coefficient: 0.84
     closes_at: 10 min
   compressor:
@@ -56,7 +56,7 @@ run:
   end: 30 min
   record_every: 1 s
   stop_when:
-    - {vessel: receiver, temperature_below: -40 degC}
+    - {vessel: receiver, temperature_below: -70 degC}
     - {vessel: receiver, pressure_above: 100 barg}
 """
 
