@@ -102,3 +102,19 @@ def test_output_modules_use_no_private_helper_of_another_module():
                 bad += [f"{name}: {a.name} from {node.module}" for a in node.names
                         if a.name.startswith("_") and not a.name.startswith("__")]
     assert bad == []
+
+
+def test_install_hints_refer_to_the_checkout_not_the_package_index():
+    """'cvsim' on the package index is unrelated software: the distribution is named
+    cvsim-vessels, and no hint tells a user to install 'cvsim[...]' from the index."""
+    import tomllib
+    root = PACKAGE.parent
+    project = tomllib.loads((root / "pyproject.toml").read_text())["project"]
+    assert project["name"] == "cvsim-vessels"
+    assert project["scripts"] == {"cvsim": "cvsim.cli:main"}
+    offenders = []
+    for path in [*PACKAGE.rglob("*.py"), *root.glob("*.md"), *(root / "docs").glob("*.md")]:
+        text = path.read_text(encoding="utf-8")
+        if "cvsim[" in text or "install cvsim" in text:
+            offenders.append(path.name)
+    assert offenders == []

@@ -24,9 +24,9 @@ values (units as in the scenario file):
   words, mappings --vary run.solver.method="LSODA, BDF"
 
 Local worker processes are used by default (one per CPU); --cluster runs the
-cases on a Dask cluster instead (pip install 'cvsim[cluster]'). A case that runs
-longer than --case-time-limit (default 10 min) is stopped and fails with that
-reason. Ctrl-C (or SIGTERM) stops the sweep: the cases finished are written as
+cases on a Dask cluster instead (in the cvsim checkout: pip install -e
+'.[cluster]'). A case that runs longer than --case-time-limit (default 10 min)
+is stopped and fails with that reason. Ctrl-C (or SIGTERM) stops the sweep: the cases finished are written as
 a table marked PARTIAL. Exit status: 0 when the table is written, 1 when every
 case failed, 2 for a wrong option, 130 (143 on SIGTERM) when stopped."""
 
@@ -74,7 +74,8 @@ def _workers(p: argparse.ArgumentParser) -> None:
     g.add_argument("--workers", type=int, default=None, metavar="N",
                    help="local worker processes (default: one per CPU)")
     g.add_argument("--cluster", default=None, metavar="ADDRESS",
-                   help="run on a Dask cluster, e.g. tcp://host:8786 (needs cvsim[cluster] "
+                   help="run on a Dask cluster, e.g. tcp://host:8786 (needs the cluster "
+                   "extra: pip install -e '.[cluster]' in the cvsim checkout, "
                    "and cvsim on every worker)")
 
 

@@ -28,7 +28,7 @@ running cases included, rather than after the cases they were running.
 
 A Dask cluster is used when a scheduler address is given (``tcp://host:8786``):
 ``distributed.Client(address)``, ``client.map`` and ``as_completed``. Dask is an
-optional extra (``pip install cvsim[cluster]``) imported only then.
+optional extra (``pip install -e '.[cluster]'`` in the checkout) imported only then.
 """
 from __future__ import annotations
 
@@ -343,7 +343,8 @@ class _Dask:
             import distributed
         except ImportError:
             raise ClusterError("running on a Dask cluster (--cluster) needs the optional "
-                               "packages dask and distributed: pip install 'cvsim[cluster]'"
+                               "packages dask and distributed: pip install -e '.[cluster]' "
+                               "in the cvsim checkout (its distribution is cvsim-vessels)"
                                ) from None
         self.address = address
         self._distributed = distributed

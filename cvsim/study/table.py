@@ -185,13 +185,14 @@ class SweepResult:
 
     def to_dataframe(self):
         """The rows as a pandas DataFrame (SI values; needs pandas:
-        ``pip install cvsim[dataframe]``), with ``df.attrs``: ``caution``, ``title``,
+        ``pip install -e '.[dataframe]'`` in the cvsim checkout), with ``df.attrs``: ``caution``, ``title``,
         ``provenance`` and ``units`` (column name -> SI unit)."""
         try:
             import pandas as pd
         except ImportError:
             from ..errors import StudyError
-            raise StudyError("to_dataframe() needs pandas: pip install 'cvsim[dataframe]'"
+            raise StudyError("to_dataframe() needs pandas: pip install -e '.[dataframe]' in "
+                             "the cvsim checkout"
                              ) from None
         names = [c.name for c in self.columns]
         df = pd.DataFrame([[r.get(n) for n in names] for r in self.rows], columns=names)
