@@ -372,9 +372,10 @@ class _Dask:
         try:
             theirs = self.client.run(versions)
         except ImportError as exc:
-            raise ClusterError(f"the Dask workers cannot import cvsim ({exc}); install cvsim "
-                               f"{mine['cvsim']} with CoolProp {mine['coolprop']} on every "
-                               "worker machine") from None
+            raise ClusterError(f"the Dask workers cannot import cvsim ({exc}): on every "
+                               f"worker machine, install the same cvsim ({mine['cvsim']}, "
+                               f"CoolProp {mine['coolprop']}) from a copy of the checkout "
+                               "(pip install -e '.[cluster]')") from None
         other = {addr: v for addr, v in theirs.items() if v != mine}
         if other:
             addr, v = next(iter(other.items()))
