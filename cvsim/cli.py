@@ -54,7 +54,8 @@ def _parser() -> argparse.ArgumentParser:
                    help="output folder (default: results/<scenario name>)")
     r.add_argument("--set", dest="overrides", action="append", default=[], metavar="KEY=VALUE",
                    help="change one scenario value, e.g. --set links.vent.diameter='12 mm' "
-                   "(repeatable)")
+                   "(repeatable); a missing section is created (run.solver.method=BDF) "
+                   "and KEY=null removes a key")
     r.add_argument("--no-plots", action="store_true", help="skip the PNG plots")
     r.add_argument("--report", action="store_true",
                    help="also write report.html: the calculation report of the run, one "
