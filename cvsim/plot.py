@@ -489,6 +489,8 @@ def _mass_of(ax, view: _View, vessel: str):
           ls=view.dash[vessel])
     ax.set_ylabel("Mass [kg]")
     _finish(ax, view, f"Mass in {vessel}", floor=1e-6, overview=True)
+    if ax.get_legend() is not None:  # the title names the one vessel
+        ax.get_legend().remove()
 
 
 def _flow(ax, view: _View, overview: bool):

@@ -89,6 +89,9 @@ def _common(p: argparse.ArgumentParser) -> None:
     p.add_argument("--report", action="store_true",
                    help="also write report.html, the calculation report of the study")
     p.add_argument("--quiet", action="store_true", help="no progress bar, no table on screen")
+    p.add_argument("--decimal-comma", action="store_true",
+                   help="CSV files for spreadsheets that expect a decimal comma: ';' between "
+                   "fields, numbers written 1,5")
 
 
 def add_study_commands(sub) -> None:
@@ -176,6 +179,7 @@ def cmd_sweep(args) -> int:
                 raise
             result, stopped = stop.result, stop
             print("cvsim: stopping; writing the cases finished so far", file=sys.stderr)
+        result.decimal_comma = args.decimal_comma
         result.write(out, plots=not args.no_plots)
         if args.report:
             from ..scenario import load_scenario
@@ -222,7 +226,9 @@ def cmd_find(args) -> int:
                       goal=args.goal, workers=args.workers, cluster=args.cluster,
                       tolerance=tolerance, max_runs=args.max_runs or MAX_RUNS,
                       progress=_progress(args), overrides=parse_overrides(args.overrides))
-        result.write(out, plots=not args.no_plots, run=not args.no_run)
+        result.cases.decimal_comma = args.decimal_comma
+        result.write(out, plots=not args.no_plots, run=not args.no_run,
+                     decimal_comma=args.decimal_comma)
         if args.report:
             _find_report(args, result, out, folder)
     if not args.quiet:

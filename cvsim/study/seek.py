@@ -258,7 +258,8 @@ class SeekResult:
               "", "CAUTION: " + CAUTION]
         return "\n".join(L) + "\n"
 
-    def write(self, folder, plots: bool = True, run: bool = True) -> dict:
+    def write(self, folder, plots: bool = True, run: bool = True,
+              decimal_comma: bool = False) -> dict:
         """Write seek.txt, seek.json, cases.csv/.json/.txt, cases.png and, with
         ``run``, the full outputs of one more run at the value found (``run/``),
         atomically."""
@@ -292,7 +293,8 @@ class SeekResult:
                                                {**source.overrides, **self.overrides})
                 result = run_scenario(scenario)
                 (tmp / "run").mkdir()
-                write_run_files(result, tmp / "run", plots=plots, echo=scenario.echo)
+                write_run_files(result, tmp / "run", plots=plots, echo=scenario.echo,
+                                decimal_comma=decimal_comma)
                 files["run"] = tmp / "run"
             files["text"] = tmp / "seek.txt"
             files["json"] = tmp / "seek.json"

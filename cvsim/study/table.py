@@ -95,6 +95,7 @@ class SweepResult:
     outcome_defaults: list = field(default_factory=list)
     files: dict = field(default_factory=dict)
     partial: str = ""      # the sweep was stopped: what is missing ("" when complete)
+    decimal_comma: bool = False  # CSV for decimal-comma spreadsheets: ';' and 1,5
     warnings: list = field(default_factory=list)  # e.g. a plot that could not be drawn
 
     # ------------------------------------------------------------- build
@@ -373,11 +374,24 @@ def write_table_csv(result: SweepResult, path: Path) -> Path:
     with open(path, "w", newline="", encoding="utf-8") as fh:
         for line in header_lines(result.title, result.provenance, status, result.atmosphere):
             fh.write(f"# {line}\n")
-        w = csv.writer(fh)
+        comma = getattr(result, "decimal_comma", False)
+        if comma:
+            fh.write("# fields separated by ';', decimal comma\n")
+        w = csv.writer(fh, delimiter=";" if comma else ",")
         w.writerow([col.header() for col in result.columns])
         for r in result.rows:
-            w.writerow([cell_text(col, r.get(col.name), 10) for col in result.columns])
+            cells = [cell_text(col, r.get(col.name), 10) for col in result.columns]
+            w.writerow([_comma(c) for c in cells] if comma else cells)
     return path
+
+
+def _comma(cell: str) -> str:
+    """A number written with a decimal comma; other text as it is."""
+    try:
+        float(cell)
+    except ValueError:
+        return cell
+    return cell.replace(".", ",")
 
 
 def default_outcomes(result: SweepResult, reference) -> list[str]:
