@@ -157,7 +157,7 @@ def _draw_overview(view: _View, panels, path: Path) -> Path:
             draw(ax, view, overview=True)
         for ax in bottom:
             ax.set_xlabel(view.time_label)
-        fig.savefig(path, dpi=DPI, pil_kwargs=PNG_OPTIONS)
+        save(fig, path)
     return path
 
 
@@ -172,7 +172,7 @@ def _draw_single(view: _View, name: str, draw, path: Path) -> Path:
             ax = fig.subplots()
             draw(ax, view, overview=False)
             ax.set_xlabel(view.time_label)
-        fig.savefig(path, dpi=DPI, pil_kwargs=PNG_OPTIONS)
+        save(fig, path)
     return path
 
 
@@ -772,6 +772,11 @@ def _hits_boxes(boxes, box) -> bool:
 
 # ---------------------------------------------------------------- figures
 
+def save(fig, path: Path) -> None:
+    """Write ``fig`` as PNG at :data:`DPI` with :data:`PNG_OPTIONS`."""
+    fig.savefig(path, dpi=DPI, pil_kwargs=PNG_OPTIONS)
+
+
 @contextlib.contextmanager
 def _figure(size: tuple[float, float], view: _View):
     """A figure for a run (see :func:`figure`)."""
@@ -842,5 +847,5 @@ def _wrap(text: str, width_in: float, size_pt: float, bold: bool = False,
     return lines
 
 
-__all__ = ["figure", "flow_unit", "least_span", "place_legend", "plot_names", "plot_run",
+__all__ = ["figure", "flow_unit", "least_span", "place_legend", "plot_names", "plot_run", "save",
            "temperature_label", "time_unit"]

@@ -18,7 +18,7 @@ from pathlib import Path
 
 import numpy as np
 
-from ..plot import COLOURS, DASHES, DPI, PNG_OPTIONS, figure, least_span
+from ..plot import COLOURS, DASHES, figure, least_span, save
 
 PANEL_SIZE = (5.1, 2.9)     # [in] one panel's plotting area, about
 HEADER_IN = 1.3             # [in] title, subtitle and footer together
@@ -59,7 +59,7 @@ def plot_sweep(result, path: Path, outcomes: list[str], mark: tuple | None = Non
                    [(v, op) for n, v, op in required or () if n == name])
         for ax in axes[len(outcomes):]:
             ax.set_visible(False)
-        fig.savefig(path, dpi=DPI, pil_kwargs=PNG_OPTIONS)
+        save(fig, path)
     return path
 
 
