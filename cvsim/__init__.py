@@ -2,11 +2,12 @@
 
 Public API (imported lazily, so that ``cvsim --help`` starts fast)::
 
-    from cvsim import load_scenario, run, seek, sweep
+    from cvsim import load_scenario, run, seek, sweep, uncertainty
     result = run("scenarios/nitrogen-blowdown.yaml")
     table = sweep("scenarios/nitrogen-blowdown.yaml", vary={"links.vent.diameter": "6 mm:20 mm:8"})
     size = seek("scenarios/separator-depressuring.yaml",
                 vary={"links.orifice.diameter": "10 mm:30 mm"}, meet="limits")
+    study = uncertainty("scenarios/nitrogen-uncertain.yaml", cases=200, seed=1)
 """
 __version__ = "0.1.0"
 
@@ -22,6 +23,8 @@ _LAZY = {
     "SweepResult": ("cvsim.study.table", "SweepResult"),
     "seek": ("cvsim.study.seek", "seek"),
     "SeekResult": ("cvsim.study.seek", "SeekResult"),
+    "uncertainty": ("cvsim.study.uncertainty", "uncertainty"),
+    "UncertaintyResult": ("cvsim.study.uncertainty", "UncertaintyResult"),
 }
 
 __all__ = ["__version__", *_LAZY]

@@ -1,5 +1,5 @@
 """Command line: ``cvsim run | check | fluids`` (and the study commands
-``sweep | find | outcomes`` of :mod:`cvsim.study.cli`).
+``sweep | find | outcomes | uncertainty`` of :mod:`cvsim.study.cli`).
 
 Heavy libraries (CoolProp, scipy, matplotlib, pint) are imported inside the
 commands, so that ``cvsim --help`` answers at once. Errors a user can cause
@@ -35,6 +35,7 @@ examples:
   cvsim sweep scenarios/separator-depressuring.yaml --vary links.orifice.diameter="10 mm:30 mm:11"
   cvsim find scenarios/separator-depressuring.yaml --vary links.orifice.diameter="10 mm:30 mm" \\
       --smallest --meet limits
+  cvsim uncertainty scenarios/nitrogen-uncertain.yaml --cases 200 --seed 7 --report
 """
 
 

@@ -220,6 +220,8 @@ def summary_lines(d: dict, time_text) -> list[str]:
             out.append(f"  {label:<11} max {fmt(d[f'max_{key}{unit}'])} at "
                        f"{time_text(d[f'max_{key}_time_s'])}; min {fmt(d[f'min_{key}{unit}'])} "
                        f"at {time_text(d[f'min_{key}_time_s'])}")
+    from .zones import summary_lines as zone_lines
+    out += zone_lines(d, time_text)
     if "liquid_full_from_s" in d:
         until = d.get("liquid_full_until_s")
         out.append(f"  LIQUID-FULL from {time_text(d['liquid_full_from_s'])}"

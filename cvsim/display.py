@@ -24,6 +24,7 @@ DISPLAY = {
     "J/(kg K)": ("kJ/(kg K)", lambda v: v / 1e3),
     "W": ("kW", lambda v: v / 1e3),
     "J": ("kJ", lambda v: v / 1e3),
+    "N/m2": ("MPa", lambda v: v / 1e6),  # stresses (cvsim.rupture)
 }
 
 # (unit, seconds per unit, use above this run length [s])
@@ -151,7 +152,7 @@ def limit_value(value: float, unit: str, atm: float, t=duration) -> str:
         return f"{value - 273.15:.1f} degC"
     if unit == "s":
         return t(value)
-    return f"{value:.4g} {unit}"
+    return f"{value:.4g} {unit}".rstrip()
 
 
 def margin(value: float, unit: str, units: RunUnits | None = None) -> str:
@@ -166,7 +167,7 @@ def margin(value: float, unit: str, units: RunUnits | None = None) -> str:
         if units is not None:
             return f"{value / units.time_size:+.4g} {units.time}"
         return f"{value:+.4g} s"
-    return f"{value:+.4g} {unit}"
+    return f"{value:+.4g} {unit}".rstrip()
 
 
 #: SI unit of an echoed input -> (shown unit, SI -> shown, digits) for "values as used"

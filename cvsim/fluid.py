@@ -22,6 +22,7 @@ import difflib
 import math
 
 from .errors import FluidError, StateError
+from .numerics import root_on_bracket
 
 R_UNIVERSAL = 8.314462618  # [J/(mol K)] CODATA 2018 (exact since the 2019 SI)
 
@@ -36,41 +37,6 @@ STATE_RTOL = 1e-13
 #: shrunk to adjacent floating-point temperatures), a residual up to this is accepted
 STATE_RTOL_FLOOR = 1e-10
 MAX_STATE_ITERATIONS = 100
-
-
-def root_on_bracket(fn, lo: float, hi: float, f_lo: float, f_hi: float, tol: float,
-                    max_iter: int = MAX_STATE_ITERATIONS) -> float:
-    """Root of a continuous function on a bracket [lo, hi] with f_lo <= 0 <= f_hi,
-    by false position with the Illinois modification (Dowell & Jarratt, BIT 11
-    (1971) 168), stopped on the residual |fn(x)| <= tol; when the bracket shrinks to
-    machine precision first, its midpoint (the residual is then round-off of fn).
-    """
-    if abs(f_lo) <= tol:
-        return lo
-    if abs(f_hi) <= tol:
-        return hi
-    last = 0
-    x = 0.5 * (lo + hi)
-    for _ in range(max_iter):
-        x = lo - f_lo * (hi - lo) / (f_hi - f_lo)
-        if not (lo < x < hi):
-            x = 0.5 * (lo + hi)
-        f = fn(x)
-        if abs(f) <= tol:
-            return x
-        if f > 0.0:
-            hi, f_hi = x, f
-            if last == 1:
-                f_lo *= 0.5
-            last = 1
-        else:
-            lo, f_lo = x, f
-            if last == -1:
-                f_hi *= 0.5
-            last = -1
-        if hi - lo <= 4e-16 * max(abs(hi), abs(lo)):
-            break
-    return x
 
 
 class State:
@@ -462,6 +428,56 @@ class RealFluid:
             raise err
         return self._read()
 
+    def pressure_derivatives(self, st: State) -> tuple[float, float]:
+        """Slopes of the pressure at a state: ((dp/drho) at constant u [m2/s2],
+        (dp/du) at constant rho [kg/m3]).
+
+        Single phase: CoolProp's partial derivatives of the equation of state. Two
+        phases (equilibrium, p = p_sat(T)): with the Clapeyron slope
+        p' = (h_v - h_l)/(T (v_v - v_l)), the equilibrium slope c_eq = (du/dT) at
+        constant density (:meth:`_two_phase_slope`) and
+        (du/drho)_T = -(u_v - u_l)/(rho^2 (v_v - v_l)) of the lever rule:
+
+            (dp/du)_rho = p'/c_eq,   (dp/drho)_u = -p' (du/drho)_T / c_eq
+
+        (Clapeyron: e.g. Cengel & Boles, 9th ed., sec. 12-3). ``rho (dp/drho)_u +
+        (p/rho)(dp/du)_rho`` is rho c^2, the isentropic stiffness, in both regions.
+        """
+        if st.two_phase:
+            b = self._sat
+            self.evaluations += 1
+            b.update(self._QT, 0.0, st.T)
+            L, V = b.saturated_liquid_keyed_output, b.saturated_vapor_keyed_output
+            iH = self._CP.iHmass
+            dv = 1.0 / V(self._iD) - 1.0 / L(self._iD)
+            slope_p = (V(iH) - L(iH)) / (st.T * dv)
+            c_eq = self._two_phase_slope(st.rho, st.T, "u")
+            du_drho = -(V(self._iU) - L(self._iU)) / (st.rho * st.rho * dv)
+            return -slope_p * du_drho / c_eq, slope_p / c_eq
+        self._update_dt(st.rho, st.T)
+        a, CP = self._as, self._CP
+        return (a.first_partial_deriv(CP.iP, CP.iDmass, CP.iUmass),
+                a.first_partial_deriv(CP.iP, CP.iUmass, CP.iDmass))
+
+    def saturation_at_p(self, p: float) -> tuple[State, State]:
+        """(saturated liquid, saturated vapour) at pressure p [Pa] from one saturation
+        evaluation (below the critical pressure)."""
+        b = self._sat
+        self.evaluations += 1
+        try:
+            b.update(self._PQ, p, 0.0)
+        except ValueError as exc:
+            raise StateError(f"{self.name} saturation state failed at p = {p:.6g} Pa: "
+                             f"{exc}") from None
+        out = []
+        for side, x in ((b.saturated_liquid_keyed_output, 0.0),
+                        (b.saturated_vapor_keyed_output, 1.0)):
+            rho = side(self._iD)
+            out.append(State(rho, b.T(), p, side(self._iU), side(self._CP.iHmass),
+                             side(self._iS), NAN, NAN, NAN, x,
+                             "liquid" if x == 0.0 else "gas", 1.0 - x))
+        return out[0], out[1]
+
     def ideal_gas_gamma(self, rho: float, T: float) -> float:
         """Ideal-gas heat-capacity ratio cp0/(cp0 - R) at temperature T [K] [-].
 
@@ -547,7 +563,8 @@ class RealFluid:
         f_lo, f_hi = sl(lo), sl(hi)
         if f_lo > 0.0 or f_hi < 0.0:
             return None
-        return root_on_bracket(sl, lo, hi, f_lo, f_hi, self._tolerance(s, "s"))
+        return root_on_bracket(sl, lo, hi, f_lo, f_hi, self._tolerance(s, "s"),
+                               MAX_STATE_ITERATIONS)
 
     def two_phase_at_p(self, p: float, quality: float) -> State:
         """Equilibrium mixture of vapour mass fraction ``quality`` [-] (0..1) at

@@ -198,10 +198,12 @@ def first_time_at_or_below(t, values, target: float) -> float:
 
 def _where(column: str) -> str:
     """``inner_temperature`` -> ``the inside surface``; ``node3_temperature`` ->
-    ``node 3``."""
-    what = column.removesuffix("_temperature")
-    return {"inner": "the inside surface", "outer": "the outside surface"}.get(
-        what, f"node {what[4:]}" if what.startswith("node") and what[4:].isdigit() else what)
+    ``node 3``; ``unwetted.outer_temperature`` -> ``the outside surface of the unwetted
+    part``."""
+    *part, last = column.removesuffix("_temperature").split(".")
+    what = {"inner": "the inside surface", "outer": "the outside surface"}.get(
+        last, f"node {last[4:]}" if last.startswith("node") and last[4:].isdigit() else last)
+    return what + (f" of the {' '.join(part)} part" if part else "")
 
 
 def check_vessel(name: str, limits, atmosphere: float, t, pressure, gas_temperature,

@@ -3,6 +3,8 @@
 State vector ``y`` (all SI):
 
 * per vessel: mass m [kg] and internal energy U [J] of its contents;
+* per vessel held as separated vapour and liquid zones: the liquid zone's mass and
+  internal energy (the vapour zone is the rest; :mod:`cvsim.zones`);
 * per heat term with states of its own (walls, later): those states;
 * bookkeeping integrals, which never feed back into the dynamics: per link the
   mass that passed [kg], the energy that left the node the stream leaves [J]
@@ -31,7 +33,10 @@ it, and starts a new segment at every breakpoint and switch.
 
 Controllers (sequences of links opened one after another) own discrete states
 too; a link that belongs to a sequence passes flow only while its step is
-active (:attr:`Model.gates`).
+active (:attr:`Model.gates`). Valve controllers (:mod:`cvsim.control`) own
+states of the ODE as well (a PI integral, a measurement filter), placed after
+the heat terms' states; the travel they set is read by the valve they move
+through :meth:`Segment.driven_opening`.
 """
 from __future__ import annotations
 
@@ -45,16 +50,21 @@ from .errors import StateError
 from .flow.base import NO_FLOW, Flow
 from .flow.control_valve import ControlValveDevice
 from .flow.disc import BurstingDiscDevice, CheckValveDevice
+from .control import ValveController
 from .flow.fixed import FixedFlowDevice
+from .flow.line import LineDevice
 from .flow.orifice import OrificeDevice
+from .flow.regulator import RegulatorDevice
 from .flow.relief import ReliefValveDevice
 from .fluid import make_fluid
 from .outlets import drawn_state
 from .heat.definitions import GasFire, Wall
 from .heat.loads import AmbientExchangeTerm, HeatLoadTerm
 from .heat.walls import GasFireTerm, WallTerm
+from .heat.zoned_wall import ZonedWallTerm
 from .sequence import SequenceController
 from .signals import Constant
+from .zones import ZonedVessel, liquid_share_drawn
 
 #: run-time class of each device definition; later devices register here
 DEVICE_TYPES = {
@@ -64,6 +74,8 @@ DEVICE_TYPES = {
     nw.ReliefValve: ReliefValveDevice,
     nw.BurstingDisc: BurstingDiscDevice,
     nw.CheckValve: CheckValveDevice,
+    nw.Line: LineDevice,
+    nw.Regulator: RegulatorDevice,
 }
 
 #: run-time class of each heat-term definition
@@ -103,19 +115,35 @@ class Model:
         self.node_index = {n: i for i, n in enumerate(self.node_names)}
         self.n_vessels = len(self.vessels)
 
-        # heat terms and their own states
+        # vessels held as separated zones: the liquid zone's (m_l, U_l)
         offset = 2 * self.n_vessels
+        self.zoned: dict[int, ZonedVessel] = {}
+        for vrt, vdef in zip(self.vessels, network.vessels):
+            if vdef.zones is not None:
+                from .heat.transport import GasProperties
+                zv = ZonedVessel(vdef, vrt, self.fluid, offset, GasProperties(self.fluid))
+                offset += zv.n_states
+                self.zoned[vrt.index] = zv
+
+        # heat terms and their own states
         self.heat_terms = []
         for vrt, vdef in zip(self.vessels, network.vessels):
+            zv = self.zoned.get(vrt.index)
             for h in vdef.heat:
-                term = HEAT_TYPES[type(h)](h, vdef.name)
+                if zv is not None and isinstance(h, Wall):
+                    term = ZonedWallTerm(h, vdef.name, zv)
+                else:
+                    term = HEAT_TYPES[type(h)](h, vdef.name)
+                if zv is not None:
+                    term.liquid_row = zv.offset + 1
                 term.offset = offset
                 offset += term.n_states
                 vrt.heat.append(term)
                 self.heat_terms.append((vrt.index, term))
         #: the heat terms' own states (wall temperatures): nothing else depends on them
         #: but the heat terms, so the cache of vessel states and flows ignores them
-        self.heat_states = (2 * self.n_vessels, offset)
+        self.heat_states = (self.heat_terms[0][1].offset if self.heat_terms else offset,
+                            offset)
         self.n_dynamic = offset
 
         # links
@@ -128,13 +156,27 @@ class Model:
                                     self.node_index[link.target]))
         for _, term in self.heat_terms:
             term.bind(self)
+        for d in self.devices:
+            d.bind(self)
 
         # controllers; gates[k] = (discrete key, step) of a link in a sequence, else None
         self.link_index = {link.name: i for i, link in enumerate(self.links)}
         self.controllers = [SequenceController(sq, i, self.link_index, self.devices)
                             for i, sq in enumerate(network.sequences)]
+        # valve controllers and their own states, after the heat terms' states
+        self.valve_controllers = [ValveController(c, i, self)
+                                  for i, c in enumerate(network.controllers)]
+        self.controller_states = (offset, offset)
+        for c in self.valve_controllers:
+            c.offset = offset
+            offset += c.n_states
+        self.controller_states = (self.controller_states[0], offset)
+        self.n_dynamic = offset
+        self.controllers += self.valve_controllers
         self.gates: list[tuple[str, int] | None] = [None] * len(self.links)
         for c in self.controllers:
+            if c.kind != "sequence":
+                continue
             for j, k in enumerate(c.links):
                 self.gates[k] = (c.key, j)
         self.initial_events: list[tuple[float, str]] = []
@@ -182,9 +224,16 @@ class Model:
             y[vrt.i_m] = m
             y[vrt.i_U] = m * st.u
             vrt.T_hint = st.T
+        for vi, zv in self.zoned.items():
+            zv.check_initial(states[vi])
+            y[zv.offset:zv.offset + 2] = zv.initial(states[vi])
         for vi, term in self.heat_terms:
             init = term.initial_states(states[vi])
             y[term.offset:term.offset + term.n_states] = init
+        if self.valve_controllers:
+            snap = Segment(self, 0.0, 0.0, {}).states(0.0, y)
+            for c in self.valve_controllers:
+                c.initial_states(snap, y)
         return y
 
     def scales(self, y0: np.ndarray) -> np.ndarray:
@@ -208,10 +257,15 @@ class Model:
             m = max(rho * vrt.volume, y0[vrt.i_m], 1e-12)
             e = m * max(abs(y0[vrt.i_U]) / max(y0[vrt.i_m], 1e-30), 1000.0 * T)
             sc[vrt.i_m], sc[vrt.i_U] = m, e
+            zv = self.zoned.get(vrt.index)
+            if zv is not None:
+                sc[zv.offset], sc[zv.offset + 1] = m, e
             m_total += m
             e_total += e
         for vi, term in self.heat_terms:
             sc[term.offset:term.offset + term.n_states] = term.scales()
+        for c in self.valve_controllers:
+            sc[c.offset:c.offset + c.n_states] = c.scales(p_ref)
         sc[self.i_acc_links:] = m_total
         for k in range(len(self.links)):
             j = self.i_acc_links + ACC_PER_LINK * k
@@ -225,6 +279,8 @@ class Model:
             bps.update(d.breakpoints())
         for vi, term in self.heat_terms:
             bps.update(term.breakpoints())
+        for c in self.valve_controllers:
+            bps.update(c.breakpoints())
         for r in self.reservoirs:
             bps.update(r.pressure.breakpoints)
             bps.update(r.temperature.breakpoints)
@@ -291,6 +347,8 @@ class Model:
                     cols.append((f"{v.name}.heat.{term.name}.source_temperature", "K",
                                  "heat-source"))
                 cols += term.columns(v.name)
+            if v.index in self.zoned:
+                cols += self.zoned[v.index].columns()
         for r in self.reservoirs:
             cols.append((f"{r.name}.pressure", "Pa", "reservoir"))
             cols.append((f"{r.name}.temperature", "K", "reservoir"))
@@ -300,7 +358,7 @@ class Model:
             if d.has_opening or gate is not None:
                 cols.append((f"{link.name}.opening", "-", "link"))
         for c in self.controllers:
-            cols.append((f"{c.name}.step", "-", "sequence"))
+            cols += c.columns()
         return cols
 
     def _jacobian_groups(self) -> list[tuple[list[int], list[list[int]] | None]]:
@@ -316,7 +374,8 @@ class Model:
         (1974) 117): a wall of any number of nodes then costs three right-hand sides
         per Jacobian. Columns that change nothing (bookkeeping integrals) are left out.
         """
-        groups = [([j], None) for j in range(2 * self.n_vessels)]
+        groups = [([j], None) for j in range(self.heat_states[0])]   # vessels, zones
+        groups += [([j], None) for j in range(*self.controller_states)]
         declared = []
         for k, (vi, term) in enumerate(self.heat_terms):
             rows = term.jacobian_rows(2 * vi + 1, self.i_acc_heat + k)
@@ -349,13 +408,15 @@ class States:
     outlet (saturated liquid when two phases are present; ``None`` when no link
     draws liquid)."""
 
-    __slots__ = ("t", "states", "outflow", "liquid")
+    __slots__ = ("t", "states", "outflow", "liquid", "y")
 
-    def __init__(self, t, states, outflow, liquid=None):
+    def __init__(self, t, states, outflow, liquid=None, y=None):
         self.t = t
         self.states = states
         self.outflow = outflow
         self.liquid = liquid
+        #: the state vector they were made from (controllers read their own states)
+        self.y = y
 
 
 class Segment:
@@ -375,6 +436,8 @@ class Segment:
         self.last_error: StateError | None = None
         self.rhs_calls = 0
         self.jac_calls = 0
+        #: travel set by each valve controller, by link position (:meth:`flows`)
+        self.driven: dict[int, float] = {}
         n = model.n_states
         self._dydt = np.zeros(n)
         self._own_heat = model.heat_states
@@ -402,22 +465,27 @@ class Segment:
         fluid = m.fluid
         states = []
         outflow = []
+        zoned = m.zoned
         for v in m.vessels:
             mass = y[v.i_m]
+            zv = zoned.get(v.index)
             try:
+                if zv is not None:   # separated zones: what a top outlet draws
+                    st = zv.state(mass, y[v.i_U], y[zv.offset], y[zv.offset + 1])
+                    states.append(st)
+                    outflow.append(zv.drawn(st, "vapour")[0])
+                    continue
                 st = fluid.state_du(mass / v.volume, y[v.i_U] / mass if mass > 0 else math.nan,
                                     v.T_hint)
-            except StateError as exc:
-                raise StateError(exc.detail, where=f"vessel '{v.name}'", time=t) from None
-            v.T_hint = st.T
-            states.append(st)
-            try:
+                v.T_hint = st.T
+                states.append(st)
                 outflow.append(drawn_state(fluid, st, "vapour"))
             except StateError as exc:
                 raise StateError(exc.detail, where=f"vessel '{v.name}'", time=t) from None
         liquid = None
         if m.draws_liquid:
-            liquid = [drawn_state(fluid, st, "liquid") for st in states]
+            liquid = [zoned[i].drawn(st, "liquid")[0] if i in zoned else
+                      drawn_state(fluid, st, "liquid") for i, st in enumerate(states)]
         for r in m.reservoirs:
             p = self.signal(r.pressure, t)
             T = self.signal(r.temperature, t)
@@ -426,9 +494,14 @@ class Segment:
             outflow.append(st)
             if liquid is not None:
                 liquid.append(st)
-        s = States(t, states, outflow, liquid)
+        s = States(t, states, outflow, liquid, y)
         self._key, self._states = key, s
         return s
+
+    def driven_opening(self, link: int) -> float:
+        """Travel [-] the controller that moves link ``link``'s valve sets at the state
+        last evaluated by :meth:`flows`."""
+        return self.driven[link]
 
     @property
     def current_flows(self) -> list[Flow]:
@@ -441,6 +514,8 @@ class Segment:
             return s, self._flows
         flows = []
         gates = self.model.gates
+        for c in self.model.valve_controllers:
+            self.driven[c.link] = c.output(t, y, s, self)
         for d in self.model.devices:
             gate = gates[d.index]
             if gate is not None and self.discrete[gate[0]][0] != gate[1]:
@@ -474,6 +549,7 @@ class Segment:
         dydt = np.zeros(m.n_states)
         nv = m.n_vessels
         acc = m.i_acc_links
+        zoned = m.zoned
         for k, (d, f) in enumerate(zip(m.devices, flows)):
             mdot = f.mdot
             if mdot == 0.0:
@@ -488,16 +564,40 @@ class Segment:
             if d.target < nv:
                 dydt[2 * d.target] += mdot
                 dydt[2 * d.target + 1] += e_tgt
+            if zoned:   # the part of a stream leaving a liquid zone (entering: the vapour)
+                left, draws = ((d.source, m.links[k].draws) if mdot > 0.0 else
+                               (d.target, "vapour"))
+                zv = zoned.get(left)
+                if zv is not None:
+                    z = s.states[left]
+                    w = liquid_share_drawn(draws, z.liquid_fraction, z.liquid is not None)
+                    if w > 0.0:
+                        dydt[zv.offset] -= w * abs(mdot)
+                        dydt[zv.offset + 1] -= w * abs(mdot) * z.liquid.h
             j = acc + ACC_PER_LINK * k
             dydt[j] = mdot
             dydt[j + 1] = e_src
             dydt[j + 2] = e_tgt
+        for vi, zv in zoned.items():   # rain-out, boil-off, interface
+            mdot_l, e_l = zv.liquid_rates(s.states[vi])
+            dydt[zv.offset] += mdot_l
+            dydt[zv.offset + 1] += e_l
+        for c in m.valve_controllers:
+            c.derivatives(t, y, s, flows, self, dydt)
         jh = m.i_acc_heat
         for k, (vi, term) in enumerate(m.heat_terms):
             own = y[term.offset:term.offset + term.n_states]
             q = term.evaluate(t, s.states[vi], own, self, dydt)
             dydt[2 * vi + 1] += q
             dydt[jh + k] = q
+        for vi, zv in zoned.items():   # the boundary work between the zones
+            z = s.states[vi]
+            W = zv.volume_rate(z, dydt[2 * vi], dydt[2 * vi + 1], dydt[zv.offset],
+                               dydt[zv.offset + 1])
+            dydt[zv.offset + 1] -= z.p * W
+            for term in m.vessels[vi].heat:
+                if isinstance(term, ZonedWallTerm):
+                    term.transfer(z.dshare_dV * W, dydt)
         return dydt
 
     def jac(self, t: float, y: np.ndarray) -> np.ndarray:
@@ -574,12 +674,16 @@ class Segment:
             row += [st.p, st.T, mass, st.rho, st.h, y[v.i_U] / mass if mass > 0 else st.u,
                     st.s, st.quality]
             row += contents.values(m.network.vessels[v.index], st)
+            scratch = np.zeros(m.n_states)
             for term in v.heat:
                 own = y[term.offset:term.offset + term.n_states]
-                row.append(term.evaluate(t, st, own, self, np.zeros(m.n_states)))
+                row.append(term.evaluate(t, st, own, self, scratch))
                 if term.has_source:
                     row.append(term.source_temperature(t, st, own, self))
                 row += term.values(t, st, own, self)
+            zv = m.zoned.get(v.index)
+            if zv is not None:
+                row += zv.values(t, st, float(scratch[zv.offset + 1]))
         for k, r in enumerate(m.reservoirs):
             st = s.states[nv + k]
             row += [st.p, st.T]
@@ -589,7 +693,7 @@ class Segment:
                 shut = gate is not None and self.discrete[gate[0]][0] != gate[1]
                 row.append(0.0 if shut else d.opening(t, s, self))
         for c in m.controllers:
-            row.append(c.observe(self.discrete))
+            row += c.values(t, y, s, self)
         return row
 
 

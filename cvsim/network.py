@@ -109,6 +109,45 @@ class InitialState:
 
 
 @dataclass(frozen=True)
+class RuptureLimit:
+    """Rupture screening of a vessel's wall in a fire (:mod:`cvsim.rupture`).
+
+    strength             how the metal's strength falls with temperature
+                         (:class:`cvsim.mechanics.StrengthData`)
+    criterion            ``tensile`` (ultimate tensile strength at temperature) or
+                         ``yield`` (yield strength at temperature)
+    fraction             [-] share of that strength the stress may reach
+    tensile_strength     [Pa] room-temperature ultimate tensile strength (``None``:
+                         not given)
+    yield_strength       [Pa] room-temperature yield strength (``None``: not given)
+    stress               ``hoop`` (the larger membrane stress) or ``equivalent``
+                         (von Mises of the membrane stresses)
+    corrosion_allowance  [m] taken off the load-bearing layer, on its inside
+    layer                index (0: innermost) of the wall layer that bears the pressure
+    creep                ``None`` or (Larson-Miller constant C [-], the master curve's
+                         parameters P [K], its rupture stresses [Pa]): creep damage by
+                         life fractions (:func:`cvsim.mechanics.creep_damage`)
+    key                  key path in the scenario, for messages
+    """
+
+    strength: object
+    criterion: str = "tensile"
+    fraction: float = 1.0
+    tensile_strength: float | None = None
+    yield_strength: float | None = None
+    stress: str = "hoop"
+    corrosion_allowance: float = 0.0
+    layer: int = 0
+    creep: tuple | None = None
+    key: str = ""
+
+    @property
+    def room_strength(self) -> float:
+        """[Pa] the room-temperature strength the criterion scales."""
+        return self.tensile_strength if self.criterion == "tensile" else self.yield_strength
+
+
+@dataclass(frozen=True)
 class VesselLimits:
     """Design limits of a vessel, checked after the run (``None``: not checked).
 
@@ -127,6 +166,7 @@ class VesselLimits:
     depressure_start       [s] when depressuring starts; ``None``: found from the run
                            (the last pressure peak before the target,
                            :func:`cvsim.limits.depressuring_start`)
+    rupture                rupture screening of the wall in a fire, or ``None``
     """
 
     design_pressure: float | None = None
@@ -138,6 +178,31 @@ class VesselLimits:
     depressure_within: float | None = None
     depressure_basis: str = ""
     depressure_start: float | None = None
+    rupture: RuptureLimit | None = None
+
+
+@dataclass(frozen=True)
+class SeparatedZones:
+    """Vapour and liquid held as two zones at their own temperatures (one pressure),
+    with heat and mass moving between them (:mod:`cvsim.zones`).
+
+    droplet_diameter   [m] condensate drops in the vapour zone, which settle into the
+                       liquid at their Stokes velocity (rain-out)
+    bubble_rise_coefficient  [-] C of the bubble rise velocity
+                       C (g sigma (rho_l - rho_v)/rho_l^2)^(1/4) that carries vapour
+                       formed in the liquid to the vapour zone (boil-off)
+    interface_factor   [-] multiplies the natural-convection coefficients across the
+                       interface (1: the correlations as published)
+    boiling_surface_constant  [-] C_sf of Rohsenow's nucleate-boiling correlation on
+                       the wetted wall
+    boiling_prandtl_exponent  [-] n of the same correlation
+    """
+
+    droplet_diameter: float = 20e-6
+    bubble_rise_coefficient: float = 1.53
+    interface_factor: float = 1.0
+    boiling_surface_constant: float = 0.013
+    boiling_prandtl_exponent: float = 1.7
 
 
 @dataclass(frozen=True)
@@ -147,6 +212,8 @@ class Vessel:
     initial: InitialState
     heat: tuple[HeatTerm, ...] = ()
     limits: VesselLimits | None = None
+    #: ``None``: one equilibrium state (the default); else separated zones
+    zones: SeparatedZones | None = None
 
     @property
     def volume(self) -> float:
@@ -215,7 +282,8 @@ class ControlValve:
     kv             [m3/h] rated flow coefficient Kv at full opening (a Cv is
                    converted with Kv = 0.865 Cv before it gets here)
     xt             [-] pressure differential ratio factor xT (with fittings: xTP)
-    opening        [-] valve travel 0..1, constant or a table in time
+    opening        [-] valve travel 0..1, constant or a table in time; ``None``: moved
+                   by a controller (:class:`Controller`)
     characteristic ``linear``, ``equal-percentage`` or ``quick-opening``
     rangeability   [-] R of the equal-percentage characteristic (> 1)
     piping_factor  [-] piping geometry factor Fp (1: no fittings)
@@ -225,7 +293,7 @@ class ControlValve:
 
     kv: float
     xt: float
-    opening: Signal
+    opening: Signal | None
     characteristic: str = "linear"
     rangeability: float = 50.0
     piping_factor: float = 1.0
@@ -288,7 +356,75 @@ class CheckValve:
     flow_model: str = "real-gas"
 
 
-Device = Orifice | FixedFlow | ControlValve | ReliefValve | BurstingDisc | CheckValve
+@dataclass(frozen=True)
+class LineOrifice:
+    """A restriction orifice at one end of a line: area [m2], discharge coefficient [-],
+    ``at`` the ``from`` or ``to`` end of the link."""
+
+    area: float
+    discharge_coefficient: float
+    at: str = "to"
+
+
+@dataclass(frozen=True)
+class Line:
+    """A pipe or hose with friction between two nodes, optionally with a control valve
+    and a restriction orifice in series on the same link (:mod:`cvsim.flow.line`).
+
+    length            [m] straight length
+    diameter          [m] inside diameter
+    roughness         [m] absolute roughness of the wall
+    fittings_k        [-] sum of the resistance coefficients K of the fittings (velocity
+                      heads of the line's bore; an entrance counts, the exit does not)
+    fittings_length   [m] equivalent length of fittings, added to ``length``
+    elevation_change  [m] height of the ``to`` end above the ``from`` end
+    flow_model        ``adiabatic`` (Fanno flow) or ``isothermal`` (gas)
+    orifice           :class:`LineOrifice` or ``None``
+    valve             :class:`ControlValve` in series, or ``None``; its ``opening`` is
+                      ``None`` when a controller moves it
+    valve_at          the end the valve sits at, ``from`` or ``to``
+    viscosity         [Pa s] stated viscosity; ``None``: from the fluid (CoolProp)
+    """
+
+    length: float
+    diameter: float
+    roughness: float
+    fittings_k: float = 0.0
+    fittings_length: float = 0.0
+    elevation_change: float = 0.0
+    flow_model: str = "adiabatic"
+    orifice: LineOrifice | None = None
+    valve: ControlValve | None = None
+    valve_at: str = "from"
+    viscosity: float | None = None
+
+
+@dataclass(frozen=True)
+class Regulator:
+    """A self-acting (spring-loaded) regulator: a valve whose travel follows the
+    pressure it senses, with a proportional band.
+
+    holds         ``downstream``: a pressure-reducing regulator sensing the ``to`` node,
+                  shut at ``set_pressure`` and fully open ``band`` below it (the droop);
+                  ``upstream``: a back-pressure regulator sensing the ``from`` node, shut
+                  at ``set_pressure`` and fully open ``band`` above it (the build-up)
+    set_pressure  [Pa] absolute
+    band          [Pa] droop or build-up (> 0)
+    kv            [m3/h] flow coefficient Kv of the fully open regulator (its capacity)
+    xt            [-] pressure differential ratio factor xT of IEC 60534-2-1
+    fl            [-] liquid pressure recovery factor FL, or ``None``
+    """
+
+    holds: str
+    set_pressure: float
+    band: float
+    kv: float
+    xt: float
+    fl: float | None = None
+
+
+Device = (Orifice | FixedFlow | ControlValve | ReliefValve | BurstingDisc | CheckValve | Line
+          | Regulator)
 
 
 @dataclass(frozen=True)
@@ -335,6 +471,81 @@ class Sequence:
     pressure_difference_below: float | None = None
     longest_step: float | None = None
     shortest_step: float | None = None
+
+
+# -------------------------------------------------------------- controllers
+
+
+@dataclass(frozen=True)
+class Fill:
+    """What makes a controller a fuelling fill: it ramps the receiver's pressure and
+    ends on a final pressure, a gas temperature or a state of charge.
+
+    receiver                  the vessel filled
+    pressure_ramp             [Pa/s] average pressure-rise rate the set point follows
+    start_pressure            [Pa] receiver pressure at the start (the ramp's origin)
+    nominal_working_pressure  [Pa] NWP of the receiving system
+    maximum_operating_pressure  [Pa] 125 % of NWP (gauge), the peak pressure's limit
+    reference_density         [kg/m3] density at NWP and 15 degC (100 % state of charge)
+    final_pressure            [Pa] the fill ends when the receiver reaches this
+    temperature_limit         [K] ... or when its gas reaches this
+    state_of_charge           [-] ... or when its density reaches this share of the
+                              reference density
+    """
+
+    receiver: str
+    pressure_ramp: float
+    start_pressure: float
+    nominal_working_pressure: float
+    maximum_operating_pressure: float
+    reference_density: float
+    final_pressure: float
+    temperature_limit: float
+    state_of_charge: float
+
+
+@dataclass(frozen=True)
+class Controller:
+    """A controller that moves the valve of a link to hold a measured quantity.
+
+    valve             name of the link whose valve it moves (a control valve, or a line
+                      with a valve)
+    measures          ``pressure``, ``temperature``, ``mass-flow`` or
+                      ``pressure-rise-rate``
+    of                the node measured (the link, for ``mass-flow``)
+    set_point         [SI unit of the measured quantity] constant or a table in time
+    mode              ``pi`` (proportional-integral) or ``on-off``
+    opens_when        ``below``: the valve opens further while the measured value is
+                      below the set point (a fill valve); ``above``: while it is above
+                      (a vent valve)
+    gain              [opening per SI unit of the measured quantity] PI
+    integral_time     [s] PI
+    deadband          [SI unit of the measured quantity] on-off: the band, centred on the
+                      set point, between opening and shutting
+    minimum_opening, maximum_opening  [-] limits of the output (the integral stops at
+                      them: anti-windup)
+    initial_opening   [-] output at the start
+    measurement_lag   [s] time constant of the first-order filter through which a mass
+                      flow or a pressure-rise rate is measured (the rate is the
+                      filtered derivative of the pressure)
+    fill              :class:`Fill` for a fuelling fill, else ``None``
+    """
+
+    name: str
+    valve: str
+    measures: str
+    of: str
+    set_point: Signal
+    mode: str = "pi"
+    opens_when: str = "below"
+    gain: float | None = None
+    integral_time: float | None = None
+    deadband: float | None = None
+    minimum_opening: float = 0.0
+    maximum_opening: float = 1.0
+    initial_opening: float = 0.0
+    measurement_lag: float | None = None
+    fill: Fill | None = None
 
 
 # ------------------------------------------------------------------- the run
@@ -401,14 +612,16 @@ class Network:
     run: RunSettings = field(default_factory=lambda: RunSettings(end_time=60.0, record_every=1.0))
     atmosphere: float = 101325.0  # [Pa] the local atmosphere gauge pressures refer to
     sequences: tuple[Sequence, ...] = ()
+    controllers: tuple[Controller, ...] = ()
 
     def node_names(self) -> tuple[str, ...]:
         return tuple(v.name for v in self.vessels) + tuple(r.name for r in self.reservoirs)
 
 
 __all__ = [
-    "AmbientExchange", "BurstingDisc", "CheckValve", "Constant", "ControlValve", "Device",
-    "FixedFlow", "FluidSpec", "Geometry", "HeatLoad", "HeatTerm", "InitialState", "Link",
-    "Network", "Orifice", "ReliefValve", "Reservoir", "RunSettings", "Sequence",
+    "AmbientExchange", "BurstingDisc", "CheckValve", "Constant", "ControlValve", "Controller",
+    "Device", "Fill", "FixedFlow", "FluidSpec", "Geometry", "HeatLoad", "HeatTerm",
+    "InitialState", "Line", "LineOrifice", "Link", "Network", "Orifice", "Regulator",
+    "ReliefValve", "Reservoir", "RunSettings", "RuptureLimit", "SeparatedZones", "Sequence",
     "StopCondition", "Vessel", "VesselLimits",
 ]

@@ -61,6 +61,7 @@ def _light(result):
     light = Histories(result.network, result.status, result.message, result.columns,
                       result.data, result.fine_data, result.events)
     light.limits = list(getattr(result, "limits", []))
+    light.rupture = dict(getattr(result, "rupture", {}) or {})  # the rupture page's times
     return light
 
 

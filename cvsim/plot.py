@@ -18,7 +18,9 @@ own when there are any. The temperatures through a layered wall
 the temperature panel keeps only the wall's surfaces. When any vessel holds liquid at
 some time, ``level.png`` shows the liquid level of those vessels (``<vessel>.liquid_level``,
 with each vessel's inside height), or their liquid share of the volume when one of them
-is given by its volume only (no height).
+is given by its volume only (no height). A vessel with a rupture screening
+(``<vessel>.rupture.*``, :mod:`cvsim.rupture`) gets ``rupture.png``: the stress in the
+wall, the stress allowed at the metal's temperature and the margin between them.
 
 matplotlib (and the rest of cvsim) is imported only inside the functions
 (the command line starts faster) and only through its object interface with the Agg canvas: no
@@ -104,6 +106,8 @@ def plot_names(result: Result) -> list[str]:
                  and bool(np.any(result[f"{v}.liquid_fraction"] > 0.0))
                  for v in result.vessel_names()):
         names.append("level")
+    if any(f"{v}.rupture.stress" in columns for v in result.vessel_names()):
+        names.append("rupture")
     return names
 
 
@@ -115,8 +119,9 @@ def plot_run(result: Result, folder: Path, only=None) -> list[Path]:
     ``pressure.png``, ``temperature.png``, ``mass.png``, ``flow.png`` and,
     only when the result has ``<link>.opening`` columns, ``opening.png``; only
     with layered walls, ``wall.png``; only when a vessel holds liquid at some time,
-    ``level.png``. Returns the paths written, in that order. ``only``: the stems
-    to draw (of :func:`plot_names`), so that several processes can share the work.
+    ``level.png``; only with a rupture screening, ``rupture.png``. Returns the paths
+    written, in that order. ``only``: the stems to draw (of :func:`plot_names`), so
+    that several processes can share the work.
     """
     folder = Path(folder)
     folder.mkdir(parents=True, exist_ok=True)
@@ -129,6 +134,8 @@ def plot_run(result: Result, folder: Path, only=None) -> list[Path]:
         panels.append(("wall", _wall))
     if view.liquid:
         panels.append(("level", _level))
+    if view.rupture:
+        panels.append(("rupture", _rupture))
     wanted = set(plot_names(result) if only is None else only)
     written = []
     if "overview" in wanted:
@@ -140,9 +147,9 @@ def plot_run(result: Result, folder: Path, only=None) -> list[Path]:
 
 
 def _draw_overview(view: _View, panels, path: Path) -> Path:
-    """The overview holds the four quantities and the openings; walls and levels have
-    their own pages."""
-    overview = [p for p in panels if p[0] not in ("wall", "level")]
+    """The overview holds the four quantities and the openings; walls, levels and the
+    rupture screening have their own pages."""
+    overview = [p for p in panels if p[0] not in ("wall", "level", "rupture")]
     with _figure(OVERVIEW_SIZE, view) as fig:
         if view.openings:  # valve states under the four quantities, across the page
             grid = fig.subplot_mosaic([["pressure", "temperature"], ["mass", "flow"],
@@ -203,6 +210,8 @@ class _View:
         self.liquid = [v for v in self.vessels if n and f"{v}.liquid_fraction" in names
                        and bool(np.any(result[f"{v}.liquid_fraction"] > 0.0))]
         self.extra_temperatures = self._extra_temperatures(names)
+        # vessels with a rupture screening (cvsim.rupture)
+        self.rupture = [v for v in self.vessels if f"{v}.rupture.stress" in names]
         self.atmosphere_bar = net.atmosphere / BAR
         self.events = [(float(t) / self.time_size, str(text)) for t, text in result.events]
         self.limits = {v.name: v.limits for v in net.vessels if v.limits is not None}
@@ -228,7 +237,10 @@ class _View:
         out = {v: [] for v in self.vessels}
         by_length = sorted(self.vessels, key=len, reverse=True)
         for name in names:
-            if self.result.unit(name) != "K" or name.endswith(".source_temperature"):
+            if (self.result.unit(name) != "K" or name.endswith(".source_temperature")
+                    or name.endswith(".contents_temperature")
+                    or name.endswith(".vapour_temperature")   # the gas line itself
+                    or "wetted.node" in name):   # wall parts: inner and outer shown
                 continue
             owner = next((v for v in by_length if name.startswith(v + ".")), None)
             if (owner is not None and name != f"{owner}.temperature"
@@ -549,6 +561,33 @@ def _wall(ax, view: _View, overview: bool):
     ax.set_ylabel("Temperature [°C]")
     _finish(ax, view, "Temperatures through the wall (node 0: inside surface)", floor=1e-2,
             overview=overview)
+
+
+def _rupture(ax, view: _View, overview: bool):
+    """Rupture screening: the stress in the wall and the stress allowed at the metal's
+    temperature (MPa), the margin between them, and the time the margin first reaches
+    zero (the earliest time to rupture)."""
+    r = view.result
+    for v in view.rupture:
+        colour = view.colour[v]
+        stress = r[f"{v}.rupture.stress"] / 1e6
+        allowed = r[f"{v}.rupture.allowed_stress"] / 1e6
+        _line(ax, view, stress, f"{v}: stress in the wall", colour, lw=1.6)
+        _line(ax, view, allowed, f"{v}: allowed at the metal temperature", colour, lw=1.6,
+              ls=DASHES[1])
+        _line(ax, view, allowed - stress, f"{v}: margin (allowed - stress)", colour, lw=0.9,
+              ls=DASHES[2])
+        when = r.rupture.get(v, {}).get("rupture_time_s")
+        if when is not None:
+            x = when / view.time_size
+            ax.axvline(x, color=colour, lw=1.2, ls="-", alpha=0.6)
+            ax.annotate(f"{v}: rupture at {_fmt_time(when)}", (x, 0.97),
+                        xycoords=("data", "axes fraction"), fontsize=EVENT_PT + 1,
+                        color=colour, ha="right", va="top", rotation=90)
+    ax.axhline(0.0, color="0.4", lw=0.7)
+    ax.set_ylabel("Stress [MPa]")
+    _finish(ax, view, "Rupture screening: stress against the strength at temperature",
+            floor=1e-3, overview=overview)
 
 
 def _level(ax, view: _View, overview: bool):

@@ -57,6 +57,9 @@ PLOT_CAPTIONS = {
     "opening": "Opening of each valve.",
     "level": "Liquid level above each vessel's inside bottom, with its inside height "
              "(liquid-full); or the liquid's share of the volume.",
+    "rupture": "Rupture screening: the membrane stress in the wall, the stress allowed at "
+               "the metal's hottest temperature and the margin between them; a vertical "
+               "line marks the earliest time to rupture.",
 }
 
 #: Labels of the solver statistics (others are shown by their key).
@@ -791,7 +794,7 @@ MOST_COLUMNS = 11
 
 def render_sweep_report(title: str, scenario=None, parameters=None, rows=(), columns=None,
                         images=(), notes=(), provenance: dict | None = None,
-                        answer=(), keep: int = 1) -> str:
+                        answer=(), keep: int = 1, extra_sections=()) -> str:
     """The report of a study of many runs, with the look of the run report.
 
     Plain data in, so that any study module can use it:
@@ -813,6 +816,9 @@ def render_sweep_report(title: str, scenario=None, parameters=None, rows=(), col
                 bracket and margins): shown in the title block and the job statement
     keep        columns repeated in every part of a table split for width (the
                 values varied)
+    extra_sections  further :class:`~cvsim.htmldoc.Section` s of a kind of study
+                (an uncertainty study's results): one whose id is that of a
+                section below replaces it, the others follow the values varied
 
     Section ids: ``job`` (the answer: ``answer``), ``parameters``, ``cases``,
     ``plots``, ``notes``, ``software``, ``sign-off``; appendices ``inputs-given`` and
@@ -861,6 +867,8 @@ def render_sweep_report(title: str, scenario=None, parameters=None, rows=(), col
         Section("software", "Software and traceability", _software(provenance, "study")),
         Section("sign-off", "Check and review", sign_off(), new_page=False),
     ]
+    if extra_sections:
+        sections = _with_sections(sections, extra_sections)
     if scenario is not None:
         sections.append(Section("inputs-given", "Base scenario file as given",
                                 _given(scenario), appendix=True))
@@ -877,6 +885,16 @@ def render_sweep_report(title: str, scenario=None, parameters=None, rows=(), col
              ("Report written", _now())]
     return document(title=title, kind="cvsim calculation report: study of many runs",
                     summary_facts=head, sections=sections, footer_right=_head_right(provenance))
+
+
+def _with_sections(sections: list, extra) -> list:
+    """``sections`` with those of ``extra`` of the same id replaced, and the
+    others of ``extra`` placed after the values varied (before the cases)."""
+    given = {s.id: s for s in extra}
+    place = [s.id for s in sections].index("parameters") + 1
+    out = [given.pop(s.id, s) for s in sections]
+    out[place:place] = list(given.values())
+    return out
 
 
 def write_sweep_report(path, title: str, **kwargs) -> Path:

@@ -19,7 +19,9 @@ from .flow.exponent import EXPONENT_ASSUMPTION
 from .limits import check_vessel, first_time_at_or_below
 from .model import ACC_PER_LINK, Model
 from .network import Network
+from .rupture import add_rupture
 from .solve import RawRun
+from .zones import run_figures as zone_figures
 
 CAUTION = ("Screening estimate - verify against the governing codes (e.g. ASME Section VIII, "
            "API 520/521, ISO 4126, ISO 23251, local regulations) and have it reviewed by a "
@@ -41,6 +43,7 @@ class Result(Histories):
     device_figures: dict = field(default_factory=dict)  # per link: figures of its device
     checks: list = field(default_factory=list)      # self-checks (cvsim.checks.Check)
     contents: dict = field(default_factory=dict)  # per vessel: phase, liquid share, level
+    rupture: dict = field(default_factory=dict)   # per vessel: rupture screening figures
 
     @property
     def checks_failed(self) -> list:
@@ -133,6 +136,8 @@ class Result(Histories):
                 d["two_phase_from_s"] = float(t_all[first])
                 d["min_vapour_quality"] = float(np.nanmin(q))
             d.update(self.contents.get(n, {}))
+            d.update(self.rupture.get(n, {}))
+            d.update(zone_figures(self, n))
             out["vessels"][n] = d
         for link in self.network.links:
             n = link.name
@@ -183,6 +188,7 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
     totals, balance = _balances(model, raw)
     figures, warnings = _device_reports(model, raw)
     warnings = [w for _, term in model.heat_terms for w in term.warnings()] + warnings
+    warnings += [w for zv in model.zoned.values() for w in zv.warnings()]
     warnings = list(getattr(raw, "warnings", ())) + warnings  # the solver's (recording)
     result = Result(network=model.network, status=raw.status, message=raw.message,
                     columns=cols, data=data, fine_data=fine, events=list(raw.events),
@@ -190,7 +196,9 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
                     assumptions=assumptions(model), provenance=dict(provenance or {}),
                     warnings=warnings, device_figures=figures)
     result.warnings += still_rising(result)
+    _add_reviews(model, result)
     result.limits = check_limits(result)
+    add_rupture(result)
     result.contents, liquid_full = run_figures(model, result)
     result.warnings += liquid_full
     result.checks = self_checks(result)
@@ -269,6 +277,28 @@ def _device_reports(model: Model, raw: RawRun) -> tuple[dict, list[str]]:
             figures[link.name] = f
         warnings += [f"link '{link.name}': {text}" for text in w]
     return figures, warnings
+
+
+def _add_reviews(model: Model, result: Result) -> None:
+    """Figures and warnings that devices and controllers draw from the recorded
+    histories (a line's inventory, a fill's state of charge), merged into the
+    link's figures (their notes appended) and the run's warnings."""
+    if not len(result.data):
+        return
+    found = []
+    for link, d in zip(model.links, model.devices):
+        figures, warnings = d.review(result, link.name)
+        found.append((link.name, figures, [f"link '{link.name}': {w}" for w in warnings]))
+    for c in model.valve_controllers:
+        found.append(c.review(result))
+    for name, figures, warnings in found:
+        if figures:
+            mine = result.device_figures.setdefault(name, {})
+            notes = mine.get("notes", []) + figures.pop("notes", [])
+            mine.update(figures)
+            if notes:
+                mine["notes"] = notes
+        result.warnings += warnings
 
 
 def _balances(model: Model, raw: RawRun):
@@ -353,13 +383,17 @@ def assumptions(model: Model) -> list[str]:
         out.append(f"Fluid properties: {f.name} as an ideal gas with constant heat capacities "
                    f"(M = {fl.molar_mass * 1000:.4f} g/mol, cp = {fl.cp:.1f} J/(kg K), "
                    f"gamma = {fl.gamma:.4f}).")
-    out.append("Vessels are rigid and their contents well mixed (one uniform state per vessel).")
+    out.append("Vessels are rigid and their contents well mixed (one uniform state per vessel"
+               + ("; vessels held as separated zones: one state per zone" if model.zoned else "")
+               + ").")
     out.append("A stream leaving a vessel carries the specific enthalpy of what it draws: the "
                "vessel's contents while single phase; with two phases present, saturated "
                "vapour"
                + (" (saturated liquid through links that draw liquid: "
                   + ", ".join(k.name for k in net.links if k.draws == "liquid") + ")"
-                  if any(k.draws == "liquid" for k in net.links) else "") + ".")
+                  if any(k.draws == "liquid" for k in net.links) else "")
+               + "; an outlet draws the mixture itself as the level comes within 2 % of the "
+               "volume of it (a regularisation, common practice, no source: cvsim.outlets).")
     kinds = {type(link.device).__name__ for link in net.links}
     if "Orifice" in kinds:
         models = sorted({link.device.flow_model for link in net.links
@@ -383,8 +417,11 @@ def assumptions(model: Model) -> list[str]:
             by_class.setdefault(type(d), []).append(link.device)
     for cls, defs in by_class.items():
         out += cls.assumptions(defs)
-    if model.controllers:
-        out += type(model.controllers[0]).assumptions()
+    sequences = [c for c in model.controllers if c.kind == "sequence"]
+    if sequences:
+        out += type(sequences[0]).assumptions()
+    if model.valve_controllers:
+        out += model.valve_controllers[0].assumptions([c.d for c in model.valve_controllers])
     if not any(v.heat for v in net.vessels):
         out.append("No heat exchange with the vessel walls or surroundings (adiabatic vessels): "
                    "walls would damp the temperature swings.")
@@ -394,4 +431,5 @@ def assumptions(model: Model) -> list[str]:
             out.append("Heat terms as stated per vessel; no wall heat capacity unless a wall "
                        "is modelled.")
         out += [a for term in terms for a in term.assumptions()]
+    out += [a for zv in model.zoned.values() for a in zv.assumptions()]
     return out

@@ -151,6 +151,13 @@ class SequenceController:
         j = self.active(discrete)
         return float(j + 1) if j < self.n else 0.0
 
+    def columns(self) -> list[tuple[str, str, str]]:
+        """The sequence's history column: its active step."""
+        return [(f"{self.name}.step", "-", "sequence")]
+
+    def values(self, t, y, snap, segment) -> list[float]:
+        return [self.observe(segment.discrete)]
+
     @staticmethod
     def assumptions() -> list[str]:
         return ["Sequences open their links one at a time; a link waiting for its step, or "

@@ -93,6 +93,10 @@ DIMENSIONS: dict[str, Dimension] = {d.name: d for d in (
     Dimension("molar_mass", "a molar mass", "kg/mol", "kg/mol", "g/mol", "g/mol, kg/mol"),
     Dimension("density", "a density", "kg/m**3", "kg/m3", "kg/m3", "kg/m3, g/L, lb/ft3"),
     Dimension("velocity", "a velocity", "m/s", "m/s", "m/s", "m/s, km/h, ft/s"),
+    Dimension("pressure_rate", "a pressure-rise rate", "Pa/s", "Pa/s", "MPa/min",
+              "Pa/s, kPa/s, bar/s, bar/min, MPa/min, psi/s"),
+    Dimension("viscosity", "a dynamic viscosity", "Pa*s", "Pa s", "cP", "Pa s, mPa s, cP"),
+    Dimension("stress", "a stress", "Pa", "Pa", "MPa", "MPa, N/mm2, kPa, Pa, ksi, psi"),
     Dimension("dimensionless", "a plain number", "", "-", "", "a plain number"),
     Dimension("fraction", "a fraction", "", "-", "%", "a plain number (0.07) or a percentage (7 %)"),
 )}
@@ -352,6 +356,9 @@ def read_quantity(text: str | float | int, dimension: str, *,
         value = float(quantity.to(target).magnitude)
 
     note = ""
+    if reference is not None and dim.name == "stress":
+        raise UnitsError(f"{_quote(text)}: a stress has no gauge or absolute reference; "
+                         f"write it in MPa, N/mm2, ksi or psi")
     if reference == "gauge":
         value += atmosphere
         note = f"gauge: atmosphere {atmosphere:.6g} Pa added"
@@ -371,6 +378,46 @@ def parse_quantity(text: str | float | int, dimension: str, *,
     0.01
     """
     return read_quantity(text, dimension, atmosphere=atmosphere).value
+
+
+def read_per_quantity(text: str | float | int, dimension: str) -> Reading:
+    """Read a value per unit of a quantity, such as a controller's gain: travel per unit
+    of the measured quantity, ``"10 %/bar"``, ``"0.05 /K"``, ``"2 %/(MPa/min)"``.
+
+    Returns the value in [1 / SI unit of ``dimension``] (``"10 %/bar"`` -> 1e-6 per Pa).
+    Degrees in the unit are differences (``%/degC`` is ``%/K``).
+
+    >>> round(read_per_quantity("10 %/bar", "pressure").value, 15)
+    1e-06
+    """
+    dim = DIMENSIONS.get(dimension)
+    if dim is None:
+        raise ValueError(f"unknown dimension {dimension!r}")
+    per = {"pressure": "bar", "temperature": "K", "mass_flow": "(kg/h)",
+           "pressure_rate": "(MPa/min)"}.get(dimension, dim.example)
+    example = f'"10 %/{per}"' if per else '"0.1"'
+    split = split_quantity(text) if isinstance(text, str) else None
+    if split is None or not split[1].strip():
+        raise UnitsError(f"cannot read {_quote(text)} as a value per {dim.noun[2:].strip()}: "
+                         f"write a number and a unit, e.g. {example}")
+    number, unit = split
+    unit = unit.strip()
+    if unit.startswith("/"):
+        unit = "1" + unit
+    expression = _pint_expression(unit.replace("%", "percent"), offset_ok=False)
+    ureg = registry()
+    try:
+        units = ureg.parse_units(expression)
+    except _PARSE_ERRORS as exc:
+        raise UnitsError(f"unknown unit '{unit}' in {_quote(text)}; write e.g. {example}"
+                         ) from exc
+    target = 1 / ureg.parse_units(dim.si) if dim.si else ureg.dimensionless
+    quantity = ureg.Quantity(number, units)
+    if quantity.dimensionality != target.dimensionality:
+        raise UnitsError(f"{_quote(text)} is not a value per {dim.noun[2:].strip()} "
+                         f"({dim.symbol}); write e.g. {example}")
+    return Reading(float(quantity.to(target).magnitude), unit, None,
+                   f"per {dim.symbol}")
 
 
 def _describe(quantity, number: float, unit: str) -> str:
@@ -557,6 +604,7 @@ def standard_atmosphere(altitude: float) -> float:
 
 __all__ = [
     "ATMOSPHERE", "DIMENSIONS", "Dimension", "FlowBasis", "Reading", "STANDARD_BASES",
-    "UnitsError", "parse_quantity", "parse_standard_flow", "read_quantity", "registry",
+    "UnitsError", "parse_quantity", "parse_standard_flow", "read_per_quantity",
+    "read_quantity", "registry",
     "split_quantity", "standard_atmosphere", "standard_flow_unit",
 ]

@@ -50,3 +50,24 @@ run: {end: 1 h}
 @pytest.fixture
 def air14():
     return ideal_air(1.4)
+
+
+#: a small vented bottle: a run of about a second, for tests of files and processes
+SMALL = """\
+title: small vented bottle
+fluid: Nitrogen
+vessels:
+  tank: {volume: 0.01 m3, initial: {pressure: 20 barg, temperature: 15 degC}}
+reservoirs:
+  air: {pressure: 1 atm, temperature: 15 degC}
+links:
+  vent: {from: tank, to: air, device: orifice, diameter: 3 mm, discharge_coefficient: 0.8}
+run: {end: 10 s, record_every: 1 s}
+"""
+
+
+@pytest.fixture
+def small(tmp_path):
+    path = tmp_path / "small.yaml"
+    path.write_text(SMALL)
+    return path

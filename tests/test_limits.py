@@ -11,7 +11,7 @@ from cvsim.flow.nozzle import critical_flow_function
 from cvsim.limits import ACCUMULATION, allowed_pressure, check_vessel, guideline_target
 from cvsim.scenario import load_scenario_text
 
-from conftest import M_AIR, R_U, blowdown_network, ideal_air, orifice_area
+from conftest import M_AIR, R_U, blowdown_network, orifice_area
 
 ATM = 101325.0
 PSI = 6894.757

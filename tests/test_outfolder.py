@@ -14,24 +14,6 @@ from cvsim import outfolder
 from cvsim.cli import main
 from cvsim.errors import OutputError
 
-SMALL = """\
-title: small vented bottle
-fluid: Nitrogen
-vessels:
-  tank: {volume: 0.01 m3, initial: {pressure: 20 barg, temperature: 15 degC}}
-reservoirs:
-  air: {pressure: 1 atm, temperature: 15 degC}
-links:
-  vent: {from: tank, to: air, device: orifice, diameter: 3 mm, discharge_coefficient: 0.8}
-run: {end: 10 s, record_every: 1 s}
-"""
-
-
-@pytest.fixture
-def small(tmp_path):
-    path = tmp_path / "small.yaml"
-    path.write_text(SMALL)
-    return path
 
 
 def run(scenario, out, *extra):

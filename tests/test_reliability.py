@@ -16,25 +16,8 @@ from cvsim.cli import main
 from cvsim.limits import REACHED_RTOL, first_time_at_or_below
 from cvsim.scenario import load_scenario_text
 from cvsim.scenario import tree
+from conftest import SMALL
 
-SMALL = """\
-title: small vented bottle
-fluid: Nitrogen
-vessels:
-  tank: {volume: 0.01 m3, initial: {pressure: 20 barg, temperature: 15 degC}}
-reservoirs:
-  air: {pressure: 1 atm, temperature: 15 degC}
-links:
-  vent: {from: tank, to: air, device: orifice, diameter: 3 mm, discharge_coefficient: 0.8}
-run: {end: 10 s, record_every: 1 s}
-"""
-
-
-@pytest.fixture
-def small(tmp_path):
-    path = tmp_path / "small.yaml"
-    path.write_text(SMALL)
-    return path
 
 
 def no_traceback(text: str) -> bool:
@@ -96,7 +79,7 @@ def test_a_sweep_case_past_its_time_limit_fails_alone(small):
 
 
 def test_case_time_limit_option_reads_times_and_none(small, capsys):
-    from cvsim.study.cli import _time_limit
+    from cvsim.study.options import read_time_limit as _time_limit
     assert _time_limit("2 min") == 120.0
     assert _time_limit("none") is None
     assert main(["sweep", str(small), "--vary", "links.vent.diameter=2 mm, 3 mm",

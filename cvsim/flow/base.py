@@ -109,6 +109,15 @@ class Device:
         ``(time [s], key, new value)``."""
         return {}, []
 
+    def bind(self, model) -> None:
+        """Called once by the model after every device is built (a device that needs
+        to know the nodes it joins, e.g. their volumes, reads them here)."""
+
+    def review(self, result, name: str) -> tuple[dict, list[str]]:
+        """Summary figures and warnings from the recorded histories of the whole run
+        (``result``: the :class:`cvsim.result.Result`; ``name``: the link's name)."""
+        return {}, []
+
     @classmethod
     def assumptions(cls, definitions: list) -> list[str]:
         """Model choices of this device kind in words, for the assumption register."""

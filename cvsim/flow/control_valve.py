@@ -355,22 +355,31 @@ class ControlValveDevice(Device):
 
     def breakpoints(self):
         sig = self.d.opening
+        if sig is None:   # moved by a controller
+            return ()
         kinks = ()
         if self.d.characteristic == "equal-percentage":
             kinks = (equal_percentage_joint(self.d.rangeability),)
         return tuple(sig.breakpoints) + level_crossings(sig, kinks)
 
     def schedule(self):
-        return schedule_texts(self.d.opening)
+        return [] if self.d.opening is None else schedule_texts(self.d.opening)
+
+    def travel(self, t, segment) -> float:
+        """Valve travel [-] at t: from its schedule, or from the controller that moves it
+        (``opening`` None: :meth:`cvsim.model.Segment.driven_opening`)."""
+        if self.d.opening is None:
+            return segment.driven_opening(self.index)
+        return segment.signal(self.d.opening, t)
 
     def opening(self, t, snapshot, segment) -> float:
-        return clip01(segment.signal(self.d.opening, t))
+        return clip01(self.travel(t, segment))
 
     def flow(self, t, a, b, segment) -> Flow:
         if a.p == b.p:
             return NO_FLOW
         d = self.d
-        f = relative_flow_coefficient(segment.signal(d.opening, t), d.characteristic,
+        f = relative_flow_coefficient(self.travel(t, segment), d.characteristic,
                                       d.rangeability)
         if f <= 0.0:
             return NO_FLOW

@@ -63,6 +63,7 @@ from functools import lru_cache
 
 import numpy as np
 
+from ..numerics import root_on_bracket
 from .geometry import CROWN_RATIO, HEADS, KNUCKLE_RATIO, head
 
 #: Gauss-Legendre points on each piece of a head's profile
@@ -231,34 +232,13 @@ class _Ellipse:
 
 def _monotone_root(fn, lo: float, hi: float, sign: float, tol: float) -> float:
     """Root of a monotone function on [lo, hi] (``sign`` +1 increasing, -1 decreasing),
-    stopped on |fn| <= tol (false position with the Illinois step, bisection guard)."""
+    stopped on |fn| <= tol (:func:`cvsim.numerics.root_on_bracket`)."""
     f_lo, f_hi = sign * fn(lo), sign * fn(hi)
     if f_lo >= 0.0:
         return lo
     if f_hi <= 0.0:
         return hi
-    side = 0
-    x = lo
-    for _ in range(200):
-        x = lo - f_lo * (hi - lo) / (f_hi - f_lo)
-        if not lo < x < hi:
-            x = 0.5 * (lo + hi)
-        f = sign * fn(x)
-        if abs(f) <= tol:
-            return x
-        if f > 0.0:
-            hi, f_hi = x, f
-            if side == 1:
-                f_lo *= 0.5
-            side = 1
-        else:
-            lo, f_lo = x, f
-            if side == -1:
-                f_hi *= 0.5
-            side = -1
-        if hi - lo <= 4e-16 * max(abs(hi), abs(lo), 1.0):
-            break
-    return x
+    return root_on_bracket(lambda x: sign * fn(x), lo, hi, f_lo, f_hi, tol)
 
 
 def _head_pieces(D: float, kind: str, t: float) -> list:

@@ -49,11 +49,17 @@ class HeatComponent:
     * :meth:`bind` is called once the model's links exist;
     * :meth:`source_temperature`: the temperature [K] of what gives the heat to the
       contents (a wall's inner surface, the surroundings), where the term has one
-      (``has_source``); the self-checks verify that heat flows from hot to cold.
+      (``has_source``); the self-checks verify that heat flows from hot to cold;
+    * in a vessel held as separated zones (:mod:`cvsim.zones`) ``gas`` is a
+      :class:`cvsim.zones.ZonedState` and ``liquid_row`` the row of the liquid zone's
+      internal energy: the term adds there the part of its heat that goes into the
+      liquid (the rest goes into the vapour zone).
     """
 
     n_states = 0
     offset = 0
+    #: row of the liquid zone's internal energy in a vessel of separated zones
+    liquid_row = None
     #: the term can say where its heat comes from (:meth:`source_temperature`)
     has_source = False
 
@@ -122,7 +128,10 @@ class HeatLoadTerm(HeatComponent):
         return self.d.rate.breakpoints
 
     def evaluate(self, t, gas, own, segment, dydt) -> float:
-        return segment.signal(self.d.rate, t)
+        q = segment.signal(self.d.rate, t)
+        if self.liquid_row is not None and gas.liquid is not None:
+            dydt[self.liquid_row] += q   # separated zones: a heater in the liquid
+        return q
 
 
 class AmbientExchangeTerm(HeatComponent):
@@ -137,4 +146,11 @@ class AmbientExchangeTerm(HeatComponent):
         return self.d.ambient.breakpoints
 
     def evaluate(self, t, gas, own, segment, dydt) -> float:
-        return ambient_exchange(self.d.ua, segment.signal(self.d.ambient, t), gas.T)
+        T_a = segment.signal(self.d.ambient, t)
+        if self.liquid_row is not None and gas.liquid is not None:
+            # separated zones: each zone through its share of the inside area
+            phi = gas.wetted_share
+            q_l = ambient_exchange(phi * self.d.ua, T_a, gas.liquid.T)
+            dydt[self.liquid_row] += q_l
+            return q_l + ambient_exchange((1.0 - phi) * self.d.ua, T_a, gas.T)
+        return ambient_exchange(self.d.ua, T_a, gas.T)

@@ -675,8 +675,11 @@ class GasFireTerm(HeatComponent):
         f = self.d.fire
         if segment.midpoint < f.starts_at:
             return 0.0
-        return api521_pool_fire_heat(self.fire_area.area(gas.liquid_fraction),
-                                     f.environment_factor, f.drainage)
+        q = api521_pool_fire_heat(self.fire_area.area(gas.liquid_fraction),
+                                  f.environment_factor, f.drainage)
+        if self.liquid_row is not None and gas.liquid is not None:
+            dydt[self.liquid_row] += q   # separated zones: the wetted-surface heat
+        return q
 
     def columns(self, vessel: str) -> list[tuple[str, str, str]]:
         return [(f"{vessel}.fire.wetted_area", "m2", "heat")]

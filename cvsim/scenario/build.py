@@ -15,6 +15,7 @@ from ..errors import Problem, ScenarioError
 from ..network import FluidSpec, Link, Network, RunSettings, StopCondition
 from . import properties, schema, tree
 from . import vessels as vessels_
+from .controllers import build_controller, build_fill
 from .sequences import build_sequence
 from .service import check_liquid_service
 from .spec import BAD, At, Context, EchoRow
@@ -30,6 +31,8 @@ class Scenario:
     source_text  the text read (before overrides)
     sha256       hex digest of the file's bytes (of the text encoded as UTF-8)
     overrides    the overrides applied, key path -> value as given
+    uncertainty  the ``uncertainty:`` section (:class:`~cvsim.distributions.UncertaintySpec`,
+                 SI) or ``None``; runs do not use it, ``cvsim uncertainty`` does
     """
 
     network: Network
@@ -38,6 +41,7 @@ class Scenario:
     source_text: str
     sha256: str
     overrides: dict = field(default_factory=dict)
+    uncertainty: object = None
 
     @property
     def warnings(self) -> list[str]:
@@ -144,8 +148,10 @@ def _load(text: str, source_name: str, sha256: str, overrides: dict | None) -> S
         ctx.echo[:] = _merge_echo(ctx.echo[:read_rows], ctx.echo[read_rows:])
     if ctx.problems:
         raise ScenarioError(_ordered(ctx.problems), source_name)
+    from .uncertainty import build as build_uncertainty
     return Scenario(network=network, echo=tuple(ctx.echo), source_name=source_name,
-                    source_text=text, sha256=sha256, overrides=dict(overrides or {}))
+                    source_text=text, sha256=sha256, overrides=dict(overrides or {}),
+                    uncertainty=build_uncertainty(values.get("uncertainty")))
 
 
 def _merge_echo(read: list[EchoRow], built: list[EchoRow]) -> list[EchoRow]:
@@ -189,9 +195,17 @@ def build_network(values, ctx: Context) -> Network | None:
             ctx.record(At(f"vessels.{vessel.name}", values["vessels"][vessel.name].at.line),
                        "", None, "", "warning: no link; only heat terms change its contents")
     sequences = tuple(build_sequence(name, v) for name, v in (values["sequences"] or {}).items())
+    controllers = [build_controller(name, v) for name, v in (values["controllers"] or {}).items()]
+    by_name = {v.name: v for v in vessels}
+    for name, v in (values["fills"] or {}).items():
+        controllers.append(build_fill(name, v, by_name[v["receiver"]], fluid, values["run"]["end"],
+                                      ctx.atmosphere, ctx, v.at))
+    if ctx.problems:
+        return None
     network = Network(title=values["title"], fluid=fluid, vessels=vessels,
                       reservoirs=reservoirs, links=tuple(links), run=_run(values["run"]),
-                      atmosphere=ctx.atmosphere, sequences=sequences)
+                      atmosphere=ctx.atmosphere, sequences=sequences,
+                      controllers=tuple(controllers))
     return network if not ctx.problems else None
 
 

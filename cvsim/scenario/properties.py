@@ -79,6 +79,20 @@ def basis_density(fluid: FluidSpec, pressure: float, temperature: float) -> floa
     return rho
 
 
+def density(fluid: FluidSpec, pressure: float, temperature: float) -> float:
+    """Density [kg/m3] of the fluid at (``pressure`` [Pa], ``temperature`` [K]), any phase:
+    CoolProp HEOS, or p M / (R T) for the ideal-gas model. Raises :class:`FluidError`
+    where CoolProp has no state."""
+    if fluid.model == "ideal-gas":
+        M = fluid.molar_mass if fluid.molar_mass is not None else molar_mass(fluid.name)
+        return pressure * M / (R * temperature)
+    try:
+        return _coolprop().PropsSI("D", "P", pressure, "T", temperature, fluid.name)
+    except ValueError as exc:
+        raise FluidError(f"no density for {fluid.name} at {pressure:g} Pa, {temperature:g} K: "
+                         f"{exc}") from None
+
+
 def saturation(fluid: FluidSpec, pressure: float | None = None,
                temperature: float | None = None) -> tuple[float, float]:
     """(pressure [Pa], temperature [K]) on the saturation line of a real fluid, from one

@@ -17,10 +17,13 @@ from . import valves as _valves  # noqa: F401  (registers the valves)
 from .reference import DECISIONS, EXAMPLE, INTRO, WRITING_VALUES
 from .registry import DEVICES
 from .sequences import SEQUENCE, check_sequences
+from .uncertainty import UNCERTAINTY
 from .spec import (BAD, At, Choice, Entries, Field, Kind, Node, OneOrMore, Quantity, Section,
                    Sub, Text, as_text, read_section)
 from .vessels import RESERVOIR, VESSEL
 from . import walls as _walls  # noqa: E402,F401  (registers walls and fire exposure)
+from . import lines as _lines  # noqa: E402,F401  (registers lines and regulators)
+from .controllers import CONTROLLER, FILL, check_controllers  # noqa: E402
 
 # ------------------------------------------------------------ special kinds
 
@@ -223,6 +226,7 @@ def _check_top(values, ctx) -> None:
                 ctx.problem(at, f"'{name}' names both a vessel and a reservoir; node names "
                             "must be unique")
     check_sequences(values, ctx)
+    check_controllers(values, ctx)
 
 
 TOP = Section(
@@ -247,7 +251,14 @@ TOP = Section(
         Field("links", Entries(LINK), "The links, by name."),
         Field("sequences", Entries(SEQUENCE),
               "Links opened one after another (cascade charging), by name."),
+        Field("controllers", Entries(CONTROLLER),
+              "Controllers that move a valve to hold a measured quantity, by name."),
+        Field("fills", Entries(FILL),
+              "Fuelling fills at a controlled pressure ramp, by name."),
         Field("run", Sub(RUN), "Run settings.", required=True),
+        # read last: its inputs name keys read above (their units, their values)
+        Field("uncertainty", Sub(UNCERTAINTY),
+              "Uncertain inputs for `cvsim uncertainty`; a run uses the values stated."),
     ),
     checks=(_check_top,),
 )

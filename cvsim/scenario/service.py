@@ -14,11 +14,11 @@ two-phase during a run is handled by the devices at run time.
 from __future__ import annotations
 
 from ..errors import CvsimError
-from ..network import ControlValve, Orifice
+from ..network import ControlValve, Line, Orifice
 from .registry import LIQUID_SERVICE
 
 #: device kinds that pass reverse flow (from their ``to`` node)
-REVERSIBLE = (Orifice, ControlValve)
+REVERSIBLE = (Orifice, ControlValve, Line)
 
 
 def node_phases(fluid_spec, vessels, reservoirs) -> dict[str, str]:

@@ -129,9 +129,20 @@ def _check_control_valve(values, ctx) -> None:
             values.get("characteristic") != "equal-percentage":
         ctx.problem(values.where["rangeability"],
                     "'rangeability' applies to 'characteristic: equal-percentage' only")
+    if values.get("opening") is not None and values.get("stroke") is not None:
+        ctx.problem(values.where["stroke"], f"give only one of 'opening' or 'stroke' in "
+                    f"{values.at.key}")
 
 
-def _build_control_valve(values, ctx) -> ControlValve:
+def valve_moved_by_controller(values) -> bool:
+    """True when a control valve's keys give neither ``opening`` nor ``stroke``: a
+    controller moves it (checked against the controllers by the top-level checks)."""
+    return values.get("opening") is None and values.get("stroke") is None
+
+
+def build_control_valve(values, ctx) -> ControlValve:
+    """The :class:`~cvsim.network.ControlValve` of a control valve's keys (also the
+    valve of a line); ``opening`` None when a controller moves it."""
     if values["Kv"] is not None:
         kv = values["Kv"]
     else:
@@ -140,6 +151,8 @@ def _build_control_valve(values, ctx) -> ControlValve:
                    "Kv = 0.865 Cv (IEC 60534-2-1)")
     if values["opening"] is not None:
         opening = values["opening"]
+    elif values["stroke"] is None:
+        opening = None   # moved by a controller
     else:
         st = values["stroke"]
         opening = stroke_table(st["opens_at"], st["closes_at"], st["stroke_time"],
@@ -191,14 +204,16 @@ CONTROL_VALVE = register_device(Variant(
             Field("rangeability", Quantity("dimensionless", above=1.0),
                   "Rangeability R of `equal-percentage` (f = R^(s-1)); not given: 50."),
             Field("opening", Quantity("fraction", table=True, at_least=0.0, at_most=1.0),
-                  "Travel, 0 (shut) to 100 % (fully open), constant or a table in time."),
+                  "Travel, 0 (shut) to 100 % (fully open), constant or a table in time. "
+                  "Give `opening` or `stroke`, or neither when a controller or a fill moves "
+                  "the valve."),
             Field("stroke", Sub(STROKE), "Opening schedule by times and stroke time, "
                   "instead of `opening`."),
         ),
-        one_of=(("Cv", "Kv"), ("opening", "stroke")),
+        one_of=(("Cv", "Kv"),),
         checks=(_check_control_valve,),
     ),
-    _build_control_valve,
+    build_control_valve,
 ))
 
 # -------------------------------------------------------------- relief valve
@@ -406,7 +421,14 @@ CHECK_VALVE = register_device(Variant(
 ))
 
 __all__ = ["BURSTING_DISC", "CHECK_VALVE", "CONTROL_VALVE", "PressureDifference",
-           "RELIEF_VALVE", "ShareOrDifference"]
+           "RELIEF_VALVE", "ShareOrDifference", "build_control_valve", "share_or_difference",
+           "valve_moved_by_controller"]
+
+
+def share_or_difference(value, p_gauge: float) -> float:
+    """[Pa] a :class:`ShareOrDifference` value as a pressure difference, a share being
+    of ``p_gauge`` [Pa]."""
+    return _amount(value, p_gauge)
 
 
 # ------------------------------------------------------------ liquid service

@@ -11,6 +11,7 @@ from ..heat import geometry as geo
 from ..network import AmbientExchange, Geometry, HeatLoad, InitialState, Reservoir, Vessel
 from . import properties
 from .limits import LIMITS_FIELD, build_limits
+from .phases import PHASES, build_phases, check_phases
 from .registry import HEAT_TERMS, SHAPES, HeatTermKind, register_heat_term, register_shape
 from .spec import BAD, Choice, Field, Quantity, Section, Sub, Variant
 
@@ -193,6 +194,7 @@ def build_initial(values, at, ctx) -> InitialState:
 
 
 def _check_vessel(values, ctx) -> None:
+    check_phases(values.get("phases"), values, ctx)
     heat = values.get("heat")
     if not isinstance(heat, dict):
         return
@@ -212,6 +214,8 @@ VESSEL = Section(
         Field("shape", Sub(SHAPE), "Inside shape; gives the volume, inner area and height."),
         Field("initial", Sub(INITIAL), "Initial state.", required=True),
         Field("heat", Sub(HEAT), "Heat terms; none given: adiabatic."),
+        Field("phases", Sub(PHASES), "How vapour and liquid are held: one equilibrium "
+              "state (default) or separated zones at their own temperatures."),
         LIMITS_FIELD,
     ),
     one_of=(("volume", "shape"),),
@@ -250,7 +254,8 @@ def build_vessel(name: str, values, ctx) -> Vessel:
                   for key, kind in HEAT_TERMS.items() if heat.get(key) is not None)
     return Vessel(name=name, geometry=geometry,
                   initial=build_initial(initial, values.where["initial"], ctx), heat=terms,
-                  limits=build_limits(values["limits"], ctx))
+                  limits=build_limits(values["limits"], ctx, terms),
+                  zones=build_phases(values["phases"], values.where["phases"], ctx))
 
 
 def build_reservoir(name: str, values, ctx) -> Reservoir:

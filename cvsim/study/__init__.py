@@ -10,6 +10,11 @@ lazily by ``cvsim/__init__.py``). Inside, one job per module:
     parallel.py  local worker processes or a Dask cluster
     plot.py      the sweep plot (outcomes against the varied value)
     cli.py       ``cvsim sweep``, ``cvsim find``, ``cvsim outcomes``
+    uncertainty.py   uncertainty studies (:func:`cvsim.uncertainty`), with
+                 sampling.py (designs), statistics.py (percentiles, probabilities),
+                 sensitivity.py (rank correlations, Sobol' indices),
+                 uncertainty_files.py, uncertainty_plot.py, uncertainty_report.py
+                 and uncertainty_cli.py (``cvsim uncertainty``)
 
 A sub-package rather than ``cvsim/sweep.py``: a module ``cvsim.sweep`` and the
 function ``cvsim.sweep`` cannot share a name (importing the module would

@@ -1,4 +1,5 @@
-"""Command line for studies: ``cvsim sweep``, ``cvsim find``, ``cvsim outcomes``.
+"""Command line for studies: ``cvsim sweep``, ``cvsim find``, ``cvsim outcomes``
+(and ``cvsim uncertainty``, from :mod:`cvsim.study.uncertainty_cli`).
 
 Kept apart from :mod:`cvsim.cli` (which adds these commands to its parser) so
 that the run commands and the study commands can change independently.
@@ -9,6 +10,9 @@ from __future__ import annotations
 import argparse
 import sys
 from pathlib import Path
+
+from .options import (common_options, decimal_comma_option, progress_wanted,
+                      read_time_limit)
 
 SWEEP_HELP = """\
 Run a scenario for many values of one or more of its keys, in parallel, and
@@ -69,37 +73,13 @@ examples:
 """
 
 
-def _workers(p: argparse.ArgumentParser) -> None:
-    g = p.add_mutually_exclusive_group()
-    g.add_argument("--workers", type=int, default=None, metavar="N",
-                   help="local worker processes (default: one per CPU)")
-    g.add_argument("--cluster", default=None, metavar="ADDRESS",
-                   help="run on a Dask cluster, e.g. tcp://host:8786 (needs the cluster "
-                   "extra: pip install -e '.[cluster]' in the cvsim checkout, "
-                   "and cvsim on every worker)")
-
-
-def _common(p: argparse.ArgumentParser) -> None:
-    p.add_argument("scenario", type=Path, help="scenario file (YAML)")
-    p.add_argument("--set", dest="overrides", action="append", default=[], metavar="KEY=VALUE",
-                   help="change one scenario value in every case (repeatable)")
-    _workers(p)
-    p.add_argument("--out", type=Path, default=None, help="output folder")
-    p.add_argument("--no-plots", action="store_true", help="skip the PNG plots")
-    p.add_argument("--report", action="store_true",
-                   help="also write report.html, the calculation report of the study")
-    p.add_argument("--quiet", action="store_true", help="no progress bar, no table on screen")
-    p.add_argument("--decimal-comma", action="store_true",
-                   help="CSV files for spreadsheets that expect a decimal comma: ';' between "
-                   "fields, numbers written 1,5")
-
-
 def add_study_commands(sub) -> None:
     """Add ``sweep``, ``find`` and ``outcomes`` to the command line's sub-parsers."""
     fmt = argparse.RawDescriptionHelpFormatter
     s = sub.add_parser("sweep", help="run a scenario for many values of its keys, in parallel",
                        description=SWEEP_HELP, epilog=SWEEP_EXAMPLES, formatter_class=fmt)
-    _common(s)
+    common_options(s)
+    decimal_comma_option(s)
     s.add_argument("--vary", action="append", default=[], metavar="KEY=VALUES", required=True,
                    help="a key path and its values (repeatable: a grid)")
     s.add_argument("--plot", dest="plot", action="append", default=None, metavar="OUTCOME",
@@ -111,7 +91,8 @@ def add_study_commands(sub) -> None:
 
     f = sub.add_parser("find", help="find the smallest or largest value that meets requirements",
                        description=FIND_HELP, epilog=FIND_EXAMPLES, formatter_class=fmt)
-    _common(f)
+    common_options(f)
+    decimal_comma_option(f)
     f.add_argument("--vary", required=True, metavar="KEY=RANGE",
                    help="the key to search and its range, e.g. "
                    "links.orifice.diameter='10 mm:30 mm' (':COUNT' sets the scan points; "
@@ -130,32 +111,13 @@ def add_study_commands(sub) -> None:
     f.add_argument("--no-run", action="store_true",
                    help="do not write the full outputs of a run at the answer (run/)")
 
+    from .uncertainty_cli import add_uncertainty_command
+    add_uncertainty_command(sub)
+
     o = sub.add_parser("outcomes", help="list the outcome names of a scenario (for --plot, --meet)",
                        description="List the outcomes a run of the scenario gives, with their "
                        "units: the names sweep columns, --plot and --meet use.")
     o.add_argument("scenario", type=Path, help="scenario file (YAML)")
-
-
-def _progress(args) -> bool:
-    return not args.quiet and sys.stderr.isatty()
-
-
-def _time_limit(text: str | None) -> float | None:
-    from ..errors import StudyError
-    from ..units import UnitsError, parse_quantity
-    from .sweep import CASE_TIME_LIMIT
-    if text is None:
-        return CASE_TIME_LIMIT
-    if text.strip().lower() in ("none", "off", "no"):
-        return None
-    try:
-        value = parse_quantity(text, "time")
-    except UnitsError as exc:
-        raise StudyError(f"--case-time-limit: {exc}; e.g. '30 min' or 'none'") from None
-    if not value > 0:
-        raise StudyError(f"--case-time-limit: give a time above zero (e.g. '30 min') or "
-                         f"'none', not '{text}'")
-    return value
 
 
 def cmd_sweep(args) -> int:
@@ -165,14 +127,14 @@ def cmd_sweep(args) -> int:
     from .sweep import Interrupted, check_distinct, parse_vary, sweep
     params = [parse_vary(v) for v in args.vary]
     check_distinct(params)
-    limit = _time_limit(args.case_time_limit)
+    limit = read_time_limit(args.case_time_limit)
     out = args.out or Path("results") / f"{args.scenario.stem}-sweep"
     stopped = None
     with claim(out) as folder:  # checked and locked before any case runs
         try:
             result = sweep(args.scenario, {p.key: p.spec for p in params},
                            workers=args.workers, cluster=args.cluster,
-                           progress=_progress(args), overrides=parse_overrides(args.overrides),
+                           progress=progress_wanted(args), overrides=parse_overrides(args.overrides),
                            plot=args.plot, case_time_limit=limit)
         except Interrupted as stop:
             if stop.result is None:
@@ -225,7 +187,7 @@ def cmd_find(args) -> int:
         result = seek(args.scenario, {param.key: param.spec}, meet=args.meet or "limits",
                       goal=args.goal, workers=args.workers, cluster=args.cluster,
                       tolerance=tolerance, max_runs=args.max_runs or MAX_RUNS,
-                      progress=_progress(args), overrides=parse_overrides(args.overrides))
+                      progress=progress_wanted(args), overrides=parse_overrides(args.overrides))
         result.cases.decimal_comma = args.decimal_comma
         result.write(out, plots=not args.no_plots, run=not args.no_run,
                      decimal_comma=args.decimal_comma)
@@ -292,4 +254,10 @@ def cmd_outcomes(args) -> int:
     return 0
 
 
-STUDY_COMMANDS = {"sweep": cmd_sweep, "find": cmd_find, "outcomes": cmd_outcomes}
+def cmd_uncertainty(args) -> int:
+    from .uncertainty_cli import cmd_uncertainty as command
+    return command(args)
+
+
+STUDY_COMMANDS = {"sweep": cmd_sweep, "find": cmd_find, "outcomes": cmd_outcomes,
+                  "uncertainty": cmd_uncertainty}

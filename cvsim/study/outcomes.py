@@ -16,6 +16,11 @@ vessel (see :attr:`cvsim.limits.LimitCheck.key`)::
     L.mass_passed  L.peak_flow  L.peak_flow_time
     end_time  limits_crossed
     V.limit.K.met  V.limit.K.limit  V.limit.K.actual  V.limit.K.margin
+    V.rupture_time     (vessels whose limits state ``rupture``; NaN: no rupture)
+
+The rupture check (``V.limit.rupture``) is dimensionless: its value is the highest
+utilisation (stress over the allowed stress at the metal temperature), its limit 1
+and its margin 1 less that utilisation.
 
 A check shown for information only (the gas temperature beside the wall's metal
 against the minimum design metal temperature, ``V.limit.min_metal_temperature.gas``)
@@ -82,8 +87,11 @@ LIMIT_FIELDS = (
     ("min_metal_temperature", "min_metal_temperature"),
     ("max_temperature", "max_temperature"),
     ("depressure_to", "depressure"),
+    ("rupture", "rupture"),
 )
 _LIMIT_QUANTITY = {"Pa": "pressure", "K": "temperature", "s": "time"}
+#: per vessel with a rupture screening (cvsim.rupture): the earliest time to rupture
+RUPTURE_TIME = "rupture_time"
 
 
 def limit_key(check) -> str:
@@ -125,12 +133,16 @@ def outcome_list(network) -> list[Outcome]:
         out += [Outcome(f"{k.name}.{s}", u, d, t.format(k.name)) for s, u, d, t in LINK_FIGURES]
     out += [Outcome(s, u, d, t) for s, u, d, t in RUN_FIGURES]
     units = {"design_pressure": "Pa", "min_metal_temperature": "K", "max_temperature": "K",
-             "depressure": "s"}
+             "depressure": "s", "rupture": ""}
     for v in network.vessels:
         if v.limits is None:
             continue
+        if getattr(v.limits, "rupture", None) is not None:
+            out.append(Outcome(f"{v.name}.{RUPTURE_TIME}", "s", "time",
+                               f"earliest time to rupture of {v.name}'s wall (blank: none "
+                               "in the run)"))
         for field, key in LIMIT_FIELDS:
-            if getattr(v.limits, field) is not None:
+            if getattr(v.limits, field, None) is not None:
                 out += limit_outcomes(v.name, key, units[key])
     return out
 
@@ -150,6 +162,9 @@ def outcome_values(result) -> tuple[list[Outcome], dict]:
         values[f"{v.name}.final_pressure"] = d.get("final_pressure_Pa", math.nan)
         values[f"{v.name}.final_temperature"] = d.get("final_temperature_K", math.nan)
         values[f"{v.name}.final_mass"] = d.get("final_mass_kg", math.nan)
+        if getattr(v.limits, "rupture", None) is not None:
+            t_rupture = d.get("rupture_time_s")
+            values[f"{v.name}.{RUPTURE_TIME}"] = math.nan if t_rupture is None else t_rupture
     for k in result.network.links:
         d = s["links"].get(k.name)
         if d is None:
