@@ -16,6 +16,7 @@ import warnings
 from pathlib import Path
 
 from . import __version__
+from .cliargs import parse_overrides
 
 DESCRIPTION = """\
 cvsim - transient simulation of pressurised gas vessels and networks: filling,
@@ -54,7 +55,8 @@ def _parser() -> argparse.ArgumentParser:
                    help="output folder (default: results/<scenario name>)")
     r.add_argument("--set", dest="overrides", action="append", default=[], metavar="KEY=VALUE",
                    help="change one scenario value, e.g. --set links.vent.diameter='12 mm' "
-                   "(repeatable)")
+                   "(repeatable); a missing section is created (run.solver.method=BDF) "
+                   "and KEY=null removes a key")
     r.add_argument("--no-plots", action="store_true", help="skip the PNG plots")
     r.add_argument("--report", action="store_true",
                    help="also write report.html: the calculation report of the run, one "
@@ -63,6 +65,9 @@ def _parser() -> argparse.ArgumentParser:
                    help="if the run fails part-way, still write what was computed (every "
                    "file then says the run failed)")
     r.add_argument("--quiet", action="store_true", help="do not print the summary")
+    r.add_argument("--decimal-comma", action="store_true",
+                   help="write the CSV files for spreadsheets that expect a decimal comma: "
+                   "fields separated by ';', numbers written 1,5")
     r.add_argument("--verify", action="store_true",
                    help="run again at tolerances 100 times tighter and report the largest "
                    "difference of the key figures as a self-check (about twice the time)")
@@ -119,6 +124,8 @@ def _parser() -> argparse.ArgumentParser:
     rv.add_argument("--report", action="store_true",
                     help="with --out: also the calculation report of the confirming run")
     rv.add_argument("--no-confirm", action="store_true", help="skip the confirming run")
+    rv.add_argument("--decimal-comma", action="store_true",
+                    help="CSV files with ';' between fields and decimal commas")
 
     f = sub.add_parser("fluids", help="list the fluid names CoolProp offers",
                        description="List the pure and pseudo-pure fluids available (CoolProp "
@@ -130,29 +137,28 @@ def _parser() -> argparse.ArgumentParser:
     return p
 
 
-def _overrides(items: list[str]) -> dict:
-    from .errors import Problem, ScenarioError
-    out = {}
-    problems = []
-    for item in items:
-        if "=" not in item:
-            problems.append(Problem(item, "write --set KEY=VALUE, e.g. "
-                                    "--set links.vent.diameter='12 mm'"))
-            continue
-        k, v = item.split("=", 1)
-        out[k.strip()] = v.strip()
-    if problems:
-        raise ScenarioError(problems, "--set")
-    return out
-
-
 def cmd_run(args) -> int:
+    # plotting helpers import matplotlib while this process reads and solves
+    painters = _painters(not args.no_plots or args.report)
+    with painters or contextlib.nullcontext():
+        return _run(args, painters)
+
+
+def _painters(wanted: bool):
+    """Plotting helper processes (:mod:`cvsim.painters`) when plots will be drawn."""
+    if not wanted:
+        return None
+    from .painters import Painters
+    return Painters.start()
+
+
+def _run(args, painters) -> int:
     from .api import run
     from .outfolder import claim
     from .outputs import summary_text, write_run_outputs
     from .scenario import load_scenario
 
-    scenario = load_scenario(args.scenario, overrides=_overrides(args.overrides))
+    scenario = load_scenario(args.scenario, overrides=parse_overrides(args.overrides))
     out = args.out or Path("results") / args.scenario.stem
     with claim(out):  # checked and locked before solving: a wrong --out costs nothing
         _say_warnings(scenario_warnings(scenario))
@@ -178,7 +184,8 @@ def cmd_run(args) -> int:
             return 1
         result.warnings[:0] = scenario.warnings  # the reader's warnings join the summary's
         write_run_outputs(result, out, plots=not args.no_plots, echo=scenario.echo,
-                          report=args.report, scenario=scenario)
+                          report=args.report, scenario=scenario,
+                          decimal_comma=args.decimal_comma, painters=painters)
     if not args.quiet:
         print(summary_text(result))
     print(f"Results written to {out}/")
@@ -208,7 +215,7 @@ def _say_warnings(warnings: list[str]) -> None:
 
 def cmd_check(args) -> int:
     from .scenario import load_scenario
-    scenario = load_scenario(args.scenario, overrides=_overrides(args.overrides))
+    scenario = load_scenario(args.scenario, overrides=parse_overrides(args.overrides))
     warnings = scenario_warnings(scenario)
     print(f"{args.scenario}: no problems found"
           + (f", {len(warnings)} warning{'s' if len(warnings) != 1 else ''}:" if warnings
@@ -222,20 +229,28 @@ def cmd_check(args) -> int:
             line += f"   ({r.note})"
         print(line)
     from .contents import initial_text
+    from .model import Model
     print()
-    print("\n".join(initial_text(scenario.network)))
+    print("\n".join(initial_text(Model(scenario.network))))
     return 0
 
 
 def cmd_relief(args) -> int:
+    painters = _painters(bool(args.out) and not args.no_confirm)
+    with painters or contextlib.nullcontext():
+        return _relief(args, painters)
+
+
+def _relief(args, painters) -> int:
     import json
     from .errors import CvsimError
-    from .outputs import _jsonable, write_run_outputs
+    from .display import jsonable
+    from .outputs import write_run_outputs
     from .scenario import load_scenario
     from .sizing import size_relief, sizing_text
     from .units import parse_quantity
 
-    scenario = load_scenario(args.scenario, overrides=_overrides(args.overrides))
+    scenario = load_scenario(args.scenario, overrides=parse_overrides(args.overrides))
     net = scenario.network
     kw = {}
     try:
@@ -266,9 +281,11 @@ def cmd_relief(args) -> int:
             # every output a person could act on carries the caution
             record = {**sizing.as_dict(), "caution": CAUTION}
             extra = {"relief-sizing.txt": text,
-                     "relief-sizing.json": json.dumps(_jsonable(record), indent=2) + "\n"}
+                     "relief-sizing.json": json.dumps(jsonable(record), indent=2) + "\n"}
             write_run_outputs(sizing.confirm, args.out, echo=scenario.echo,
-                              report=args.report, scenario=scenario, extra_files=extra)
+                              report=args.report, scenario=scenario, extra_files=extra,
+                              relief=jsonable(sizing.as_dict()), changes=sizing.changes(),
+                              decimal_comma=args.decimal_comma, painters=painters)
             print(f"Confirming run and sizing written to {args.out}/")
     if sizing.confirm is not None and not sizing.met:
         return 3

@@ -140,11 +140,11 @@ def contents_line(d: dict) -> str:
             f"at {d['pressure_Pa'] / 1e5:.4g} bar a, {d['temperature_K'] - 273.15:.1f} degC")
 
 
-def initial_text(network) -> list[str]:
-    """Lines for ``cvsim check``: each vessel's initial contents and, for a vessel that
-    starts liquid-full, the warning."""
-    from .model import Model
-    contents = initial_contents(Model(network))
+def initial_text(model) -> list[str]:
+    """Lines for ``cvsim check``: each vessel's initial contents (of the
+    :class:`~cvsim.model.Model` ``model``) and, for a vessel that starts liquid-full,
+    the warning."""
+    contents = initial_contents(model)
     lines = ["Initial contents (from the initial state, no run):"]
     warnings = []
     w = max(len(n) for n in contents)

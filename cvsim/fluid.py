@@ -696,16 +696,6 @@ class IdealGas:
 Fluid = RealFluid | IdealGas
 
 
-def fluid_for(spec):
-    """A new fluid object for a :class:`cvsim.network.FluidSpec`: CoolProp, ideal gas,
-    or a mixture on its own new engine (:class:`cvsim.mixture.MixtureEngine`)."""
-    if spec.model == "mixture":
-        from .mixture import MixtureEngine
-        engine = MixtureEngine(spec.components, spec.equation)
-        return engine.fluid(spec.mole_fractions, spec.name)
-    return make_fluid(spec.name, spec.model, spec.molar_mass, spec.cp, spec.cp_temperature)
-
-
 def make_fluid(name: str, model: str = "real", molar_mass: float | None = None,
                cp: float | None = None, cp_temperature: float = 298.15) -> Fluid:
     """The fluid object for a property model: ``real`` or ``ideal-gas``."""

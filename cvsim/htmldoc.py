@@ -183,16 +183,24 @@ def sign_off(roles=("Prepared by", "Checked by", "Reviewed and approved by")) ->
 class Section:
     """One numbered section of a document.
 
-    id        stable ``id`` attribute (tests and links find the section by it)
-    heading   heading text, without number
-    body      content (HTML)
-    new_page  start a new page when printed
+    id         stable ``id`` attribute (tests and links find the section by it)
+    heading    heading text, without number
+    body       content (HTML)
+    new_page   start a new page when printed
+    appendix   an appendix: lettered A, B, ... after the numbered sections (material
+               a checker looks up rather than reads: the file verbatim, every value)
+    landscape  printed on landscape A4 pages (wide tables)
     """
 
     id: str
     heading: str
     body: Html
     new_page: bool = True
+    appendix: bool = False
+    landscape: bool = False
+
+    def label(self, number: int) -> str:
+        return f"Appendix {chr(ord('A') + number - 1)}" if self.appendix else str(number)
 
 
 def subsection(id: str, heading: str, body, level: int = 3) -> Html:
@@ -213,14 +221,19 @@ def document(*, title: str, kind: str, summary_facts: list[tuple], sections: lis
                    (e.g. a notice that the run failed)
     footer_left    short text printed at the top of every page (e.g. the hash)
     """
-    numbered = [(i, s) for i, s in enumerate(sections, 1)]
-    contents = "".join(f'<li><a href="#{s.id}">{i}&nbsp; {esc(s.heading)}</a></li>'
-                       for i, s in numbered)
+    body = [s for s in sections if not s.appendix]
+    extra = [s for s in sections if s.appendix]
+    numbered = [(s.label(i), s) for i, s in enumerate(body, 1)]
+    numbered += [(s.label(i), s) for i, s in enumerate(extra, 1)]
+    contents = "".join(f'<li><a href="#{s.id}">{esc(n)}&nbsp; {esc(s.heading)}</a></li>'
+                       for n, s in numbered)
     parts = []
-    for i, s in numbered:
-        cls = "major" + ("" if s.new_page else " run-on")
-        parts.append(f'<section class="{cls}" id="{s.id}"><h2><span class="no">{i}</span> '
-                     f"{esc(s.heading)}</h2>{s.body}</section>")
+    for n, s in numbered:
+        cls = ("major" + ("" if s.new_page else " run-on") + (" appendix" if s.appendix else "")
+               + (" landscape" if s.landscape else ""))
+        sep = ". " if s.appendix else " "
+        parts.append(f'<section class="{cls}" id="{s.id}"><h2><span class="no">{esc(n)}</span>'
+                     f"{sep}{esc(s.heading)}</h2>{s.body}</section>")
     page_css = CSS.replace("@@HEAD_LEFT@@", _css_string(_cut(title, 90))).replace(
         "@@HEAD_RIGHT@@", _css_string(footer_right)).replace(
         "@@FOOT_LEFT@@", _css_string(footer_left or
@@ -282,6 +295,7 @@ h1 { font-size: 17pt; line-height: 1.25; margin: 2pt 0 8pt; }
 h2 { font-size: 13.5pt; color: var(--accent); border-bottom: 1.4pt solid var(--accent);
      padding-bottom: 2pt; margin: 20pt 0 8pt; break-after: avoid; page-break-after: avoid; }
 h2 .no { display: inline-block; min-width: 1.6em; }
+.appendix h2 .no { min-width: 0; }
 h3 { font-size: 11pt; margin: 14pt 0 5pt; break-after: avoid; page-break-after: avoid; }
 p { margin: 4pt 0 7pt; }
 a { color: var(--accent); }
@@ -352,7 +366,15 @@ table.signoff th[scope=row] { width: 26%; }
   @bottom-right { content: "Page " counter(page) " of " counter(pages); font-size: 7.5pt;
                   color: #555; }
 }
+@page wide { size: A4 landscape; margin: 14mm 14mm 14mm 14mm;
+  @top-left { content: @@HEAD_LEFT@@; font-size: 7.5pt; color: #555; }
+  @top-right { content: @@HEAD_RIGHT@@; font-size: 7.5pt; color: #555; }
+  @bottom-left { content: @@FOOT_LEFT@@; font-size: 7.5pt; color: #555; }
+  @bottom-right { content: "Page " counter(page) " of " counter(pages); font-size: 7.5pt;
+                  color: #555; }
+}
 @media print {
+  section.landscape { page: wide; break-before: page; page-break-before: always; }
   html { font-size: 9.5pt; }
   body { max-width: none; padding: 0; margin: 0; }
   section.major { break-before: page; page-break-before: always; }

@@ -94,7 +94,7 @@ class LimitCheck:
               requirements: the ``limits:`` key it comes from (``design_pressure``,
               ``min_metal_temperature``, ``max_temperature``, ``depressure``), with
               ``.gas`` or the wall's column name added where one key gives several
-              checks (``min_metal_temperature.gas``, ``max_temperature.wall.inner``)
+              checks (``min_metal_temperature.gas``, ``max_temperature.wall``: one per wall)
     informative  shown for information only: never met or crossed, never counted
               (the gas temperature against the minimum design metal temperature when
               the wall's metal is checked); ``met`` then says only which side it is on
@@ -196,6 +196,16 @@ def first_time_at_or_below(t, values, target: float) -> float:
     return float(t0 + (t1 - t0) * (v0 - target) / (v0 - v1))
 
 
+def _where(column: str) -> str:
+    """``inner_temperature`` -> ``the inside surface``; ``node3_temperature`` ->
+    ``node 3``; ``unwetted.outer_temperature`` -> ``the outside surface of the unwetted
+    part``."""
+    *part, last = column.removesuffix("_temperature").split(".")
+    what = {"inner": "the inside surface", "outer": "the outside surface"}.get(
+        last, f"node {last[4:]}" if last.startswith("node") and last[4:].isdigit() else last)
+    return what + (f" of the {' '.join(part)} part" if part else "")
+
+
 def check_vessel(name: str, limits, atmosphere: float, t, pressure, gas_temperature,
                  wall_temperatures: dict | None = None, end_time: float | None = None,
                  steps: tuple | None = None, wall_thickness: float | None = None
@@ -254,17 +264,25 @@ def check_vessel(name: str, limits, atmosphere: float, t, pressure, gas_temperat
                 "K", MDMT_SOURCE, MDMT_GAS_WITH_WALL, key="min_metal_temperature.gas",
                 informative=True))
     if limits.max_temperature is not None:
-        series = {"gas": gas_temperature, **walls}
-        for label, values in series.items():
-            T_max, t_max = _extreme(t, values, "max")
+        # one check for the gas and one per wall: a wall's highest temperature over all
+        # its columns (surfaces and nodes), with the column where it occurs
+        series = {"gas": [("gas", gas_temperature)]}
+        for column, values in walls.items():
+            wall = column.removeprefix(name + ".").split(".")[0]
+            series.setdefault(wall, []).append((column, values))
+        for label, columns in series.items():
+            found = [(*_extreme(t, v, "max"), c) for c, v in columns]
+            found = [f for f in found if f[0] == f[0]] or found
+            T_max, t_max, column = max(found, key=lambda f: f[0] if f[0] == f[0] else -1e300)
+            where = "" if label == "gas" else (
+                f"highest at {_where(column.removeprefix(name + '.' + label + '.'))}")
             out.append(LimitCheck(
                 name, f"highest {label} temperature below the allowed maximum",
                 "temperature", limits.max_temperature, T_max, t_max,
                 bool(T_max <= limits.max_temperature), limits.max_temperature - T_max, "K",
                 "design limit stated in the scenario (e.g. 85 degC for hydrogen vehicle "
-                "cylinders, SAE J2601)", "",
-                key="max_temperature" if label == "gas" else
-                f"max_temperature.{label.removeprefix(name + '.')}"))
+                "cylinders, SAE J2601)", where,
+                key="max_temperature" if label == "gas" else f"max_temperature.{label}"))
     if limits.depressure_to is not None and limits.depressure_within is not None:
         t_reach = first_time_at_or_below(t, pressure, limits.depressure_to)
         reached = t_reach == t_reach

@@ -58,7 +58,7 @@ from .flow.line import LineDevice
 from .flow.orifice import OrificeDevice
 from .flow.regulator import RegulatorDevice
 from .flow.relief import ReliefValveDevice
-from .fluid import fluid_for
+from .engines import fluid_for
 from .outlets import drawn_state
 from .heat.definitions import GasFire, Wall
 from .heat.loads import AmbientExchangeTerm, HeatLoadTerm

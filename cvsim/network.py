@@ -571,12 +571,16 @@ class StopCondition:
 
     quantity  ``pressure`` [Pa], ``temperature`` [K] or ``mass`` [kg]
     direction ``below`` or ``above``
+    at_start  when the condition already holds at t = 0: ``error`` (the run fails
+              with a message: usually a condition written the wrong way round) or
+              ``stop`` (the run ends at once, asked for)
     """
 
     node: str
     quantity: str
     direction: str
     value: float
+    at_start: str = "error"
 
     def describe(self) -> str:
         if self.quantity == "pressure":

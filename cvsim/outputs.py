@@ -15,46 +15,50 @@ import os
 from pathlib import Path
 
 from .contents import summary_lines
+from .display import (RunUnits, bar, degc, display, jsonable, limit_value, margin,
+                      run_units)
 from .outfolder import MARKER, atomic_folder, claim  # noqa: F401  (re-exported)
 from .result import CAUTION, Result
 
-#: SI unit -> (engineering unit shown, function SI -> shown)
-DISPLAY = {
-    "Pa": ("bar a", lambda v: v / 1e5),
-    "K": ("degC", lambda v: v - 273.15),
-    "J/kg": ("kJ/kg", lambda v: v / 1e3),
-    "J/(kg K)": ("kJ/(kg K)", lambda v: v / 1e3),
-    "W": ("kW", lambda v: v / 1e3),
-    "J": ("kJ", lambda v: v / 1e3),
-    "N/m2": ("MPa", lambda v: v / 1e6),  # stresses (cvsim.rupture)
-}
-
-
-def display(unit: str):
-    """(shown unit, converter) for an SI unit; identity for the others."""
-    return DISPLAY.get(unit, (unit, lambda v: v))
-
-
-def write_csv(result: Result, path: Path, fine: bool = False) -> Path:
-    """Histories as CSV in engineering units (bar a, degC, kg, kg/s, kJ/kg).
+def write_csv(result: Result, path: Path, fine: bool = False, decimal_comma: bool = False,
+              units: RunUnits | None = None) -> Path:
+    """Histories as CSV in engineering units (bar a, degC, kg, kJ/kg) with times and
+    mass flows in the run's units (:func:`cvsim.display.run_units`, as the plots and
+    the summary show them).
 
     The first lines start with ``#``: title, provenance, caution (pandas:
-    ``read_csv(path, comment="#")``). Columns are ``<node>.<quantity> [unit]``.
+    ``read_csv(path, comment="#")``). Columns are ``<node>.<quantity> [unit]``; the
+    first is always ``time [s]``, followed by the time in the run's unit when that
+    is minutes or hours. With ``decimal_comma``, fields are separated by ``;`` and
+    numbers written with a decimal comma, as spreadsheets expect in locales that
+    write 1,5 (pandas: ``read_csv(path, comment="#", sep=";", decimal=",")``).
     """
     rows = result._all() if fine else result.data
+    units = units or run_units(result)
     head = []
     convs = []
     for name, unit, kind in result.columns:
-        shown, conv = display(unit)
+        if unit == "kg/s":
+            shown, conv = units.flow, (lambda v, k=units.flow_size: v / k)
+        else:
+            shown, conv = display(unit)
         head.append(f"{name} [{shown}]")
         convs.append(conv)
+        if name == "time" and units.time != "s":
+            head.append(f"time [{units.time}]")
+            convs.append(lambda v, k=units.time_size: v / k)
+    index = [i for i, (name, _, _) in enumerate(result.columns)
+             for _ in range(2 if name == "time" and units.time != "s" else 1)]
+    fmt = _fmt_comma if decimal_comma else _fmt
     with open(path, "w", newline="", encoding="utf-8") as fh:
         for line in _header_lines(result):
             fh.write(f"# {line}\n")
-        w = csv.writer(fh)
+        if decimal_comma:
+            fh.write("# fields separated by ';', decimal comma\n")
+        w = csv.writer(fh, delimiter=";" if decimal_comma else ",")
         w.writerow(head)
         for r in rows:
-            w.writerow([_fmt(c(v)) for c, v in zip(convs, r)])
+            w.writerow([fmt(c(r[i])) for c, i in zip(convs, index)])
     return path
 
 
@@ -62,6 +66,10 @@ def _fmt(v: float) -> str:
     if v != v:
         return ""
     return f"{v:.10g}"
+
+
+def _fmt_comma(v: float) -> str:
+    return _fmt(v).replace(".", ",")
 
 
 def _header_lines(result: Result) -> list[str]:
@@ -86,39 +94,9 @@ def header_lines(title: str, provenance: dict, status: str, atmosphere: float) -
 
 def write_summary_json(result: Result, path: Path) -> Path:
     with open(path, "w", encoding="utf-8") as fh:
-        json.dump(_jsonable(result.summary()), fh, indent=2)
+        json.dump(jsonable(result.summary()), fh, indent=2)
         fh.write("\n")
     return path
-
-
-def _jsonable(obj):
-    if isinstance(obj, dict):
-        return {str(k): _jsonable(v) for k, v in obj.items()}
-    if isinstance(obj, (list, tuple)):
-        return [_jsonable(v) for v in obj]
-    if isinstance(obj, float):
-        return obj if math.isfinite(obj) else None
-    if hasattr(obj, "item"):  # numpy scalars
-        return _jsonable(obj.item())
-    return obj
-
-
-def _bar(p: float, atm: float) -> str:
-    return f"{p / 1e5:.4g} bar a ({(p - atm) / 1e5:.4g} bar g)"
-
-
-def _degc(T: float) -> str:
-    return f"{T - 273.15:.1f} degC"
-
-
-def _t(t: float) -> str:
-    if not math.isfinite(t):
-        return "-"
-    if t < 600:
-        return f"{t:.4g} s"
-    if t < 3 * 3600:
-        return f"{t / 60:.4g} min"
-    return f"{t / 3600:.4g} h"
 
 
 #: the text summary lists at most this many events (the first ones and the last EVENTS_TAIL)
@@ -130,6 +108,8 @@ def summary_text(result: Result) -> str:
     """The summary as text for the screen and for summary.txt."""
     s = result.summary()
     atm = result.network.atmosphere
+    units = run_units(result)
+    _t = units.t
     L = [f"{s['title']}", "=" * min(len(s['title']), 78),
          f"Status: {s['status']} - {s['message']}",
          f"Simulated time: {_t(s['end_time_s'])}", ""]
@@ -139,19 +119,19 @@ def summary_text(result: Result) -> str:
         L.append("")
     for name, v in s["vessels"].items():
         L.append(f"Vessel '{name}':")
-        L.append(f"  pressure    max {_bar(v['max_pressure_Pa'], atm)} at {_t(v['max_pressure_time_s'])};"
-                 f" min {_bar(v['min_pressure_Pa'], atm)} at {_t(v['min_pressure_time_s'])}")
-        L.append(f"  temperature max {_degc(v['max_temperature_K'])} at "
-                 f"{_t(v['max_temperature_time_s'])}; min {_degc(v['min_temperature_K'])} at "
+        L.append(f"  pressure    max {bar(v['max_pressure_Pa'], atm)} at {_t(v['max_pressure_time_s'])};"
+                 f" min {bar(v['min_pressure_Pa'], atm)} at {_t(v['min_pressure_time_s'])}")
+        L.append(f"  temperature max {degc(v['max_temperature_K'])} at "
+                 f"{_t(v['max_temperature_time_s'])}; min {degc(v['min_temperature_K'])} at "
                  f"{_t(v['min_temperature_time_s'])}")
         if "min_wall_temperature_K" in v:
-            L.append(f"  wall temp.  max {_degc(v['max_wall_temperature_K'])} at "
+            L.append(f"  wall temp.  max {degc(v['max_wall_temperature_K'])} at "
                      f"{_t(v['max_wall_temperature_time_s'])} ({v['max_wall_temperature_where']});"
-                     f" min {_degc(v['min_wall_temperature_K'])} at "
+                     f" min {degc(v['min_wall_temperature_K'])} at "
                      f"{_t(v['min_wall_temperature_time_s'])} ({v['min_wall_temperature_where']})")
         L.append(f"  mass        {v['initial_mass_kg']:.5g} kg -> {v['final_mass_kg']:.5g} kg")
-        L.append(f"  final state {_bar(v['final_pressure_Pa'], atm)}, "
-                 f"{_degc(v['final_temperature_K'])}")
+        L.append(f"  final state {bar(v['final_pressure_Pa'], atm)}, "
+                 f"{degc(v['final_temperature_K'])}")
         if "two_phase_from_s" in v:
             L.append(f"  two phases present from {_t(v['two_phase_from_s'])} "
                      f"(lowest vapour quality {v['min_vapour_quality']:.4f})")
@@ -172,7 +152,7 @@ def summary_text(result: Result) -> str:
         L.append("Links (flow positive from 'from' to 'to'):")
         for name, k in s["links"].items():
             L.append(f"  {name} ({k['from']} -> {k['to']}): {k['mass_passed_kg']:.5g} kg passed; "
-                     f"peak {k['max_mass_flow_kg_s']:.4g} kg/s at {_t(k['max_mass_flow_time_s'])}")
+                     f"peak {units.flow_text(k['max_mass_flow_kg_s'])} at {_t(k['max_mass_flow_time_s'])}")
             if abs(k["energy_added_by_device_J"]) > 0:
                 L.append(f"    energy added by the device: {k['energy_added_by_device_J'] / 1e3:.5g} kJ")
             L += [f"    {note}" for note in k.get("notes", [])]
@@ -226,33 +206,11 @@ def summary_text(result: Result) -> str:
 
 
 
-def _limit_value(value: float, unit: str, atm: float) -> str:
-    if value != value:
-        return "-"
-    if unit == "Pa":
-        return f"{(value - atm) / 1e5:.4g} bar g"
-    if unit == "K":
-        return f"{value - 273.15:.1f} degC"
-    if unit == "s":
-        return _t(value)
-    return f"{value:.4g} {unit}".rstrip()
-
-
-def _margin(value: float, unit: str) -> str:
-    if value != value:
-        return "-"
-    if unit == "Pa":
-        return f"{value / 1e5:+.3g} bar"
-    if unit == "K":
-        return f"{value:+.1f} K"
-    if unit == "s":
-        return f"{value:+.4g} s"
-    return f"{value:+.4g} {unit}".rstrip()
-
-
 def limits_text(result: Result) -> str:
     """The design-limit table of a run, for the screen and summary.txt."""
     atm = result.network.atmosphere
+    units = run_units(result)
+    _t = units.t
     crossed = result.limits_crossed
     counted = result.limits_counted
     info = len(result.limits) - len(counted)
@@ -262,51 +220,75 @@ def limits_text(result: Result) -> str:
         state = "info   " if c.informative else ("met    " if c.met else "CROSSED")
         when = f" at {_t(c.time)}" if c.unit != "s" and c.time == c.time else ""
         L.append(f"  [{state}] {c.vessel}: {c.name}")
-        L.append(f"            limit {_limit_value(c.limit, c.unit, atm)}, reached "
-                 f"{_limit_value(c.actual, c.unit, atm)}{when}, margin {_margin(c.margin, c.unit)}")
+        L.append(f"            limit {limit_value(c.limit, c.unit, atm, _t)}, reached "
+                 f"{limit_value(c.actual, c.unit, atm, _t)}{when}, margin {margin(c.margin, c.unit, units)}")
         L.append(f"            practice: {c.practice}" + (f"; {c.note}" if c.note else ""))
     return "\n".join(L)
 
 
 def write_run_outputs(result: Result, out_dir: Path, plots: bool = True,
                       echo: list | None = None, report: bool = False,
-                      scenario=None, extra_files: dict | None = None) -> list[Path]:
+                      scenario=None, extra_files: dict | None = None, relief: dict | None = None,
+                      changes=(), decimal_comma: bool = False, painters=None) -> list[Path]:
     """Write history.csv, steps.csv, summary.txt, summary.json, inputs.txt and
     plots into ``out_dir``, atomically: all of them or none.
 
     With ``report``, also report.html, the calculation report
-    (:mod:`cvsim.report`) of ``result`` and its ``scenario``. ``extra_files``
-    maps further file names to their text (written in the same atomic step)."""
+    (:mod:`cvsim.report`) of ``result`` and its ``scenario`` (with ``relief``, the
+    relief sizing it confirms, as plain data). ``changes`` are values the command
+    changed after reading the scenario (:class:`cvsim.changes.Change`): inputs.txt and
+    the report show them as simulated and marked as changed. ``extra_files`` maps
+    further file names to their text (written in the same atomic step).
+    ``decimal_comma``: CSV files separated by ``;`` with decimal commas. ``painters``:
+    helper processes that draw the plots (:class:`cvsim.painters.Painters`)."""
     out_dir = Path(out_dir)
     with atomic_folder(out_dir) as tmp:
         write_run_files(result, tmp, plots=plots, echo=echo, report=report,
-                        scenario=scenario, extra_files=extra_files)
+                        scenario=scenario, extra_files=extra_files, relief=relief,
+                        changes=changes, decimal_comma=decimal_comma, painters=painters)
     return sorted(out_dir.iterdir())
 
 
 def write_run_files(result: Result, folder: Path, plots: bool = True,
                     echo: list | None = None, report: bool = False, scenario=None,
-                    extra_files: dict | None = None) -> None:
+                    extra_files: dict | None = None, relief: dict | None = None,
+                    changes=(), decimal_comma: bool = False, painters=None) -> None:
     """The files of :func:`write_run_outputs`, written into an existing folder.
 
     Plots are drawn first: one that fails is left out with a warning in the
     summary (naming it), and the histories and summary are written all the same."""
     drawn = None  # plots for the report: None = the report draws its own
+    if report and not plots and painters is not None and len(result.data) > 1:
+        # the report's plots, drawn by the helpers into a folder of their own
+        import tempfile
+        with tempfile.TemporaryDirectory(prefix="cvsim-report-") as tmp:
+            write_run_files(result, folder, plots=False, echo=echo, report=False,
+                            extra_files=extra_files, changes=changes,
+                            decimal_comma=decimal_comma)
+            from .report import write_run_report
+            write_run_report(result, folder / "report.html", scenario,
+                             plots=_plots(result, Path(tmp), painters), relief=relief,
+                             changes=changes)
+        return
     if plots:
         drawn = []
         if len(result.data) > 1:
-            drawn = _plots(result, folder)
-    write_csv(result, folder / "history.csv")
-    write_csv(result, folder / "steps.csv", fine=True)
+            drawn = _plots(result, folder, painters)
+    units = run_units(result)
+    write_csv(result, folder / "history.csv", decimal_comma=decimal_comma, units=units)
+    write_csv(result, folder / "steps.csv", fine=True, decimal_comma=decimal_comma,
+              units=units)
     (folder / "summary.txt").write_text(summary_text(result), encoding="utf-8")
     write_summary_json(result, folder / "summary.json")
     if echo is not None:
-        (folder / "inputs.txt").write_text(echo_text(result, echo), encoding="utf-8")
+        (folder / "inputs.txt").write_text(echo_text(result, echo, changes),
+                                           encoding="utf-8")
     for name, text in (extra_files or {}).items():
         (folder / name).write_text(text, encoding="utf-8")
     if report:
         from .report import write_run_report
-        write_run_report(result, folder / "report.html", scenario, plots=drawn)
+        write_run_report(result, folder / "report.html", scenario, plots=drawn, relief=relief,
+                         changes=changes)
 
 
 #: the plots of a run in the order :func:`cvsim.plot.plot_run` draws them
@@ -314,11 +296,18 @@ PLOT_FILES = ("overview.png", "pressure.png", "temperature.png", "mass.png", "fl
               "opening.png", "wall.png")
 
 
-def _plots(result: Result, folder: Path) -> list[Path]:
-    """Draw the run's plots; a plot that fails must not cost the results: the
-    plots drawn whole are kept, the rest left out, and the result carries a
-    warning naming the first one that could not be drawn."""
+def _plots(result: Result, folder: Path, painters=None) -> list[Path]:
+    """Draw the run's plots (by the helper processes ``painters`` when given); a plot
+    that fails must not cost the results: the plots drawn whole are kept, the rest
+    left out, and the result carries a warning naming the first one that could not be
+    drawn."""
     before = set(folder.iterdir())
+    if painters is not None:
+        from .plot import plot_names
+        try:
+            return painters.draw(result, folder, plot_names(result))
+        except RuntimeError:
+            pass  # drawn again below, in this process, where the failure shows
     try:
         from .plot import plot_run
         return plot_run(result, folder)
@@ -347,12 +336,19 @@ def _whole_png(path: Path) -> bool:
     return head == b"\x89PNG\r\n\x1a\n" and tail[4:8] == b"IEND"
 
 
-def echo_text(result: Result, echo: list) -> str:
-    """Inputs as given and as used (SI), with notes, plus provenance."""
+def echo_text(result: Result, echo: list, changes=()) -> str:
+    """Inputs as given and as used (SI), with notes, plus provenance; the values a
+    command changed (``changes``) as simulated, their notes starting CHANGED."""
+    from .changes import as_simulated
     p = result.provenance
     L = [f"Inputs of: {result.network.title}",
          f"scenario file: {p.get('scenario', '?')}  sha256 {p.get('scenario_sha256', '?')}",
          f"cvsim {p.get('cvsim', '?')}, CoolProp {p.get('coolprop', '?')}", ""]
+    if changes:
+        L.append("Values changed by the command (simulated with these, not the file's):")
+        L += [f"  {c.key} = {c.used()}   ({c.why})" for c in changes]
+        L.append("")
+    echo = as_simulated(echo, changes)
     w = max([len(str(r.key)) for r in echo] + [10])
     for r in echo:
         line = f"{r.key:<{w}}  {r.given!s:<22}  ->  {r.used}"

@@ -37,12 +37,17 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
+from .display import RunUnits, duration, flow_unit, run_units, time_unit
+
 if TYPE_CHECKING:
     from .result import Result
 
 BAR = 1e5                 # [Pa]
 ZERO_CELSIUS = 273.15     # [K]
 DPI = 150
+#: PNG encoder settings: zlib level 3 writes about three times faster than the default
+#: 6 for files a tenth larger (measured on the demo plots, benchmarks/bench_outputs.py)
+PNG_OPTIONS = {"compress_level": 3}
 OVERVIEW_SIZE = (11.0, 8.0)   # [in] fits a landscape A4 page inside its margins
 SINGLE_SIZE = (10.0, 6.0)     # [in]
 MAX_EVENT_LABELS = 8      # more events than this: lines only, no text
@@ -75,47 +80,42 @@ LEGEND_PT = 7.5
 LEGEND_ROWS = 6           # a longer legend is set in two columns
 EVENT_PT = 6.5
 
-# (unit, seconds per unit, use above this run length [s])
-TIME_UNITS = (("h", 3600.0, 3 * 3600.0), ("min", 60.0, 600.0), ("s", 1.0, -math.inf))
-# (unit, kg/s per unit, use at or above this peak flow [kg/s]); the smallest flows
-# are shown in kg/h, the unit that gives them the largest numbers of the three
-FLOW_UNITS = (("kg/s", 1.0, 1.0), ("g/s", 1e-3, 1e-3), ("kg/h", 1 / 3600.0, -math.inf))
-
-
-# ------------------------------------------------------------------- units
-
-def time_unit(t_end: float) -> tuple[str, float]:
-    """Time unit for a run of length ``t_end`` [s]: (name, seconds per unit).
-
-    Longer than 3 h: hours; longer than 600 s: minutes; otherwise seconds.
-
-    >>> time_unit(172.0), time_unit(1800.0), time_unit(4 * 3600.0)
-    (('s', 1.0), ('min', 60.0), ('h', 3600.0))
-    """
-    for name, size, above in TIME_UNITS:
-        if t_end > above:
-            return name, size
-    return TIME_UNITS[-1][:2]
-
-
-def flow_unit(peak: float) -> tuple[str, float]:
-    """Mass-flow unit for flows whose largest magnitude is ``peak`` [kg/s]:
-    (name, kg/s per unit).
-
-    At least 1 kg/s: kg/s; at least 1 g/s: g/s; below: kg/h.
-
-    >>> flow_unit(25.0), flow_unit(0.1), flow_unit(2e-4)
-    (('kg/s', 1.0), ('g/s', 0.001), ('kg/h', 0.0002777777777777778))
-    """
-    for name, size, at_least in FLOW_UNITS:
-        if peak >= at_least:
-            return name, size
-    return FLOW_UNITS[-1][:2]
+#: vessels whose largest masses differ by more than this factor do not share a mass
+#: axis: the overview shows each one's change of mass, mass.png one panel per vessel
+MASS_RATIO = 10.0
+LIMIT_COLOUR = "0.2"
+CROSSED_COLOUR = "#A00000"
+#: line styles of the limits: the design pressure (MAWP), the highest allowed pressure
+#: (MAWP + accumulation), relief set pressures, the depressuring target, temperatures
+LIMIT_DASH = {"mawp": (0, (4, 2)), "allowed": (0, (8, 2, 2, 2)), "set": (0, (1, 1.5)),
+              "target": (0, (6, 3)), "temperature": (0, (4, 2))}
 
 
 # ---------------------------------------------------------------- the run
 
-def plot_run(result: Result, folder: Path) -> list[Path]:
+def plot_names(result: Result) -> list[str]:
+    """Stems of the files :func:`plot_run` writes for ``result``, in order."""
+    names = ["overview", "pressure", "temperature", "mass", "flow"]
+    n = len(result.data)
+    columns = result.names()
+    if any(f"{k}.opening" in columns for k in result.link_names()):
+        names.append("opening")
+    if any(c.startswith(f"{v}.wall.node") for v in result.vessel_names() for c in columns):
+        names.append("wall")
+    if n and any(f"{v}.liquid_fraction" in columns
+                 and bool(np.any(result[f"{v}.liquid_fraction"] > 0.0))
+                 for v in result.vessel_names()):
+        names.append("level")
+    if n and result.network.fluid.model == "mixture" and any(
+            bool(np.any(~np.isnan(result[f"{v}.vapour_quality"])))
+            for v in result.vessel_names()):
+        names.append("phases")
+    if any(f"{v}.rupture.stress" in columns for v in result.vessel_names()):
+        names.append("rupture")
+    return names
+
+
+def plot_run(result: Result, folder: Path, only=None) -> list[Path]:
     """Write the plots of ``result`` into ``folder`` (created if missing).
 
     Files: ``overview.png`` (pressure, temperature, mass, mass flow, and the
@@ -125,7 +125,8 @@ def plot_run(result: Result, folder: Path) -> list[Path]:
     with layered walls, ``wall.png``; only when a vessel holds liquid at some time,
     ``level.png``; a mixture run whose vessel holds two phases, ``phases.png`` (vapour
     share of the mass, liquid share of the volume); only with a rupture screening,
-    ``rupture.png``. Returns the paths written, in that order.
+    ``rupture.png``. Returns the paths written, in that order. ``only``: the stems to
+    draw (of :func:`plot_names`), so that several processes can share the work.
     """
     folder = Path(folder)
     folder.mkdir(parents=True, exist_ok=True)
@@ -142,12 +143,20 @@ def plot_run(result: Result, folder: Path) -> list[Path]:
         panels.append(("phases", _phases))
     if view.rupture:
         panels.append(("rupture", _rupture))
+    wanted = set(plot_names(result) if only is None else only)
     written = []
+    if "overview" in wanted:
+        written.append(_draw_overview(view, panels, folder / "overview.png"))
+    for name, draw in panels:
+        if name in wanted:
+            written.append(_draw_single(view, name, draw, folder / f"{name}.png"))
+    return written
 
-    # the overview holds the four quantities and the openings; walls, levels, phases
-    # and the rupture screening have their own pages
+
+def _draw_overview(view: _View, panels, path: Path) -> Path:
+    """The overview holds the four quantities and the openings; walls, levels, phases
+    and the rupture screening have their own pages."""
     overview = [p for p in panels if p[0] not in ("wall", "level", "phases", "rupture")]
-    path = folder / "overview.png"
     with _figure(OVERVIEW_SIZE, view) as fig:
         if view.openings:  # valve states under the four quantities, across the page
             grid = fig.subplot_mosaic([["pressure", "temperature"], ["mass", "flow"],
@@ -162,18 +171,23 @@ def plot_run(result: Result, folder: Path) -> list[Path]:
             draw(ax, view, overview=True)
         for ax in bottom:
             ax.set_xlabel(view.time_label)
-        fig.savefig(path, dpi=DPI)
-    written.append(path)
+        save(fig, path)
+    return path
 
-    for name, draw in panels:
-        path = folder / f"{name}.png"
-        with _figure(SINGLE_SIZE, view) as fig:
+
+def _draw_single(view: _View, name: str, draw, path: Path) -> Path:
+    with _figure(SINGLE_SIZE, view) as fig:
+        if name == "mass" and view.mass_apart:
+            axes = fig.subplots(len(view.vessels), 1, sharex=True, squeeze=False)[:, 0]
+            for ax, v in zip(axes, view.vessels):
+                _mass_of(ax, view, v)
+            axes[-1].set_xlabel(view.time_label)
+        else:
             ax = fig.subplots()
             draw(ax, view, overview=False)
             ax.set_xlabel(view.time_label)
-            fig.savefig(path, dpi=DPI)
-        written.append(path)
-    return written
+        save(fig, path)
+    return path
 
 
 class _View:
@@ -184,8 +198,8 @@ class _View:
         net = result.network
         n = len(result.data)
         self.empty = n == 0
-        t_end = float(result.time[-1]) if n else net.run.end_time
-        self.time_name, self.time_size = time_unit(t_end)
+        self.units: RunUnits = run_units(result)  # as the summary and the CSV files
+        self.time_name, self.time_size = self.units.time, self.units.time_size
         self.time_label = f"Time [{self.time_name}]"
         self.t = result.time / self.time_size if n else np.zeros(0)
         self.vessels = result.vessel_names()
@@ -210,6 +224,22 @@ class _View:
         self.rupture = [v for v in self.vessels if f"{v}.rupture.stress" in names]
         self.atmosphere_bar = net.atmosphere / BAR
         self.events = [(float(t) / self.time_size, str(text)) for t, text in result.events]
+        self.limits = {v.name: v.limits for v in net.vessels if v.limits is not None}
+        self.checks = list(result.limits)
+        # relief valves and bursting discs that protect a vessel: (link, vessel, p [Pa])
+        from .network import BurstingDisc, ReliefValve
+        self.set_points = []
+        for link in net.links:
+            if link.source not in self.vessels:
+                continue
+            if isinstance(link.device, ReliefValve):
+                self.set_points.append((link.name, float(link.device.set_pressure), "set"))
+            elif isinstance(link.device, BurstingDisc):
+                self.set_points.append((link.name, float(link.device.burst_pressure),
+                                        "bursts at"))
+        peaks = [float(np.nanmax(result[f"{v}.mass"])) for v in self.vessels] if n else []
+        peaks = [m for m in peaks if m > 0.0]
+        self.mass_apart = len(peaks) > 1 and max(peaks) > MASS_RATIO * min(peaks)
 
     def _extra_temperatures(self, names: list[str]) -> dict[str, list[str]]:
         """Columns in K other than the gas temperature, by the vessel whose name
@@ -283,10 +313,153 @@ def _pressure(ax, view: _View, overview: bool):
     if view.empty:
         _finish(ax, view, "Pressure", floor=None, overview=overview)
         return
+    _pressure_limits(ax, view)
     gauge = ax.secondary_yaxis("right", functions=(lambda b: b - atm, lambda g: g + atm))
     gauge.set_ylabel(f"Pressure [bar g]  (atmosphere {atm:.4g} bar a)", fontsize=8)
     gauge.tick_params(labelsize=8)
     _finish(ax, view, "Pressure", floor=1e-3, overview=overview, event_labels=True)
+
+
+def _who(view: _View, vessel: str) -> str:
+    """``"receiver: "`` when several vessels could own a limit, else nothing."""
+    return f"{vessel}: " if len(view.vessels) > 1 else ""
+
+
+def _span(view: _View) -> tuple[float, float]:
+    return float(view.t[0]), float(view.t[-1]) if view.t[-1] > view.t[0] else view.t[0] + 1.0
+
+
+def _limit_line(ax, view: _View, y: float, label: str, ls, bad_side: str | None = None,
+                until: float | None = None):
+    """A limit across the panel (a curve of two points, so that legends avoid it), the
+    side that crosses it (``above``/``below``) lightly shaded."""
+    t0, t1 = _span(view)
+    ax.plot([t0, t1 if until is None else min(until, t1)], [y, y], color=LIMIT_COLOUR, lw=1.1,
+            ls=ls, label=label, zorder=3)
+    if bad_side is not None:
+        lo, hi = ax.get_ylim()
+        far = 10.0 * max(abs(hi - lo), abs(y), 1.0)
+        ax.axhspan(y, y + far if bad_side == "above" else y - far, color=CROSSED_COLOUR,
+                   alpha=0.06, lw=0, zorder=0)
+
+
+def _crossed(ax, view: _View, t: float, y: float, label: str):
+    """Where a limit is crossed: a red cross on the curve."""
+    ax.plot([t], [y], ls="none", marker="X", ms=9, mew=0.8, mec="white",
+            color=CROSSED_COLOUR, label=label, zorder=6, clip_on=False)
+
+
+def _check(view: _View, vessel: str, key: str):
+    return next((c for c in view.checks if c.vessel == vessel and c.key == key), None)
+
+
+def _pressure_limits(ax, view: _View):
+    """Design pressure (MAWP), the highest allowed pressure (MAWP + accumulation),
+    the set pressures of relief devices and the depressuring target of each vessel
+    with its deadline, as limit lines; a crossed limit marked where it is crossed."""
+    atm = view.atmosphere_bar
+    lo, hi = ax.get_ylim()
+    ys = []
+    for v, lim in view.limits.items():
+        who = _who(view, v)
+        if lim.design_pressure is not None:
+            mawp = lim.design_pressure / BAR
+            _limit_line(ax, view, mawp, f"{who}MAWP {mawp - atm:.4g} bar g", LIMIT_DASH["mawp"])
+            c = _check(view, v, "design_pressure")
+            if c is not None:
+                allowed = c.limit / BAR
+                _limit_line(ax, view, allowed, f"{who}allowed {allowed - atm:.4g} bar g "
+                            f"(MAWP + accumulation)", LIMIT_DASH["allowed"], "above")
+                ys += [mawp, allowed]
+                if c.crossed and c.time == c.time:
+                    _crossed(ax, view, c.time / view.time_size, c.actual / BAR,
+                             f"CROSSED: {who}allowed pressure")
+        if lim.depressure_to is not None and lim.depressure_within is not None:
+            target = lim.depressure_to / BAR
+            c = _check(view, v, "depressure")
+            start = _depressuring_start(view, v, c, lim)
+            deadline = (start + lim.depressure_within) / view.time_size
+            within = duration(lim.depressure_within)
+            _limit_line(ax, view, target, f"{who}depressure to {target - atm:.4g} bar g "
+                        f"within {within}", LIMIT_DASH["target"], until=deadline)
+            ys.append(target)
+            t0, t1 = _span(view)
+            if deadline <= t1:
+                ax.axvline(deadline, color=LIMIT_COLOUR, lw=1.1, ls=LIMIT_DASH["target"],
+                           zorder=3)
+            if c is not None and c.crossed:
+                at = min(deadline, t1)
+                p_at = float(np.interp(at, view.t, view.result[f"{v}.pressure"] / BAR))
+                _crossed(ax, view, at, p_at, f"CROSSED: {who}depressuring target "
+                         + ("not reached" if c.time != c.time else "reached late"))
+    for name, p, what in view.set_points:
+        _limit_line(ax, view, p / BAR, f"{name} {what} {p / BAR - atm:.4g} bar g",
+                    LIMIT_DASH["set"])
+        ys.append(p / BAR)
+    if ys:  # every limit inside the range, with a little room
+        top, bottom = max(ys + [hi]), min(ys + [lo])
+        pad = 0.03 * (top - bottom)
+        ax.set_ylim(min(lo, min(ys) - pad), max(hi, max(ys) + pad))
+
+
+def _depressuring_start(view: _View, vessel: str, check, lim) -> float:
+    """Start of depressuring [s]: stated, else from the check (reached: reach time
+    less time taken), else found from the run as the limit check finds it."""
+    if getattr(lim, "depressure_start", None) is not None:
+        return float(lim.depressure_start)
+    if check is not None and check.time == check.time and check.actual == check.actual:
+        return float(check.time - check.actual)
+    from .limits import depressuring_start
+    r = view.result
+    return depressuring_start(r.fine("time"), r.fine(f"{vessel}.pressure"), math.nan)
+
+
+def _temperature_limits(ax, view: _View):
+    """Minimum design metal temperature and highest allowed temperature of each vessel,
+    shaded on the side that crosses them; crossed limits marked where crossed."""
+    lo, hi = ax.get_ylim()
+    ys = []
+    for v, lim in view.limits.items():
+        who = _who(view, v)
+        if lim.min_metal_temperature is not None:
+            y = lim.min_metal_temperature - ZERO_CELSIUS
+            _limit_line(ax, view, y, f"{who}MDMT {y:.1f} °C", LIMIT_DASH["temperature"],
+                        "below")
+            ys.append(y)
+        if lim.max_temperature is not None:
+            y = lim.max_temperature - ZERO_CELSIUS
+            _limit_line(ax, view, y, f"{who}highest allowed {y:.1f} °C",
+                        LIMIT_DASH["temperature"], "above")
+            ys.append(y)
+        for c in view.checks:
+            if (c.vessel == v and c.quantity == "temperature" and c.crossed
+                    and c.time == c.time):
+                what = ("MDMT" if c.key.startswith("min_metal") else "highest allowed")
+                worst = "lowest" if c.key.startswith("min_metal") else "highest"
+                on = (c.key.split(".", 1)[1].replace(".", " ") if "." in c.key else
+                      "metal" if c.note.startswith("checked on the wall") else "gas")
+                _crossed(ax, view, c.time / view.time_size, c.actual - ZERO_CELSIUS,
+                         f"CROSSED: {who}{what} ({on} {worst} "
+                         f"{c.actual - ZERO_CELSIUS:.1f} °C)")
+    if ys:
+        top, bottom = max(ys + [hi]), min(ys + [lo])
+        pad = 0.03 * (top - bottom)
+        ax.set_ylim(min(lo, min(ys) - pad), max(hi, max(ys) + pad))
+
+
+def temperature_label(vessel: str, column: str) -> str:
+    """Words for a temperature column of a vessel in a legend:
+    ``drum.wall.inner_temperature`` -> ``drum wall, inside surface``."""
+    rest = column[len(vessel) + 1:] if column.startswith(vessel + ".") else column
+    term, _, what = rest.rpartition(".")
+    words = {"inner_temperature": "inside surface", "outer_temperature": "outside surface",
+             "temperature": ""}.get(what)
+    if words is None:
+        words = what.removesuffix("_temperature").replace("_", " ")
+        if words.startswith("node") and words[4:].isdigit():
+            words = f"node {words[4:]}"
+    head = f"{vessel} {term.replace('.', ' ').replace('_', ' ')}".strip()
+    return f"{head}, {words}" if words else head
 
 
 def _temperature(ax, view: _View, overview: bool):
@@ -300,33 +473,54 @@ def _temperature(ax, view: _View, overview: bool):
             values = r[name]
             same = next((ln for vals, ln in drawn if np.array_equal(vals, values,
                                                                     equal_nan=True)), None)
+            label = temperature_label(v, name)
             if same is not None:
-                same.set_label(f"{same.get_label()} = {name[len(v) + 1:]}")
+                same.set_label(f"{same.get_label()} = {label.split(', ', 1)[-1]}")
                 continue
             k = len(drawn)
-            _line(ax, view, values - ZERO_CELSIUS, f"{v} {name[len(v) + 1:]}", colour,
+            _line(ax, view, values - ZERO_CELSIUS, label, colour,
                   lw=1.1, ls=DASHES[1 + k % (len(DASHES) - 1)])
             if not view.empty:
                 drawn.append((values, ax.get_lines()[-1]))
     ax.set_ylabel("Temperature [°C]")
     walls = any(view.extra_temperatures.values())
     title = "Gas and wall temperatures" if walls else "Gas temperature"
+    if not view.empty:
+        least_span(ax, 1e-2)
+        _temperature_limits(ax, view)
     _finish(ax, view, title, floor=1e-2, overview=overview)
 
 
 def _mass(ax, view: _View, overview: bool):
+    if view.mass_apart:  # one axis cannot show a small vessel beside a large one
+        for v in view.vessels:
+            m = view.result[f"{v}.mass"]
+            _line(ax, view, m - (m[0] if len(m) else 0.0), v, view.colour[v], lw=1.6,
+                  ls=view.dash[v])
+        ax.set_ylabel("Mass change since the start [kg]")
+        _finish(ax, view, "Change of mass in each vessel", floor=1e-6, overview=overview)
+        return
     for v in view.vessels:
         _line(ax, view, view.result[f"{v}.mass"], v, view.colour[v], lw=1.6, ls=view.dash[v])
     ax.set_ylabel("Mass in vessel [kg]")
     _finish(ax, view, "Mass in each vessel", floor=1e-6, overview=overview)
 
 
+def _mass_of(ax, view: _View, vessel: str):
+    """One vessel's mass on an axis of its own (vessels of very different sizes)."""
+    _line(ax, view, view.result[f"{vessel}.mass"], vessel, view.colour[vessel], lw=1.6,
+          ls=view.dash[vessel])
+    ax.set_ylabel("Mass [kg]")
+    _finish(ax, view, f"Mass in {vessel}", floor=1e-6, overview=True)
+    if ax.get_legend() is not None:  # the title names the one vessel
+        ax.get_legend().remove()
+
+
 def _flow(ax, view: _View, overview: bool):
     r = view.result
     net = r.network
     flows = {k: r[f"{k}.mass_flow"] for k in view.links}
-    peak = max((_peak(f) for f in flows.values()), default=0.0)
-    name, size = flow_unit(peak)
+    name, size = view.units.flow, view.units.flow_size
     for link in net.links:
         label = f"{link.name} ({link.source} → {link.target})"
         _line(ax, view, flows[link.name] / size, label, view.colour[link.name], lw=1.6,
@@ -489,14 +683,14 @@ def _finish(ax, view: _View, title: str, floor: float | None, overview: bool,
     else:
         ax.set_xlim(view.t[0], view.t[-1] if view.t[-1] > view.t[0] else view.t[0] + 1.0)
         if floor is not None:
-            _least_span(ax, floor)
+            least_span(ax, floor)
         obstacles = _events(ax, view, event_labels, size)
     if legend_outside:  # a low panel of fixed range: the legend beside it hides nothing
         if ax.get_legend_handles_labels()[0]:
             ax.legend(loc="center left", bbox_to_anchor=(1.005, 0.5), fontsize=LEGEND_PT,
                       framealpha=0.9)
     else:
-        _legend(ax, size, obstacles)
+        place_legend(ax, size, obstacles)
 
 
 def _panel_size(ax, view: _View, overview: bool) -> tuple[float, float]:
@@ -513,7 +707,9 @@ def _curves(ax) -> list:
     return [ln for ln in ax.get_lines() if not ln.get_label().startswith("_")]
 
 
-def _least_span(ax, floor: float):
+def least_span(ax, floor: float):
+    """Widen a panel's y range to at least ``floor`` (and 1e-3 of its largest value), so
+    that round-off does not show as ticks."""
     parts = [np.asarray(ln.get_ydata(), dtype=float) for ln in _curves(ax)]
     values = np.concatenate(parts) if parts else np.zeros(0)
     values = values[np.isfinite(values)]
@@ -527,12 +723,16 @@ def _least_span(ax, floor: float):
 
 
 def _events(ax, view: _View, labels: bool, size: tuple[float, float]) -> list:
-    """Event times as thin dotted lines, with text beside them when there are
-    few; returns the boxes the texts take (axes fractions x0, y0, x1, y1)."""
+    """Event times as thin dotted lines, with text beside them when there are few;
+    returns the boxes the texts take (axes fractions x0, y0, x1, y1). The stop or
+    failure that ends a run gets a line but no text: the subtitle says it, and a text
+    at the right edge would run over the axis beside it."""
     span = view.t[-1] - view.t[0] if len(view.t) else 0.0
     if len(view.events) > MAX_EVENT_LINES:
         return []
-    show = labels and len(view.events) <= MAX_EVENT_LABELS
+    said = [(t, text) for t, text in view.events
+            if not text.startswith(tuple(long for long, _ in EVENT_SHORT))]
+    show = labels and len(said) <= MAX_EVENT_LABELS
     glyph = 0.56 * EVENT_PT / 72.0  # [in] average character width
     most = int(EVENT_LABEL_HEIGHT * size[1] / glyph)
     thick = 1.5 * EVENT_PT / 72.0 / size[0]  # text height across the panel [axes fraction]
@@ -543,17 +743,17 @@ def _events(ax, view: _View, labels: bool, size: tuple[float, float]) -> list:
         if not lo <= t <= hi:
             continue
         ax.axvline(t, color="0.4", lw=0.8, ls=":", zorder=1)
-        if not show or (span > 0 and t - last < EVENT_MIN_GAP * span):
+        if not show or (t, text) not in said or (span > 0 and t - last < EVENT_MIN_GAP * span):
             continue
         last = t
-        for long, short in EVENT_SHORT:
-            text = text.replace(long, short)
         text = _cut(text, most)
         at_right = span > 0 and t > view.t[0] + 0.5 * span
-        ax.text(t, 0.98, text, transform=ax.get_xaxis_transform(), rotation=90,
-                ha="right" if at_right else "left", va="top", fontsize=EVENT_PT,
-                color="0.2", bbox=dict(boxstyle="square,pad=0.1", fc="white", ec="none",
-                                       alpha=0.6), zorder=4, clip_on=True)
+        # beside the line, on the side towards the middle, always inside the panel
+        ax.annotate(text, (t, 0.98), xycoords=ax.get_xaxis_transform(),
+                    xytext=(-2.0 if at_right else 2.0, 0.0), textcoords="offset points",
+                    rotation=90, ha="right" if at_right else "left", va="top",
+                    fontsize=EVENT_PT, color="0.2", zorder=4, annotation_clip=True,
+                    bbox=dict(boxstyle="square,pad=0.1", fc="white", ec="none", alpha=0.6))
         x = (t - lo) / (hi - lo)
         height = len(text) * glyph / size[1]
         boxes.append((x - thick, 0.98 - height, x, 0.98) if at_right else
@@ -561,7 +761,7 @@ def _events(ax, view: _View, labels: bool, size: tuple[float, float]) -> list:
     return boxes
 
 
-def _legend(ax, size: tuple[float, float], obstacles: list):
+def place_legend(ax, size: tuple[float, float], obstacles: list):
     """A legend where it hides no curve and no event text.
 
     Tries the corners and edge middles in turn with the legend's size
@@ -639,6 +839,11 @@ def _hits_boxes(boxes, box) -> bool:
 
 # ---------------------------------------------------------------- figures
 
+def save(fig, path: Path) -> None:
+    """Write ``fig`` as PNG at :data:`DPI` with :data:`PNG_OPTIONS`."""
+    fig.savefig(path, dpi=DPI, pil_kwargs=PNG_OPTIONS)
+
+
 @contextlib.contextmanager
 def _figure(size: tuple[float, float], view: _View):
     """A figure for a run (see :func:`figure`)."""
@@ -709,4 +914,5 @@ def _wrap(text: str, width_in: float, size_pt: float, bold: bool = False,
     return lines
 
 
-__all__ = ["flow_unit", "plot_run", "time_unit"]
+__all__ = ["figure", "flow_unit", "least_span", "place_legend", "plot_names", "plot_run", "save",
+           "temperature_label", "time_unit"]

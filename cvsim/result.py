@@ -8,16 +8,15 @@ look for, each with its time, the balances of the whole run and the caution.
 """
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass, field
 
 import numpy as np
 
 from .contents import run_figures
+from .histories import EXTREME_RTOL, Histories
 from .flow.exponent import EXPONENT_ASSUMPTION
 from .limits import check_vessel, first_time_at_or_below
 from .model import ACC_PER_LINK, Model
-from .network import Network
 from .rupture import add_rupture
 from .solve import RawRun
 from .zones import run_figures as zone_figures
@@ -28,14 +27,10 @@ CAUTION = ("Screening estimate - verify against the governing codes (e.g. ASME S
 
 
 @dataclass
-class Result:
-    network: Network
-    status: str
-    message: str
-    columns: list            # (name, SI unit, kind)
-    data: np.ndarray         # recorded rows x columns (SI)
-    fine_data: np.ndarray    # every accepted step x columns (SI)
-    events: list             # (time [s], text)
+class Result(Histories):
+    """A run: its histories (:class:`~cvsim.histories.Histories`: network, status,
+    message, columns, recorded and step data, events) and what was made of them."""
+
     stats: dict
     totals: dict             # per link: mass [kg], energy out [J], energy in [J]; per heat term
     balance: dict            # mass and energy closure of the whole run
@@ -64,46 +59,6 @@ class Result:
         """The design limits this run crosses."""
         return [c for c in self.limits if c.crossed]
 
-    # -------------------------------------------------------------- access
-    @property
-    def ok(self) -> bool:
-        return self.status != "failed"
-
-    @property
-    def time(self) -> np.ndarray:
-        return self.data[:, 0]
-
-    def names(self) -> list[str]:
-        return [c[0] for c in self.columns]
-
-    def unit(self, name: str) -> str:
-        return self.columns[self._col(name)][1]
-
-    def _col(self, name: str) -> int:
-        for i, c in enumerate(self.columns):
-            if c[0] == name:
-                return i
-        raise KeyError(f"no column '{name}'; columns are: {', '.join(self.names())}")
-
-    def __getitem__(self, name: str) -> np.ndarray:
-        return self.data[:, self._col(name)]
-
-    def fine(self, name: str) -> np.ndarray:
-        """History of one column at every accepted solver step (and recorded points)."""
-        return self._all()[:, self._col(name)]
-
-    def _all(self) -> np.ndarray:
-        if self.fine_data.size == 0:
-            return self.data
-        both = np.vstack([self.data, self.fine_data])
-        return both[np.argsort(both[:, 0], kind="stable")]
-
-    def vessel_names(self) -> list[str]:
-        return [v.name for v in self.network.vessels]
-
-    def link_names(self) -> list[str]:
-        return [k.name for k in self.network.links]
-
     def to_dataframe(self):
         """The recorded histories as a pandas DataFrame (SI units; needs pandas), with
         the caution and provenance in ``df.attrs``."""
@@ -114,16 +69,6 @@ class Result:
         return df
 
     # -------------------------------------------------------------- summary
-    def extreme(self, name: str, kind: str) -> tuple[float, float]:
-        """(value, time) of the maximum (``kind='max'``) or minimum of a column,
-        over recorded points and every solver step."""
-        allrows = self._all()
-        col = allrows[:, self._col(name)]
-        if np.all(np.isnan(col)):
-            return (math.nan, math.nan)
-        i = int(np.nanargmax(col) if kind == "max" else np.nanargmin(col))
-        return float(col[i]), float(allrows[i, 0])
-
     def targets(self) -> list[dict]:
         """Time each stop condition of the run was first met (``None``: not reached)."""
         out = []
@@ -254,6 +199,7 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
                     stats=dict(raw.stats), totals=totals, balance=balance,
                     assumptions=assumptions(model), provenance=dict(provenance or {}),
                     warnings=warnings, device_figures=figures)
+    result.warnings += still_rising(result)
     _add_reviews(model, result)
     result.limits = check_limits(result)
     add_rupture(result)
@@ -265,10 +211,38 @@ def build_result(model: Model, raw: RawRun, provenance: dict | None = None) -> R
     return result
 
 
+#: a vessel's pressure still rising at the end of a completed run by more than this
+#: fraction of its range over the last tenth of the run: the peak may come later
+RISING_SHARE = 0.01
+
+
+def still_rising(result: Result) -> list[str]:
+    """Warnings for a run that ran to its end time (no stop) while a vessel's pressure
+    was still at its highest and rising: its peak may lie beyond the end."""
+    if result.status != "completed" or len(result.data) < 3:
+        return []
+    t = result.fine("time")
+    t_end = float(t[-1])
+    last = t >= t[0] + 0.9 * (t_end - t[0])
+    out = []
+    for v in result.vessel_names():
+        p = result.fine(f"{v}.pressure")
+        if not np.all(np.isfinite(p)):
+            continue
+        span = float(p.max() - p.min())
+        tail = p[last]
+        if span > 0.0 and tail.size > 1 and p[-1] >= p.max() - EXTREME_RTOL * abs(p[-1]) \
+                and tail[-1] - tail[0] > RISING_SHARE * span:
+            out.append(f"vessel '{v}': the pressure is still rising at the end of the run "
+                       f"(t = {t_end:.6g} s), so its peak may come later: run longer "
+                       "(run.end) or stop on a condition (run.stop_when)")
+    return out
+
+
 def self_checks(result: Result) -> list:
     """The self-checks of :mod:`cvsim.checks`, with a fresh fluid object."""
     from .checks import run_checks
-    from .fluid import fluid_for
+    from .engines import fluid_for
     return run_checks(result, fluid_for(result.network.fluid))
 
 

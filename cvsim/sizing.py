@@ -137,10 +137,24 @@ class ReliefSizing:
     peak_pressure: float = math.nan
     peak_time: float = math.nan
     notes: list = field(default_factory=list)
+    scenario_area: float = math.nan  # [m2] the valve's area in the scenario as read
 
     @property
     def met(self) -> bool:
         return bool(self.peak_pressure <= self.allowed_pressure)
+
+    def changes(self) -> list:
+        """The values the confirming run uses in place of the scenario's: the chosen
+        API 526 letter and its effective area (:class:`cvsim.changes.Change`)."""
+        from .changes import Change
+        if self.letter is None or self.confirm is None:
+            return []
+        if math.isclose(self.letter_area, self.scenario_area, rel_tol=1e-9):
+            return []  # the scenario's valve is the one chosen
+        why = "cvsim relief: the API 526 letter sized for the relief load"
+        return [Change(f"links.{self.link}.orifice_letter", self.letter, "", why),
+                Change(f"links.{self.link}.area", float(self.letter_area), "m2",
+                       f"{why} (its effective area)")]
 
     def as_dict(self) -> dict:
         from .result import CAUTION
@@ -277,7 +291,7 @@ def size_relief(network: Network, link_name: str, *, load: float | None = None,
     highest pressure of the node the valve discharges into.
     """
     from .api import run_network
-    from .fluid import fluid_for
+    from .engines import fluid_for
     from .model import Model
     if sum((load is not None, heat is not None, bool(blocked_outlet), bool(fire))) != 1:
         raise SizingError("give exactly one relief load: a mass flow, a heat input, a fire, "
@@ -458,7 +472,7 @@ def size_relief(network: Network, link_name: str, *, load: float | None = None,
         allowed_pressure=p1, accumulation_basis=acc_text, service=service, method=method,
         relieving_basis=rel_text, mawp=mawp, set_pressure=dev.set_pressure,
         max_set_pressure=p_set_max, density=stream.rho, loads=loads, areas=areas,
-        coefficients=coefficients, sized_by=sized_by, notes=notes)
+        coefficients=coefficients, sized_by=sized_by, notes=notes, scenario_area=dev.area)
     if pick is None:
         notes.append("the required area exceeds the largest API 526 letter (T, 26 in2): "
                      "several valves or a larger special valve are needed; no confirming "

@@ -159,6 +159,12 @@ def integrate(model: Model, progress=None) -> RawRun:
         return _finish(raw, "failed", str(exc), None, 0.0, model, evals0, wall0)
     if met is not None:
         raw.rows.append(seg.observe(0.0, y))
+        if met.at_start != "stop":  # not asked for: most likely written the wrong way
+            msg = (f"the stop condition '{met.describe()}' is already met at the start, so "
+                   "the run would end at t = 0; write it the other way round or change the "
+                   "initial state (run.stop_when), or add 'if_met_at_start: stop' to the "
+                   "condition to end the run there on purpose")
+            return _finish(raw, "failed", msg, y, 0.0, model, evals0, wall0)
         msg = f"stop condition already met at the start: {met.describe()}"
         raw.events.append((0.0, msg))
         return _finish(raw, "stopped", msg, y, 0.0, model, evals0, wall0)

@@ -194,6 +194,50 @@ def _pint_expression(unit: str, offset_ok: bool) -> str:
     return _EXPONENT.sub(r"**\1", unit)
 
 
+#: The commonest units of each dimension as (SI per unit, SI offset): read without
+#: pint, so that a scenario written in them never loads it (pint's import and registry
+#: cost about a quarter of a second of a command, most of it pint's probing of optional
+#: array libraries). Keys are pint expressions as :func:`_pint_expression` writes them;
+#: every factor is an exact definition, and a test compares each with pint itself.
+FAST_UNITS: dict[tuple[str, str], tuple[float, float]] = {
+    **{("pressure", u): (f, 0.0) for u, f in (
+        ("Pa", 1.0), ("kPa", 1e3), ("MPa", 1e6), ("hPa", 100.0), ("bar", 1e5),
+        ("mbar", 100.0), ("psi", PSI), ("atm", ATMOSPHERE))},
+    ("temperature", "K"): (1.0, 0.0),
+    ("temperature", "degC"): (1.0, 273.15),
+    ("temperature_difference", "K"): (1.0, 0.0),
+    ("temperature_difference", "delta_degC"): (1.0, 0.0),
+    **{("length", u): (f, 0.0) for u, f in (("m", 1.0), ("cm", 0.01), ("mm", 1e-3),
+                                            ("km", 1e3), ("in", 0.0254), ("ft", FOOT))},
+    **{("area", u): (f, 0.0) for u, f in (("m**2", 1.0), ("cm**2", 1e-4), ("mm**2", 1e-6),
+                                          ("in**2", 0.0254 ** 2))},
+    **{("volume", u): (f, 0.0) for u, f in (("m**3", 1.0), ("L", 1e-3), ("l", 1e-3))},
+    **{("mass", u): (f, 0.0) for u, f in (("kg", 1.0), ("g", 1e-3), ("t", 1e3))},
+    **{("time", u): (f, 0.0) for u, f in (("s", 1.0), ("ms", 1e-3), ("min", 60.0),
+                                          ("h", 3600.0), ("d", 86400.0))},
+    **{("mass_flow", u): (f, 0.0) for u, f in (("kg/s", 1.0), ("g/s", 1e-3),
+                                               ("kg/h", 1 / 3600.0), ("t/h", 1e3 / 3600.0),
+                                               ("kg/min", 1 / 60.0))},
+    **{("volume_flow", u): (f, 0.0) for u, f in (("m**3/s", 1.0), ("m**3/h", 1 / 3600.0),
+                                                 ("L/min", 1e-3 / 60.0), ("L/s", 1e-3))},
+    **{("power", u): (f, 0.0) for u, f in (("W", 1.0), ("kW", 1e3), ("MW", 1e6))},
+    **{("heat_transfer_coefficient", u): (1.0, 0.0)
+       for u in ("W/m**2/K", "W/(m**2*K)", "W/m**2/delta_degC")},
+    ("thermal_conductance", "W/K"): (1.0, 0.0),
+    ("thermal_conductance", "kW/K"): (1e3, 0.0),
+    **{("energy", u): (f, 0.0) for u, f in (("J", 1.0), ("kJ", 1e3), ("MJ", 1e6),
+                                            ("kWh", 3.6e6))},
+    ("thermal_conductivity", "W/m/K"): (1.0, 0.0),
+    ("specific_heat", "J/kg/K"): (1.0, 0.0),
+    ("specific_heat", "kJ/kg/K"): (1e3, 0.0),
+    ("molar_mass", "g/mol"): (1e-3, 0.0),
+    ("molar_mass", "kg/mol"): (1.0, 0.0),
+    ("density", "kg/m**3"): (1.0, 0.0),
+    ("velocity", "m/s"): (1.0, 0.0),
+    ("fraction", "%"): (0.01, 0.0),
+}
+
+
 def _quote(text) -> str:
     return f'"{text}"'
 
@@ -296,16 +340,20 @@ def read_quantity(text: str | float | int, dimension: str, *,
 
     base, reference = _split_reference(unit)
     expression = _pint_expression(base, offset_ok=(dim.name == "temperature"))
-    ureg = registry()
-    try:
-        units = ureg.parse_units(expression)
-    except _PARSE_ERRORS as exc:
-        raise UnitsError(_unknown_unit_message(str(text), unit, dim)) from exc
-    quantity = ureg.Quantity(number, units)
-    target = ureg.parse_units(dim.si) if dim.si else ureg.dimensionless
-    if quantity.dimensionality != target.dimensionality:
-        raise UnitsError(_wrong_dimension_message(str(text), quantity, number, dim, unit))
-    value = float(quantity.to(target).magnitude)
+    fast = FAST_UNITS.get((dim.name, expression))
+    if fast is not None:
+        value = number * fast[0] + fast[1]
+    else:
+        ureg = registry()
+        try:
+            units = ureg.parse_units(expression)
+        except _PARSE_ERRORS as exc:
+            raise UnitsError(_unknown_unit_message(str(text), unit, dim)) from exc
+        quantity = ureg.Quantity(number, units)
+        target = ureg.parse_units(dim.si) if dim.si else ureg.dimensionless
+        if quantity.dimensionality != target.dimensionality:
+            raise UnitsError(_wrong_dimension_message(str(text), quantity, number, dim, unit))
+        value = float(quantity.to(target).magnitude)
 
     note = ""
     if reference is not None and dim.name == "stress":
@@ -315,7 +363,8 @@ def read_quantity(text: str | float | int, dimension: str, *,
         value += atmosphere
         note = f"gauge: atmosphere {atmosphere:.6g} Pa added"
     elif reference is None and dim.name == "pressure" and _pressure_base(unit) in _AMBIGUOUS:
-        note = f"'{unit}' read as absolute; write {unit}a or {unit}g to be explicit"
+        note = (f"warning: '{unit}' read as absolute; write {unit}a or {unit}g to be "
+                "explicit")
     return Reading(value, unit, reference, note)
 
 

@@ -135,3 +135,39 @@ def test_relief_sizing_json_carries_the_caution(tmp_path, capsys):
     assert code in (0, 3)
     record = json.loads((out / "relief-sizing.json").read_text())
     assert record["caution"] == CAUTION
+
+
+def test_decimal_comma_csv_reads_back_in_a_decimal_comma_locale(tmp_path):
+    """--decimal-comma: ';' between fields, a decimal comma in numbers; read back as a
+    spreadsheet in such a locale would (csv with ';', then ',' -> '.'), the numbers equal
+    those of the ordinary file."""
+    import csv
+    scenario = tmp_path / "vent.yaml"
+    scenario.write_text("""
+title: Vent for the CSV test
+fluid: Nitrogen
+properties: ideal-gas
+ideal_gas: {molar_mass: 28.0134 g/mol, heat_capacity: 1040 J/kg/K}
+vessels:
+  tank: {volume: 0.5 m3, initial: {pressure: 10 barg, temperature: 15 degC}}
+reservoirs:
+  outside: {pressure: 1 atm, temperature: 15 degC}
+links:
+  vent: {from: tank, to: outside, device: orifice, diameter: 5 mm, discharge_coefficient: 0.8,
+         flow_model: ideal-gas}
+run: {end: 5 s}
+""")
+    assert main(["run", str(scenario), "--out", str(tmp_path / "dot"), "--no-plots",
+                 "--quiet"]) == 0
+    assert main(["run", str(scenario), "--out", str(tmp_path / "comma"), "--no-plots",
+                 "--quiet", "--decimal-comma"]) == 0
+
+    def rows(path, sep):
+        lines = [ln for ln in path.read_text().splitlines() if not ln.startswith("#")]
+        return list(csv.reader(lines, delimiter=sep))
+    dot = rows(tmp_path / "dot" / "history.csv", ",")
+    comma = rows(tmp_path / "comma" / "history.csv", ";")
+    assert dot[0] == comma[0]  # the same headers
+    assert any("," in cell for cell in comma[1])
+    for a, b in zip(dot[1:], comma[1:]):
+        assert [float(x) for x in a if x] == [float(x.replace(",", ".")) for x in b if x]

@@ -5,6 +5,7 @@ import numpy as np
 import pytest
 
 from cvsim.heat import geometry as geo
+from cvsim.heat.level import area_below
 
 
 def _profile_torispherical(D, R, r, n=20001):
@@ -184,7 +185,7 @@ def test_wetted_area_matches_the_fluids_library(kind, orientation):
     levels = ([0.05, 0.3, 0.6, 0.9, 1.15] if orientation == "horizontal"
               else [0.04, depth * 0.7, depth + 0.5, depth + L + 0.3 * depth])
     for level in levels:
-        ours = geo.area_below(level, "cylinder", D, L, kind, orientation)
+        ours = area_below(level, "cylinder", D, L, kind, orientation)
         # source: fluids library (Caleb Bell), fluids.geometry SA_partial_* functions
         # (partial surface areas of tank heads and the cylindrical body)
         if orientation == "horizontal":
@@ -209,15 +210,15 @@ def test_wetted_area_matches_the_fluids_library(kind, orientation):
 def test_wetted_area_of_flat_heads_and_spheres():
     D, L = 1.0, 2.0
     # horizontal, level at the axis: half the shell and half of each flat end
-    half = geo.area_below(0.5, "cylinder", D, L, "flat", "horizontal")
+    half = area_below(0.5, "cylinder", D, L, "flat", "horizontal")
     assert half == pytest.approx(math.pi * D * L / 2 + math.pi * D**2 / 4, rel=1e-12)
     # source: area of a spherical zone 2 pi R h (Archimedes; CRC Standard Mathematical
     # Tables and Formulae, 31st ed., sec. 4.8)
-    assert geo.area_below(0.3, "sphere", 2.0) == pytest.approx(2 * math.pi * 1.0 * 0.3)
+    assert area_below(0.3, "sphere", 2.0) == pytest.approx(2 * math.pi * 1.0 * 0.3)
     # vertical, flat ends: the bottom disc as soon as there is liquid, the top one when full
-    assert geo.area_below(0.5, "cylinder", D, L, "flat") == pytest.approx(
+    assert area_below(0.5, "cylinder", D, L, "flat") == pytest.approx(
         math.pi / 4 + math.pi * 0.5)
-    assert geo.area_below(5.0, "cylinder", D, L, "flat") == pytest.approx(geo.cylinder(D, L)[1])
+    assert area_below(5.0, "cylinder", D, L, "flat") == pytest.approx(geo.cylinder(D, L)[1])
 
 
 def test_area_below_of_the_outside_surface_is_the_whole_outside_when_submerged():
@@ -225,7 +226,7 @@ def test_area_below_of_the_outside_surface_is_the_whole_outside_when_submerged()
         for orientation in ("vertical", "horizontal"):
             t = 0.04
             s = geo.wall_surface("cylinder", 1.1, 2.5, kind)
-            full = geo.area_below(100.0, "cylinder", 1.1, 2.5, kind, orientation, offset=t)
+            full = area_below(100.0, "cylinder", 1.1, 2.5, kind, orientation, offset=t)
             assert full == pytest.approx(s.area(t), rel=1e-7), (kind, orientation)
 
 

@@ -136,7 +136,25 @@ def test_every_check_has_a_short_stable_key():
     keys = [c.key for c in check_vessel("v", lim, ATM, t, ATM + np.array([10e5, 4e5]),
                                         np.array([288.0, 250.0]), walls)]
     assert keys == ["design_pressure", "min_metal_temperature", "min_metal_temperature.gas",
-                    "max_temperature", "max_temperature.wall.inner", "depressure"]
+                    "max_temperature", "max_temperature.wall", "depressure"]
+
+
+def test_one_maximum_temperature_check_per_wall_states_where_it_occurs():
+    """A layered wall records its surfaces and every node; the limit on its highest
+    temperature is one check, at the hottest of them (brute force here)."""
+    t = np.array([0.0, 10.0, 20.0])
+    lim = nw.VesselLimits(max_temperature=400.0)
+    walls = {"v.wall.inner_temperature": np.array([300.0, 390.0, 395.0]),
+             "v.wall.outer_temperature": np.array([300.0, 420.0, 410.0]),
+             **{f"v.wall.node{i}_temperature": np.array([300.0, 380.0 + 5 * i, 390.0])
+                for i in range(5)}}
+    checks = check_vessel("v", lim, ATM, t, np.full(3, ATM), np.array([290.0, 300.0, 305.0]),
+                          walls)
+    assert [c.key for c in checks] == ["max_temperature", "max_temperature.wall"]
+    wall = checks[1]
+    hottest = max((float(v.max()), k) for k, v in walls.items())
+    assert wall.actual == hottest[0] == 420.0 and wall.time == 10.0 and wall.crossed
+    assert "outside surface" in wall.note
 
 
 # ------------------------------------- the minimum design metal temperature is a metal one

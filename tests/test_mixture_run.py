@@ -294,7 +294,7 @@ def test_component_check_fails_on_an_injected_defect(monkeypatch):
 
 
 def good_fluid(res):
-    from cvsim.fluid import fluid_for
+    from cvsim.engines import fluid_for
     return fluid_for(res.network.fluid)
 
 

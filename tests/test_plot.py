@@ -134,3 +134,203 @@ def test_importing_plot_module_does_not_import_matplotlib():
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                          check=True)
     assert out.stdout.strip() == "False"
+
+
+# ------------------------------------------------------------- limits on the plots
+
+ATM = 101325.0
+
+
+def limited_vent(design_g=160e5, mdmt=273.15 - 29.0, to_g=6.9e5, within=60.0):
+    """The vent of :func:`vent` with design limits stated: 160 bar g design pressure, an
+    MDMT the gas crosses (a perfect gas expanding from 15 degC gets far colder), a
+    depressuring target it cannot reach in time, and a relief valve set at 155 bar g."""
+    limits = nw.VesselLimits(design_pressure=ATM + design_g, accumulation=0.10,
+                             accumulation_case="single-device", min_metal_temperature=mdmt,
+                             depressure_to=ATM + to_g, depressure_within=within,
+                             depressure_basis="stated")
+    psv = nw.ReliefValve(set_pressure=ATM + 155e5, area=1e-4, kd=0.975,
+                         reseat_pressure=ATM + 145e5)
+    return run(nw.Network(
+        title="Limited vent", fluid=NITROGEN,
+        vessels=(nw.Vessel("receiver", nw.Geometry(1.0), nw.InitialState(150e5 + ATM, 288.15),
+                           limits=limits),),
+        reservoirs=(nw.Reservoir("atmosphere", Constant(ATM), Constant(288.15)),),
+        links=(nw.Link("vent", "receiver", "atmosphere",
+                       nw.Orifice(math.pi * 0.01 ** 2 / 4, 0.84)),
+               nw.Link("psv", "receiver", "atmosphere", psv)),
+        run=nw.RunSettings(end_time=300.0, record_every=1.0)))
+
+
+def drawn(draw, res):
+    """The lines and texts ``draw`` puts on one panel: {label: line}, [texts]."""
+    from cvsim.plot import figure
+    view = _View(res)
+    with figure((10.0, 6.0), "t", "s") as fig:
+        ax = fig.subplots()
+        draw(ax, view, overview=False)
+        lines = {ln.get_label(): ln for ln in ax.get_lines()}
+        texts = [t.get_text() for t in ax.texts]
+        return ({k: (np.asarray(v.get_xdata(), float), np.asarray(v.get_ydata(), float))
+                 for k, v in lines.items()}, texts, ax.get_ylim())
+
+
+def test_pressure_panel_draws_mawp_allowed_pressure_set_pressure_and_target():
+    from cvsim.plot import _pressure
+    res = limited_vent()
+    lines, _, (lo, hi) = drawn(_pressure, res)
+    bar_a = {label.split(" ")[0]: ys[0] for label, (xs, ys) in lines.items()}
+    # MAWP 160 bar g; allowed = MAWP + 10 % of the gauge design pressure
+    # source: ASME BPVC VIII-1 UG-125(c), 10 % accumulation for a single device
+    assert bar_a["MAWP"] == pytest.approx((ATM + 160e5) / 1e5)
+    assert bar_a["allowed"] == pytest.approx((ATM + 176e5) / 1e5)
+    assert bar_a["psv"] == pytest.approx((ATM + 155e5) / 1e5)
+    assert bar_a["depressure"] == pytest.approx((ATM + 6.9e5) / 1e5)
+    assert lo <= (ATM + 6.9e5) / 1e5 and hi >= (ATM + 176e5) / 1e5  # every limit in view
+    # the target is reached after the 60 s allowed: marked where it is crossed, at the
+    # deadline, on the pressure curve
+    (check,) = [c for c in res.limits if c.key == "depressure"]
+    assert check.crossed and check.time > 60.0
+    crossed = [k for k in lines if k.startswith("CROSSED")]
+    assert crossed == ["CROSSED: depressuring target reached late"]
+    (t,), (p,) = lines[crossed[0]]
+    assert t == pytest.approx(60.0)
+    assert p == pytest.approx(np.interp(60.0, res.time, res["receiver.pressure"]) / 1e5)
+
+
+def test_temperature_panel_draws_the_mdmt_and_marks_the_crossing():
+    from cvsim.plot import _temperature
+    res = limited_vent()
+    lines, _, _ = drawn(_temperature, res)
+    assert lines["MDMT -29.0 °C"][1][0] == pytest.approx(-29.0)
+    gas = res["receiver.temperature"]
+    assert gas.min() < 273.15 - 29.0  # the gas does cross it
+    (label,) = [k for k in lines if k.startswith("CROSSED")]
+    (t,), (y,) = lines[label]
+    T, when = res.extreme("receiver.temperature", "min")
+    assert (t, y) == (pytest.approx(when), pytest.approx(T - 273.15))
+
+
+def test_a_met_limit_has_no_crossing_mark():
+    from cvsim.plot import _temperature
+    res = limited_vent(mdmt=273.15 - 200.0)
+    lines, _, _ = drawn(_temperature, res)
+    assert "MDMT -200.0 °C" in lines
+    assert not [k for k in lines if k.startswith("CROSSED")]
+
+
+def test_the_stop_that_ends_a_run_gets_a_line_but_no_text():
+    from cvsim.plot import _pressure
+    res = vent()
+    assert res.status == "stopped"
+    _, texts, _ = drawn(_pressure, res)
+    assert not [t for t in texts if "stop" in t]
+
+
+def test_wall_columns_have_words_in_legends():
+    from cvsim.plot import temperature_label
+    assert temperature_label("drum", "drum.wall.inner_temperature") == "drum wall, inside surface"
+    assert temperature_label("drum", "drum.wall.outer_temperature") == \
+        "drum wall, outside surface"
+    assert temperature_label("drum", "drum.wall.node3_temperature") == "drum wall, node 3"
+
+
+def test_vessels_of_very_different_size_get_their_own_mass_axes(tmp_path):
+    import matplotlib.image as mpimg  # noqa: F401  (pictures checked below)
+    from cvsim.plot import _mass
+    res = run(nw.Network(
+        title="Small cylinder filled from a large bank", fluid=NITROGEN,
+        vessels=(nw.Vessel("bank", nw.Geometry(5.0), nw.InitialState(200e5, 288.15)),
+                 nw.Vessel("cylinder", nw.Geometry(0.05), nw.InitialState(20e5, 288.15))),
+        links=(nw.Link("fill", "bank", "cylinder", nw.Orifice(math.pi * 0.002 ** 2 / 4,
+                                                               0.84)),),
+        run=nw.RunSettings(end_time=30.0, record_every=1.0)))
+    view = _View(res)
+    assert view.mass_apart  # 100 times the volume
+    lines, _, _ = drawn(_mass, res)
+    # the overview shows the change of each vessel's mass: the cylinder's gain equals
+    # the bank's loss (mass balance, no other flow)
+    gain = lines["cylinder"][1]
+    loss = lines["bank"][1]
+    assert gain[0] == 0.0 and loss[0] == 0.0
+    assert gain[-1] == pytest.approx(-loss[-1], rel=1e-6)
+    assert gain[-1] > 0.1 * res["cylinder.mass"][0]   # visible on the shared axis
+    paths = plot_run(res, tmp_path)
+    assert "mass.png" in [p.name for p in paths]
+
+
+def test_units_agree_across_plots_summary_and_csv(tmp_path):
+    """A small flow (g/s) over a long run (min): the plot axes, the summary and the CSV
+    header all use g/s and min."""
+    from cvsim.outputs import summary_text, write_csv
+    from cvsim.plot import _flow
+    res = run(nw.Network(
+        title="Slow vent", fluid=NITROGEN,
+        vessels=(nw.Vessel("receiver", nw.Geometry(0.5), nw.InitialState(20e5, 288.15)),),
+        reservoirs=(nw.Reservoir("atmosphere", Constant(ATM), Constant(288.15)),),
+        links=(nw.Link("vent", "receiver", "atmosphere",
+                       nw.Orifice(math.pi * 0.0015 ** 2 / 4, 0.84)),),
+        run=nw.RunSettings(end_time=1200.0, record_every=10.0)))
+    view = _View(res)
+    assert (view.units.flow, view.units.time) == ("g/s", "min")
+    assert view.time_label == "Time [min]"
+    from cvsim.plot import figure
+    with figure((10.0, 6.0), "t", "s") as fig:
+        ax = fig.subplots()
+        _flow(ax, view, overview=False)
+        assert ax.get_ylabel() == "Mass flow [g/s]"
+    text = summary_text(res)
+    assert "g/s at" in text and "Simulated time: 20 min" in text
+    head = [ln for ln in write_csv(res, tmp_path / "h.csv").read_text().splitlines()
+            if not ln.startswith("#")][0]
+    assert "vent.mass_flow [g/s]" in head and head.startswith("time [s],time [min],")
+
+
+# ------------------------------------------------------------- plotting helpers
+
+def test_helper_processes_draw_the_same_figures_and_end(tmp_path):
+    from cvsim.painters import Painters
+    from cvsim.plot import plot_names
+    res = limited_vent()
+    painters = Painters.start()
+    if painters is None:
+        pytest.skip("no fork on this platform or a single core")
+    (tmp_path / "a").mkdir()
+    with painters:
+        processes = [p for p, _ in painters.helpers]
+        paths = painters.draw(res, tmp_path / "a", plot_names(res))
+    assert [p.name for p in paths] == [f"{n}.png" for n in plot_names(res)]
+    assert_pictures(paths, [f"{n}.png" for n in plot_names(res)])
+    # drawn in this process: the same pictures (same size; the same limits drawn)
+    alone = plot_run(res, tmp_path / "b")
+    import matplotlib.image as mpimg
+    for a, b in zip(paths, alone):
+        assert mpimg.imread(a).shape == mpimg.imread(b).shape
+    assert not any(p.is_alive() for p in processes)  # closed with the block
+
+
+def test_a_failing_helper_leaves_the_drawing_to_the_main_process(tmp_path):
+    from cvsim.outputs import _plots
+    from cvsim.painters import Painters
+    res = vent()
+    painters = Painters.start()
+    if painters is None:
+        pytest.skip("no fork on this platform or a single core")
+    with painters:
+        for p, _ in painters.helpers:  # helpers that died (killed, out of memory)
+            p.kill()
+            p.join()
+        paths = _plots(res, tmp_path, painters)
+    assert [p.name for p in paths] == QUANTITIES
+
+
+def test_what_the_helpers_receive_loads_neither_solver_nor_property_library(tmp_path):
+    import pickle
+    from cvsim.painters import _light
+    path = tmp_path / "light.pkl"
+    path.write_bytes(pickle.dumps(_light(limited_vent())))
+    code = ("import pickle, sys; pickle.loads(open(sys.argv[1], 'rb').read()); "
+            "print('scipy' in sys.modules, 'CoolProp' in sys.modules)")
+    out = subprocess.run([sys.executable, "-c", code, str(path)], capture_output=True,
+                         text=True, check=True)
+    assert out.stdout.split() == ["False", "False"]

@@ -79,7 +79,7 @@ def test_a_sweep_case_past_its_time_limit_fails_alone(small):
 
 
 def test_case_time_limit_option_reads_times_and_none(small, capsys):
-    from cvsim.study.cli import _time_limit
+    from cvsim.study.options import read_time_limit as _time_limit
     assert _time_limit("2 min") == 120.0
     assert _time_limit("none") is None
     assert main(["sweep", str(small), "--vary", "links.vent.diameter=2 mm, 3 mm",

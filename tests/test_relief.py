@@ -288,3 +288,60 @@ def test_balanced_bellows_kb_from_the_standards_figure_in_a_run():
     w_crit, _ = relief.api520_mass_flow(1e-4, up.p, 1e5, up.T, Z, f.molar_mass, k, kb=kb)
     assert flow.mdot == pytest.approx(w_crit, rel=1e-12)
     assert not flow.choked
+
+
+# --------------------------------------------- cycling, first peak, still rising
+
+def _pop_valve():
+    from cvsim import network as nw
+    from cvsim.fluid import make_fluid
+    f = make_fluid("Nitrogen", "ideal-gas", 0.0280134, 1040.0)
+    valve = nw.ReliefValve(area=1e-4, set_pressure=10e5, reseat_pressure=9.3e5)
+    return relief.ReliefValveDevice(valve, f, 0, 0, 1)
+
+
+def _switches(dev, opens, open_for):
+    log = []
+    for t in opens:
+        log += [(t, dev.key("open"), True), (t + open_for, dev.key("open"), False)]
+    return log
+
+
+def test_a_pop_valve_that_cycles_open_briefly_is_cautioned_as_oversized():
+    dev = _pop_valve()
+    # 34 openings over 15 min, each open 2 s of a 26 s cycle: open 8 % of the time,
+    # never 5 within 60 s (so not the chatter warning)
+    opens = [60.0 + 26.0 * i for i in range(34)]
+    figures, warnings = dev.report({dev.key("open"): False}, _switches(dev, opens, 2.0), 950.0)
+    assert figures["openings"] == 34
+    # open share by hand: 34 x 2 s over the time from the first opening to the end
+    assert figures["open_share"] == pytest.approx(34 * 2.0 / (950.0 - 60.0))
+    (warning,) = warnings
+    assert "cycled 34 times" in warning and "oversized" in warning
+    # the same valve open most of the time is not oversized: no caution
+    _, quiet = dev.report({dev.key("open"): False}, _switches(dev, opens, 20.0), 950.0)
+    assert quiet == []
+
+
+def test_a_repeated_peak_is_timed_at_its_first_occurrence_and_a_rising_end_is_told():
+    import numpy as np
+    from cvsim import network as nw
+    from cvsim.histories import Histories
+    from cvsim.result import still_rising
+    t = np.linspace(0.0, 100.0, 101)
+    p = 10e5 + 1e5 * np.abs(np.sin(t * np.pi / 20.0))   # peaks at 10, 30, 50, 70, 90 s
+    p[90] += 1e-4   # the last peak higher by round-off only (1e-10 relative)
+    net = nw.Network(title="t", fluid=nw.FluidSpec("Nitrogen", "ideal-gas", 0.028, 1040.0),
+                     vessels=(nw.Vessel("v", nw.Geometry(1.0), nw.InitialState(10e5, 300.0)),),
+                     run=nw.RunSettings(end_time=100.0, record_every=1.0))
+    h = Histories(net, "completed", "", [("time", "s", "time"), ("v.pressure", "Pa", "vessel")],
+                  np.column_stack([t, p]), np.zeros((0, 2)), [])
+    value, when = h.extreme("v.pressure", "max")
+    assert value == p.max() and when == 10.0   # the first pop, not the last
+    assert still_rising(h) == []                # falling at the end
+    rising = Histories(net, "completed", "", h.columns, np.column_stack([t, 1e5 + 1e3 * t]),
+                       np.zeros((0, 2)), [])
+    (hint,) = still_rising(rising)
+    assert "still rising at the end" in hint and "run longer" in hint
+    stopped = Histories(net, "stopped", "", h.columns, rising.data, rising.fine_data, [])
+    assert still_rising(stopped) == []          # a stop condition ended it on purpose

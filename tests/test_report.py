@@ -32,7 +32,7 @@ RUN_SECTIONS = ["title-block", "caution-top", "contents", "job", "inputs", "inpu
                 "inputs-used", "model", "model-choices", "assumptions", "warnings", "summary",
                 "limits", "plots", "checks", "balances", "solver", "software", "sign-off",
                 "caution-end"]
-SWEEP_SECTIONS = ["title-block", "caution-top", "job", "inputs", "parameters", "cases",
+SWEEP_SECTIONS = ["title-block", "caution-top", "job", "parameters", "cases",
                   "plots", "notes", "software", "sign-off", "caution-end"]
 VOID = {"meta", "img", "br", "wbr", "col", "hr", "input", "link"}
 
@@ -195,15 +195,19 @@ def test_limits_table_lists_each_limit_and_marks_crossed_rows_in_words(blowdown_
                                                                       blowdown_result):
     _, result = blowdown_result
     assert result.limits and result.limits_crossed  # the demo crosses its MDMT
-    table = Tree(blowdown_html).by_id("limits").find("table")[0]
+    section = Tree(blowdown_html).by_id("limits")
+    table = section.find("table")[0]
     rows = table.find("tbody")[0].find("tr")
     assert len(rows) == len(result.limits)
-    for row, check in zip(rows, result.limits):
+    basis = section.find("ul", cls="limits-basis")[0].find("li")
+    for i, (row, check) in enumerate(zip(rows, result.limits), 1):
         text = words(row.text())
         assert check.name in text and check.vessel in text
         assert ("CROSSED" in text) == (not check.met)
         assert ("crossed" in row.attrs.get("class", "")) == (not check.met)
-        assert check.practice.split(";")[0] in text
+        assert f"L{i}" in text  # the row points to its basis below the table
+        assert basis[i - 1].attrs["id"] == f"L{i}"
+        assert words(check.practice) in words(basis[i - 1].text())
 
 
 def test_software_section_names_versions_hash_and_time(blowdown_html):
@@ -227,9 +231,24 @@ def test_inputs_show_the_file_verbatim_and_every_value_as_used(blowdown_html,
     rows = tree.by_id("inputs-used").find("tbody")[0].find("tr")
     data = [r for r in rows if "group" not in r.attrs.get("class", "")]
     assert len(data) == len(scenario.echo)
+    atm = scenario.network.atmosphere
     for row, echo in zip(data, scenario.echo):
         cells = [c.text() for c in row.find("td")]
-        assert cells == [echo.key, echo.given, echo.used, echo.note]
+        assert [cells[0], cells[1], cells[3]] == [echo.key, echo.given, echo.note]
+        # values as used in engineering units, converted here independently of cvsim
+        if echo.unit == "Pa":
+            assert cells[2] == (f"{echo.value / 1e5:.6g} bar a "
+                                f"({(echo.value - atm) / 1e5:.6g} bar g)"), echo.key
+        elif echo.unit == "K":
+            assert cells[2] == f"{echo.value - 273.15:.6g} degC", echo.key
+        elif echo.unit == "m" and echo.value < 1.0:
+            assert cells[2] == f"{echo.value * 1e3:.6g} mm", echo.key
+        elif echo.unit == "m2" and echo.value < 0.01:
+            assert cells[2] == f"{echo.value * 1e6:.6g} mm2", echo.key
+        else:
+            assert cells[2] == echo.used, echo.key
+    # e.g. the initial pressure "150 barg" is shown as used: 151.013 bar a (150 bar g)
+    assert "151.013 bar a (150 bar g)" in [c.text() for c in tree.by_id("inputs-used").find("td")]
 
 
 def test_summary_and_checks_show_results_with_times(blowdown_html, blowdown_result):
@@ -421,6 +440,7 @@ def test_sweep_report_from_plain_data(sweep_files, tmp_path):
     assert "N1 Each case" in words(tree.by_id("notes").text())
     assert scenario.sha256 in tree.by_id("software").text()
     assert tree.by_id("inputs-given").find("pre")[0].text() == scenario.source_text
+    assert "inputs-used" in tree.ids()
     for id_ in ("caution-top", "caution-end"):
         assert CAUTION in words(tree.by_id(id_).text())
 
@@ -516,3 +536,127 @@ def test_sweep_command_writes_a_study_report(tmp_path):
     assert "data:image/png;base64," in html
     assert "LIMIT CROSSED" in html  # 14 mm is too slow for the 15-minute guideline
     assert "http://" not in html and "https://" not in html
+
+
+# ------------------------------------------------------------ the relief report
+
+@pytest.fixture(scope="module")
+def relief_report(tmp_path_factory):
+    """`cvsim relief --report` on the blocked-outlet demo with a D valve set in place of the
+    file's letter: the sizing chooses a larger letter and the confirming run uses it."""
+    out = tmp_path_factory.mktemp("relief") / "psv"
+    code = main(["relief", str(ROOT / "scenarios" / "relief-blocked-outlet.yaml"), "--valve",
+                 "psv", "--blocked-outlet", "--set", "links.psv.orifice_letter=D", "--out",
+                 str(out), "--report"])
+    assert code == 0
+    import json
+    sizing = json.loads((out / "relief-sizing.json").read_text())
+    return out, sizing, Tree((out / "report.html").read_text(encoding="utf-8"))
+
+
+def test_relief_report_shows_the_sizing_calculation(relief_report):
+    out, sizing, tree = relief_report
+    section = tree.by_id("relief-sizing")
+    text = words(section.text())
+    assert sizing["letter"] == "G"
+    assert words(tree.by_id("relief-letter").text()) == "G"
+    assert "G" in words(tree.by_id("title-block").text())
+    # the required area by the API 520 Part I critical-flow equation, SI form,
+    # recomputed here from the relieving conditions the report states:
+    # A [mm2] = W [kg/h] / (C Kd P1 [kPa a] Kb Kc) sqrt(T Z / M),
+    # C = 0.03948 sqrt(k (2/(k+1))^((k+1)/(k-1)))
+    # source: API Std 520 Part I, 10th ed., sec. 5.6.3, eq. (2) (SI units)
+    k, Z, M = sizing["k"], sizing["Z"], sizing["molar_mass"] * 1e3
+    C = 0.03948 * math.sqrt(k * (2 / (k + 1)) ** ((k + 1) / (k - 1)))
+    A = (sizing["load"] * 3600 / (C * sizing["kd"] * sizing["relieving_pressure"] / 1e3)
+         * math.sqrt(sizing["relieving_temperature"] * Z / M))
+    assert A == pytest.approx(sizing["required_area"] * 1e6, rel=2e-3)
+    areas = words(tree.by_id("relief-areas").text())
+    assert f"{A:.4g}"[:4] in areas
+    # API 526 effective areas: F 0.307 in2 < A <= G 0.503 in2 (source: API Std 526)
+    assert 0.307 * 645.16 < A <= 0.503 * 645.16
+    assert "324.5" in areas  # 0.503 in2 = 324.52 mm2
+    for item in ("blocked outlet", "Relieving pressure P1", "Back pressure", "Kd",
+                 "Confirming run", "within the allowed pressure: met"):
+        assert item in text, item
+
+
+def test_relief_report_and_inputs_state_the_values_simulated(relief_report):
+    out, sizing, tree = relief_report
+    changed = words(tree.by_id("inputs-changed").text())
+    assert "links.psv.orifice_letter" in changed and "links.psv.area" in changed
+    assert "was D" in changed
+    rows = {c[0].text(): [x.text() for x in c] for c in
+            (r.find("td") for r in tree.by_id("inputs-used").find("tr")) if c}
+    letter = rows["links.psv.orifice_letter"]
+    assert letter[2] == "G" and letter[3].startswith("CHANGED")
+    assert rows["links.psv.area"][2] == "324.515 mm2"  # 0.503 in2 (API 526 G) x 645.16
+    text = (out / "inputs.txt").read_text()
+    line = next(ln for ln in text.splitlines() if ln.startswith("links.psv.orifice_letter"))
+    assert "->  G" in line and "CHANGED" in line
+    # the file itself is shown verbatim (its letter G, before the --set D)
+    assert "orifice_letter: G" in tree.by_id("inputs-given").find("pre")[0].text()
+
+
+# ------------------------------------------------------------ study reports
+
+def test_find_report_states_the_answer_in_the_title_block_and_job(tmp_path):
+    path = tmp_path / "vent.yaml"
+    path.write_text(IDEAL_VENT)
+    out = tmp_path / "find"
+    code = main(["find", str(path), "--vary", "links.vent.diameter=2 mm:20 mm", "--smallest",
+                 "--meet", "tank.min_pressure <= 6 barg", "--out", str(out), "--report",
+                 "--workers", "1", "--quiet"])
+    assert code == 0
+    import json
+    seek = json.loads((out / "seek.json").read_text())
+    tree = Tree((out / "report.html").read_text(encoding="utf-8"))
+    head = words(tree.by_id("title-block").text())
+    job = words(tree.by_id("answer").text())
+    for where in (head, job):
+        assert f"Answer{seek['value']}: the smallest links.vent.diameter" in where
+        assert (f"between {seek['bracket'][0]} (not met) and {seek['bracket'][1]} (met)"
+                in where)
+        assert "tank.min_pressure <= 6 barg: met, margin +" in where
+    assert "('" not in tree.by_id("notes").text()
+    # the bracket's lower end was simulated and does not meet: it leaves the tank above
+    # 6 barg after 20 s (the requirement checked here on the case's own number)
+    lower = [r for r in json.loads((out / "cases.json").read_text())["rows"]
+             if r["links.vent.diameter"] == seek["bracket"][0]]
+    assert lower and lower[0]["tank.min_pressure"] > 6e5 + 101325.0
+
+
+def test_a_wide_table_of_cases_is_split_and_printed_landscape():
+    from cvsim.report import MOST_COLUMNS
+    cols = ["links.vent.diameter"] + [f"outcome_{i}" for i in range(15)]
+    rows = [{c: (f"{d} mm" if c == "links.vent.diameter" else 1.5 * i)
+             for i, c in enumerate(cols)} for d in (8, 10, 12)]
+    tree = Tree(render_sweep_report("Wide", rows=rows, columns=cols, keep=1))
+    cases = tree.by_id("cases")
+    assert "landscape" in cases.attrs["class"].split()
+    tables = cases.find("table")
+    assert len(tables) == 2
+    seen = []
+    for t in tables:
+        head = [words(th.text()) for th in t.find("thead")[0].find("th")]
+        assert len(head) <= MOST_COLUMNS
+        assert head[:2] == ["Case", "links.vent.diameter"]  # repeated in every part
+        seen += head[2:]
+        assert len(t.find("tbody")[0].find("tr")) == 3
+    assert seen == cols[1:]  # every column once, in order
+
+
+@needs_chromium
+def test_chromium_prints_the_wide_table_of_cases_on_landscape_pages(tmp_path):
+    cols = ["links.vent.diameter"] + [f"outcome_{i}" for i in range(15)]
+    rows = [{c: (f"{d} mm" if c == "links.vent.diameter" else 1.5 * i)
+             for i, c in enumerate(cols)} for d in (8, 10, 12)]
+    page = tmp_path / "wide.html"
+    write_sweep_report(page, "Wide", rows=rows, columns=cols)
+    pdf = tmp_path / "wide.pdf"
+    chromium(tmp_path, "--no-pdf-header-footer", f"--print-to-pdf={pdf}",
+             page.resolve().as_uri())
+    boxes = re.findall(rb"/MediaBox\s*\[\s*0 0 ([\d.]+) ([\d.]+)\s*\]", pdf.read_bytes())
+    sizes = {(round(float(w)), round(float(h))) for w, h in boxes}
+    # A4 is 595 x 842 pt (ISO 216: 210 x 297 mm); the cases on landscape pages
+    assert (842, 595) in sizes and (595, 842) in sizes

@@ -363,3 +363,78 @@ def test_docs_reference_is_up_to_date():
     on_disk = (ROOT / "docs" / "scenario-format.md").read_text(encoding="utf-8")
     assert on_disk == format_reference(), (
         "docs/scenario-format.md is stale: run python -m cvsim.scenario > docs/scenario-format.md")
+
+
+def test_an_override_creates_a_missing_section_and_null_removes_a_key():
+    scenario = load_scenario_text(GOOD, overrides={"run.solver.method": "BDF",
+                                                   "run.record_every": "null"})
+    assert scenario.network.run.method == "BDF"   # no 'solver:' section in the file
+    notes = {r.key: r.note for r in scenario.echo}
+    given = {r.key: r.given for r in scenario.echo}
+    assert "set by override" in notes["run.solver.method"]
+    # record_every removed: its default (1 s) applies and the echo says so
+    assert scenario.network.run.record_every == 1.0
+    assert "default" in notes["run.record_every"] and given["run.record_every"] == "1 s"
+
+
+def test_an_override_mapping_for_a_section_is_read_and_null_on_a_required_key_is_a_problem():
+    scenario = load_scenario_text(GOOD, overrides={"run.solver": "{method: BDF}"})
+    assert scenario.network.run.method == "BDF"
+    with pytest.raises(ScenarioError) as info:
+        load_scenario_text(GOOD, overrides={"links.vent.diameter": "~"})
+    (problem,) = info.value.problems
+    assert problem.key == "links.vent" and "'diameter'" in problem.message
+
+
+def test_the_format_reference_example_runs_to_a_real_stop():
+    """The example in docs/scenario-format.md: vented for 10 min, then refilled by the
+    compressor until 100 barg; not a run that ends at t = 0."""
+    from cvsim.api import run
+    from cvsim.scenario.reference import EXAMPLE
+    result = run(load_scenario_text(EXAMPLE))
+    assert result.status == "stopped" and "pressure above" in result.message
+    s = result.summary()
+    assert result.time[-1] > 600.0                      # after the compressor starts
+    assert s["links"]["compressor"]["max_mass_flow_time_s"] >= 600.0  # its table: 0 until 10 min
+    assert s["vessels"]["receiver"]["max_pressure_Pa"] >= 100e5 + 101325.0 - 1.0
+
+
+STOP_AT_START = """
+title: Stop met at the start
+fluid: Nitrogen
+properties: ideal-gas
+ideal_gas: {molar_mass: 28.0134 g/mol, heat_capacity: 1040 J/kg/K}
+vessels:
+  v: {volume: 1 m3, initial: {pressure: 150 barg, temperature: 15 degC}}
+run:
+  end: 10 s
+  stop_when: {vessel: v, pressure_above: 100 barg%s}
+"""
+
+
+def test_a_stop_condition_met_at_the_start_is_a_problem_unless_asked_for():
+    from cvsim.api import run
+    with pytest.raises(ScenarioError) as info:
+        load_scenario_text(STOP_AT_START % "")
+    (problem,) = info.value.problems
+    assert problem.key == "run.stop_when.pressure_above" or problem.key.endswith(
+        "pressure_above")
+    assert "already met at the start" in problem.message and "150 bar g" in problem.message
+    asked = run(load_scenario_text(STOP_AT_START % ", if_met_at_start: stop"))
+    assert asked.status == "stopped" and asked.time[-1] == 0.0
+
+
+def test_the_solver_refuses_a_stop_met_at_the_start_of_a_network_built_in_code():
+    from cvsim.api import run_network
+    from cvsim import network as nw
+    net = nw.Network(
+        title="t", fluid=nw.FluidSpec("Nitrogen", "ideal-gas", 0.0280134, 1040.0),
+        vessels=(nw.Vessel("v", nw.Geometry(1.0), nw.InitialState(20e5, 288.15)),),
+        run=nw.RunSettings(end_time=10.0, record_every=1.0,
+                           stop=(nw.StopCondition("v", "pressure", "above", 10e5),)))
+    result = run_network(net)
+    assert result.status == "failed" and "already met at the start" in result.message
+    import dataclasses
+    stop = dataclasses.replace(net.run.stop[0], at_start="stop")
+    ok = run_network(dataclasses.replace(net, run=dataclasses.replace(net.run, stop=(stop,))))
+    assert ok.status == "stopped"

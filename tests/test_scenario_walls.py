@@ -6,6 +6,7 @@ import pytest
 from cvsim.errors import ScenarioError
 from cvsim.heat import geometry as geo
 from cvsim.heat.definitions import FlameExposure, GasFire, PoolFire, Wall
+from cvsim.heat.level import area_below
 from cvsim.scenario import load_scenario_text
 
 HEAD = """
@@ -93,7 +94,7 @@ def test_pool_fire_area_defaults_to_the_outside_within_the_fires_reach():
           fire: {model: pool, drainage_and_firefighting: adequate, elevation: 7.41 m}
 """)
     fire = sc.network.vessels[0].heat[0].fire
-    expected = geo.area_below(0.19, "cylinder", 0.4, 1.2, "hemispherical", "horizontal", 0.01)
+    expected = area_below(0.19, "cylinder", 0.4, 1.2, "hemispherical", "horizontal", 0.01)
     assert fire.area == pytest.approx(expected, rel=1e-9) and fire.area < whole / 2
 
 

@@ -271,7 +271,7 @@ def test_a_dask_cluster_and_every_start_method_give_the_same_table(nitrogen, tmp
 def test_asking_for_dask_without_it_installed_says_how_to_install_it(nitrogen, monkeypatch):
     import sys
     monkeypatch.setitem(sys.modules, "distributed", None)  # import distributed fails
-    with pytest.raises(ClusterError, match=r"pip install 'cvsim\[cluster\]'"):
+    with pytest.raises(ClusterError, match=r"pip install -e '\.\[cluster\]' in the cvsim checkout"):
         cvsim.sweep(nitrogen, {"links.vent.diameter": "3 mm"}, cluster="tcp://127.0.0.1:1",
                     progress=False)
 

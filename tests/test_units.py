@@ -198,3 +198,54 @@ def test_docstring_examples():
     import doctest
 
     assert doctest.testmod(units).failed == 0
+
+
+def test_every_unit_read_without_pint_agrees_with_pint():
+    """The units read by the fast table (no pint loaded) convert exactly as pint does:
+    pint is the general-purpose reference here."""
+    from cvsim.units import DIMENSIONS, FAST_UNITS, registry
+    ureg = registry()
+    for (dimension, expression), (factor, offset) in FAST_UNITS.items():
+        si = DIMENSIONS[dimension].si
+        for number in (0.0, 1.0, 37.5):
+            q = ureg.Quantity(number, ureg.parse_units(expression))
+            target = ureg.parse_units(si) if si else ureg.dimensionless
+            assert q.dimensionality == target.dimensionality, (dimension, expression)
+            expected = float(q.to(target).magnitude)
+            assert number * factor + offset == pytest.approx(expected, rel=1e-12, abs=1e-12), \
+                (dimension, expression, number)
+
+
+def test_a_scenario_in_common_units_does_not_load_pint():
+    import subprocess
+    import sys
+    from pathlib import Path
+    demo = Path(__file__).resolve().parents[1] / "scenarios" / "nitrogen-blowdown.yaml"
+    code = ("import sys; from cvsim.scenario import load_scenario; "
+            f"load_scenario({str(demo)!r}); print('pint' in sys.modules)")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         check=True)
+    assert out.stdout.strip() == "False"
+
+
+def test_a_plain_bar_pressure_is_a_warning_in_check_and_run(tmp_path, capsys):
+    """'60 bar' (no a or g) is read as absolute and said so as a warning: in check, when a
+    run starts, and in the run's summary."""
+    from cvsim.cli import main
+    path = tmp_path / "plain.yaml"
+    path.write_text("""
+title: Plain bar
+fluid: Nitrogen
+properties: ideal-gas
+ideal_gas: {molar_mass: 28.0134 g/mol, heat_capacity: 1040 J/kg/K}
+vessels:
+  v: {volume: 1 m3, initial: {pressure: 60 bar, temperature: 15 degC}}
+run: {end: 2 s}
+""")
+    assert main(["check", str(path)]) == 0
+    out = capsys.readouterr().out
+    assert "warning" in out and "'bar' read as absolute" in out
+    assert main(["run", str(path), "--out", str(tmp_path / "out"), "--no-plots"]) == 0
+    captured = capsys.readouterr()
+    assert "warning: vessels.v.initial.pressure: 'bar' read as absolute" in captured.err
+    assert "'bar' read as absolute" in (tmp_path / "out" / "summary.txt").read_text()

@@ -90,6 +90,11 @@ API526_LETTERS = tuple(API526_AREAS_IN2)
 #: reported as cycling rapidly (chatter risk); common practice, no source
 CHATTER_OPENINGS = 5
 CHATTER_WINDOW = 60.0
+#: a pop valve that opens at least CYCLING_OPENINGS times in a run while open less than
+#: CYCLING_OPEN_SHARE of the time since it first opened passes far more than the load in
+#: short bursts: reported as likely oversized (common practice, no source)
+CYCLING_OPENINGS = 10
+CYCLING_OPEN_SHARE = 0.5
 
 
 # ----------------------------------------------------------------- API 520
@@ -512,10 +517,17 @@ class ReliefValveDevice(Device):
         # an opening is a change from shut (False / regime 0) to open
         prev = initial.get(self.key("open" if self.pop else "regime"))
         opens = []
+        open_time, since = 0.0, (0.0 if prev == 1 else None)
         for t, key, v in switches:
             if v == 1 and prev == 0:  # True == 1 and False == 0 for the pop state
                 opens.append(t)
+                since = t
+            elif v == 0 and prev == 1 and since is not None:
+                open_time += t - since
+                since = None
             prev = v
+        if since is not None:
+            open_time += t_end - since
         figures = {"openings": len(opens)}
         notes = []
         warnings = []
@@ -539,6 +551,18 @@ class ReliefValveDevice(Device):
                     "The valve may be oversized for this relief load, or the blowdown too "
                     "small; review against API 520 Part II (installation, inlet pressure loss) "
                     "and API 521.")
+            span = t_end - opens[0]
+            share = open_time / span if span > 0.0 else 1.0
+            figures["open_share"] = share
+            if (self.pop and len(opens) >= CYCLING_OPENINGS and share < CYCLING_OPEN_SHARE
+                    and busiest < CHATTER_OPENINGS):
+                warnings.append(
+                    f"relief valve cycled {len(opens)} times, open {share * 100:.0f} % of the "
+                    f"time since it first opened at {opens[0]:.4g} s: it passes far more than "
+                    "the relief load in short bursts, so it is likely oversized for this case "
+                    "(cycling wears the seat and can turn into chatter). Check the letter "
+                    "against the load (cvsim relief), or consider a smaller valve, a "
+                    "modulating (pilot) valve or a longer blowdown.")
         figures["notes"] = notes
         return figures, warnings
 

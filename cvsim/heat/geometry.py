@@ -319,29 +319,6 @@ def wall_surface(kind: str, D: float, L: float = 0.0, heads: str = "flat") -> Su
 # ------------------------------------------------ area below a level (wetted, exposed)
 
 
-def area_below(level: float, kind: str, D: float, L: float = 0.0, heads: str = "flat",
-               orientation: str = "vertical", offset: float = 0.0) -> float:
-    """Area [m2] of a vessel surface below a horizontal plane.
-
-    The surface is the inside wall (``offset = 0``) or the parallel surface at depth
-    ``offset`` into the wall (the outside, for a wall of that thickness); ``level`` is
-    the plane's height above that surface's lowest point. Used for the area wetted by
-    a liquid level and for the outside area within a fire's reach. Closed forms and
-    quadrature of :mod:`cvsim.heat.level` (equations and sources there).
-
-    Parameters
-    ----------
-    level : float
-        [m] height of the plane above the lowest point of the surface.
-    kind, D, L, heads, orientation
-        the vessel's shape as in :func:`cylinder` and :func:`sphere`.
-    offset : float
-        [m] depth into the wall of the surface considered (0: inside surface).
-    """
-    from .level import area_below as exact
-    return exact(level, kind, D, L, heads, orientation, offset)
-
-
 def outer_height(kind: str, D: float, L: float, heads: str, orientation: str,
                  thickness: float) -> float:
     """Height [m] of the outside surface of a wall of uniform ``thickness`` [m]."""
@@ -351,7 +328,7 @@ def outer_height(kind: str, D: float, L: float, heads: str, orientation: str,
 
 
 __all__ = [
-    "HEADS", "Head", "ORIENTATIONS", "Surface", "area_below", "cylinder", "ellipsoidal_head",
+    "HEADS", "Head", "ORIENTATIONS", "Surface", "cylinder", "ellipsoidal_head",
     "flat_head", "head", "head_surface", "hemispherical_head", "outer_height", "sphere",
     "torispherical_head", "wall_surface",
 ]

@@ -22,6 +22,22 @@ Sources
   temperature without a stated range; cvsim takes -40 to 60 degC as their range and
   warns outside it (a choice, not from the standard).
 
+* Below 20 degC (cold blowdowns, brittle-fracture studies), so that a wall cooled to
+  -100 degC is not an extrapolation:
+
+  - ``carbon-steel``: the specific heat follows the Debye model of iron's lattice,
+    Debye temperature 470 K (Kittel, *Introduction to Solid State Physics*, 8th ed.,
+    ch. 5, Table 1), scaled to EN 1993-1-2's value at 20 degC (:func:`debye_ratio`);
+    at 200 K it gives 384 J/(kg K), the value for pure iron (from memory, CRC tables).
+    The conductivity continues EN 1993-1-2's linear law (57 W/(m K) at -100 degC:
+    plain carbon steels vary more than that between heats; common practice, no
+    source). Range -150 to 1200 degC.
+  - ``stainless-steel``: the temperature dependence of 304 stainless steel from the
+    NIST cryogenic material property fits (log10 y = sum a_i (log10 T)^i, 4 to 300 K;
+    conductivity coefficients as reproduced in a published engineering summary of the
+    NIST fits, specific heat from memory), scaled to EN 12524's design values at 20
+    degC, which hold above. Range -200 to 60 degC.
+
 Carbon-fibre composites are not in these sources: give their values in the scenario
 (``material: {density: ..., heat_capacity: ..., conductivity: ...}``) from the
 maker's data.
@@ -129,11 +145,55 @@ def en1993_conductivity(T: float) -> float:
     return 54.0 - 3.33e-2 * th if th < 800.0 else 27.3
 
 
+def debye_ratio(x: float, n: int = 200) -> float:
+    """Debye heat capacity of a solid as a fraction of its high-temperature (Dulong-Petit)
+    value 3R, at x = theta_D / T.
+
+        C_v / 3R = (3 / x^3) integral_0^x t^4 e^t / (e^t - 1)^2 dt
+
+    (Simpson's rule on ``n`` intervals; error below 1e-8 for x <= 10). Limits: 1 as
+    x -> 0; (4 pi^4 / 5) / x^3 as x -> infinity (Debye T^3 law). Source: Kittel,
+    *Introduction to Solid State Physics*, 8th ed., ch. 5, eq. (5.35).
+
+    >>> round(debye_ratio(470.0 / 293.15), 4)
+    0.8824
+    """
+    if x < 1e-9:
+        return 1.0
+    h = x / n
+    total = 0.0
+    for i in range(n + 1):
+        t = i * h
+        f = 0.0 if t == 0.0 else t**4 * math.exp(t) / math.expm1(t) ** 2
+        total += f * (1.0 if i in (0, n) else 4.0 if i % 2 else 2.0)
+    return 3.0 / x**3 * total * h / 3.0
+
+
+#: Debye temperature of iron [K] (Kittel, 8th ed., ch. 5, Table 1)
+THETA_IRON = 470.0
+#: lowest temperature of the carbon-steel table [degC]
+CARBON_STEEL_LOWEST = -150.0
+
+
+def carbon_steel_cold_heat_capacity(T: float) -> float:
+    """Specific heat of carbon steel [J/(kg K)] below 20 degC: the Debye model of
+    iron (theta_D = 470 K) scaled to EN 1993-1-2's value at 20 degC,
+    c(T) = c_EN(20 degC) C_D(470/T) / C_D(470/293.15).
+
+    >>> round(carbon_steel_cold_heat_capacity(200.0))   # pure iron: 384 (from memory)
+    384
+    """
+    T20 = 20.0 + ZERO_CELSIUS
+    return en1993_specific_heat(T20) * debye_ratio(THETA_IRON / T) / debye_ratio(
+        THETA_IRON / T20)
+
+
 def _en1993_table():
     # dense near the 735 degC peak, where the heat capacity is not smooth; linear
     # interpolation in this table is exact at its points, within 0.1 % of the function
     # from 20 to 600 degC and within 1 % elsewhere
-    celsius = ([-100.0, -50.0] + [20.0 + 20.0 * i for i in range(30)]
+    cold = [CARBON_STEEL_LOWEST + 10.0 * i for i in range(17)]  # -150 to 10 degC
+    celsius = (cold + [20.0 + 20.0 * i for i in range(30)]
                + [600.0, 620.0, 640.0, 655.0, 670.0, 680.0, 690.0, 698.0, 705.0, 710.0,
                   715.0, 719.0, 722.0, 725.0, 727.0, 729.0, 730.0, 731.0, 732.0, 733.0,
                   733.5, 734.0, 734.5, 735.0, 735.5, 736.0, 737.0, 738.0, 739.5, 741.0,
@@ -141,9 +201,10 @@ def _en1993_table():
                   820.0, 845.0, 870.0, 900.0, 1200.0])
     celsius = sorted(set(celsius))
     T = tuple(c + ZERO_CELSIUS for c in celsius)
-    cp = tuple(en1993_specific_heat(t) for t in T)
+    cp = tuple(en1993_specific_heat(t) if t >= 20.0 + ZERO_CELSIUS
+               else carbon_steel_cold_heat_capacity(t) for t in T)
     # linear to 800 degC, where it steps from 27.36 to the plateau 27.3 (taken over 1 K)
-    kT = tuple(c + ZERO_CELSIUS for c in (-100.0, 800.0, 801.0, 1200.0))
+    kT = tuple(c + ZERO_CELSIUS for c in (CARBON_STEEL_LOWEST, 800.0, 801.0, 1200.0))
     k = (en1993_conductivity(kT[0]), 54.0 - 3.33e-2 * 800.0, 27.3, 27.3)
     return T, cp, kT, k
 
@@ -151,10 +212,11 @@ def _en1993_table():
 def _carbon_steel() -> Material:
     T, cp, kT, k = _en1993_table()
     return Material("carbon steel (EN 1993-1-2)", 7850.0, T, cp, kT, k,
-                    20.0 + ZERO_CELSIUS, 1200.0 + ZERO_CELSIUS,
-                    "EN 1993-1-2:2005, 3.2.2, 3.4.1.2 and 3.4.1.3",
-                    "below 20 degC the standard's functions are continued (to -100 degC), "
-                    "above 1200 degC held")
+                    CARBON_STEEL_LOWEST + ZERO_CELSIUS, 1200.0 + ZERO_CELSIUS,
+                    "EN 1993-1-2:2005, 3.2.2, 3.4.1.2 and 3.4.1.3; below 20 degC the "
+                    "specific heat by the Debye model of iron (Kittel, ch. 5) scaled to "
+                    "the standard at 20 degC, the conductivity its linear law continued",
+                    f"below {CARBON_STEEL_LOWEST:g} degC and above 1200 degC held")
 
 
 def constant(name: str, density: float, heat_capacity: float, conductivity: float,
@@ -166,14 +228,43 @@ def constant(name: str, density: float, heat_capacity: float, conductivity: floa
 
 
 _EN12524 = "EN 12524:2000 Table 1 (as tabulated in the ht library)"
+
+#: NIST cryogenic material property fits for 304 stainless steel, 4 to 300 K:
+#: log10 y = sum a_i (log10 T)^i; conductivity [W/(m K)], specific heat [J/(kg K)]
+NIST_304_CONDUCTIVITY = (-1.4087, 1.3982, 0.2543, -0.6260, 0.2334, 0.4256, -0.4658,
+                         0.1650, -0.0199)
+NIST_304_SPECIFIC_HEAT = (22.0061, -127.5528, 303.6470, -381.0098, 274.0328, -112.9212,
+                          24.7593, -2.239153, 0.0)
+
+
+def nist_fit(coefficients, T: float) -> float:
+    """A NIST cryogenic property fit, y = 10^(sum a_i (log10 T)^i), at T [K]."""
+    x = math.log10(T)
+    return 10.0 ** sum(a * x**i for i, a in enumerate(coefficients))
+
+
+def _stainless_steel() -> Material:
+    """EN 12524's constant values from 20 degC up; below, the NIST 304 curves scaled to
+    them at 20 degC (continuous)."""
+    T20 = 20.0 + ZERO_CELSIUS
+    rho, c20, k20 = 7900.0, 460.0, 17.0
+    T = tuple(c + ZERO_CELSIUS for c in range(-200, 20, 10)) + (T20, 60.0 + ZERO_CELSIUS)
+    cp = tuple(c20 * nist_fit(NIST_304_SPECIFIC_HEAT, t) / nist_fit(NIST_304_SPECIFIC_HEAT,
+                                                                     T20)
+               if t < T20 else c20 for t in T)
+    k = tuple(k20 * nist_fit(NIST_304_CONDUCTIVITY, t) / nist_fit(NIST_304_CONDUCTIVITY, T20)
+              if t < T20 else k20 for t in T)
+    return Material("stainless steel (EN 12524; NIST 304 below 20 degC)", rho, T, cp, T, k,
+                    -200.0 + ZERO_CELSIUS, 60.0 + ZERO_CELSIUS,
+                    _EN12524 + "; below 20 degC the NIST cryogenic fits of 304 stainless "
+                    "steel scaled to it")
 _ROOM = (-40.0 + ZERO_CELSIUS, 60.0 + ZERO_CELSIUS)
 
 #: the named materials a scenario can use
 MATERIALS: dict[str, Material] = {
     "carbon-steel": _carbon_steel(),
     "steel": constant("steel (EN 12524)", 7800.0, 450.0, 50.0, *_ROOM, source=_EN12524),
-    "stainless-steel": constant("stainless steel (EN 12524)", 7900.0, 460.0, 17.0, *_ROOM,
-                                source=_EN12524),
+    "stainless-steel": _stainless_steel(),
     "aluminium-alloy": constant("aluminium alloy (EN 12524)", 2800.0, 880.0, 160.0, *_ROOM,
                                 source=_EN12524),
     "hdpe": constant("high-density polyethylene (EN 12524)", 980.0, 1800.0, 0.5, *_ROOM,
@@ -185,5 +276,6 @@ MATERIALS: dict[str, Material] = {
 }
 
 
-__all__ = ["MATERIALS", "Material", "constant", "en1993_conductivity",
-           "en1993_specific_heat", "interpolate"]
+__all__ = ["MATERIALS", "Material", "carbon_steel_cold_heat_capacity", "constant",
+           "debye_ratio", "en1993_conductivity", "en1993_specific_heat", "interpolate",
+           "nist_fit"]

@@ -217,10 +217,9 @@ def check_states(network: Network, values, ctx: Context) -> None:
     the range of the fluid's equation of state: a problem at the key otherwise
     (the run would fail at t = 0)."""
     from ..errors import CvsimError
-    from ..fluid import make_fluid
-    f = network.fluid
+    from ..engines import fluid_for
     try:
-        fluid = make_fluid(f.name, f.model, f.molar_mass, f.cp, f.cp_temperature)
+        fluid = fluid_for(network.fluid)
     except CvsimError:
         return  # reported where the fluid is read
     for v in network.vessels:
@@ -231,6 +230,7 @@ def check_states(network: Network, values, ctx: Context) -> None:
             key, text = found
             at = getattr(initial, "where", {}).get(key) or values["vessels"][v.name].at
             ctx.problem(at, text)
+    _check_stops(network, values, fluid, ctx)
     for r in network.reservoirs:
         entry = values["reservoirs"][r.name]
         (p_lo, p_hi), (T_lo, T_hi) = r.pressure.extremes(), r.temperature.extremes()
@@ -239,6 +239,40 @@ def check_states(network: Network, values, ctx: Context) -> None:
             if found:
                 ctx.problem(entry.where[found[0]], found[1])
                 break
+
+
+def _check_stops(network: Network, values, fluid, ctx: Context) -> None:
+    """A stop condition that already holds for the initial state (given as pressure
+    and temperature) is a problem at its key unless it says ``if_met_at_start: stop``:
+    the run would end at t = 0 (the solver checks the other initial states)."""
+    from ..errors import StateError
+    vessels = {v.name: v for v in network.vessels}
+    entries = values["run"]["stop_when"] or []
+    for entry, cond in zip(entries, network.run.stop):
+        v = vessels.get(cond.node)
+        if v is None or cond.at_start == "stop" or v.initial.liquid_fraction is not None:
+            continue
+        p, T = v.initial.pressure, v.initial.temperature
+        if p is None or T is None:
+            continue
+        if cond.quantity == "pressure":
+            value, shown = p, f"{(p - network.atmosphere) / 1e5:.6g} bar g"
+        elif cond.quantity == "temperature":
+            value, shown = T, f"{T - 273.15:.6g} degC"
+        else:
+            try:
+                value = fluid.state_pt(p, T).rho * v.volume
+            except StateError:
+                continue
+            shown = f"{value:.6g} kg"
+        if (cond.direction == "below" and value <= cond.value) or (
+                cond.direction == "above" and value >= cond.value):
+            key = f"{cond.quantity}_{cond.direction}"
+            at = getattr(entry, "where", {}).get(key) or entry.at
+            ctx.problem(at, f"already met at the start: '{v.name}' starts at {shown}, so the "
+                        "run would end at t = 0. Write the condition the other way round or "
+                        "change the initial state; add 'if_met_at_start: stop' to end the "
+                        "run there on purpose")
 
 
 def _out_of_range(fluid, p: float, T: float, saturated: bool) -> tuple[str, str] | None:
@@ -332,7 +366,8 @@ def _run(values) -> RunSettings:
         for key in schema.STOP_KEYS:
             if stop[key] is not None:
                 quantity, direction = key.rsplit("_", 1)
-                stops.append(StopCondition(stop["vessel"], quantity, direction, stop[key]))
+                stops.append(StopCondition(stop["vessel"], quantity, direction, stop[key],
+                                           stop["if_met_at_start"]))
     solver = values["solver"]
     return RunSettings(end_time=values["end"], record_every=values["record_every"],
                        stop=tuple(stops), method=solver["method"],

@@ -124,7 +124,7 @@ def saturation(fluid: FluidSpec, pressure: float | None = None,
 def _mixture_basis_density(fluid: FluidSpec, pressure: float, temperature: float,
                            composition) -> float:
     from ..errors import CvsimError
-    from ..fluid import fluid_for
+    from ..engines import fluid_for
     f = fluid_for(fluid)
     if composition is not None:
         f = f.engine.fluid(composition)

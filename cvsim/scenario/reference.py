@@ -33,7 +33,7 @@ vessels:
   receiver:
     shape: {kind: cylinder, inner_diameter: 1.13 m, length: 1.52 m, orientation: vertical,
             heads: 2:1-ellipsoidal}
-    initial: {pressure: 150 barg, temperature: 15 degC}
+    initial: {pressure: 60 barg, temperature: 15 degC}
     heat:
       to_ambient: {coefficient: 5 W/m2/K, ambient: 15 degC}
 reservoirs:
@@ -43,7 +43,7 @@ links:
     from: receiver
     to: atmosphere
     device: orifice
-    diameter: 10 mm
+    diameter: 5 mm
     discharge_coefficient: 0.84
     closes_at: 10 min
   compressor:
@@ -56,7 +56,7 @@ run:
   end: 30 min
   record_every: 1 s
   stop_when:
-    - {vessel: receiver, temperature_below: -40 degC}
+    - {vessel: receiver, temperature_below: -70 degC}
     - {vessel: receiver, pressure_above: 100 barg}
 """
 
@@ -73,8 +73,9 @@ WRITING_VALUES = """
   `MPa`, `atm`, and any unit marked `a`, `(a)` or `abs`. Pressures must be above vacuum
   (`-2 barg` is a problem).
 - **Plain `bar`, `mbar`, `psi` and `kg/cm2`** are read as absolute, but the trade uses
-  them both ways: the echo notes each one ("'bar' read as absolute; write bara or barg to
-  be explicit"). Write `bara`/`barg` in files others will review.
+  them both ways: each one is a warning (in `cvsim check`, on the screen when a run
+  starts, in the summary and the report): "'bar' read as absolute; write bara or barg to
+  be explicit". Write `bara`/`barg` in files others will review.
 - **Temperatures**: `K`, `degC` or `°C`, `degF` or `°F`, `degR`. Inside a compound
   unit (`W/m2/degC`, `J/kg/degF`) a degree is a temperature difference.
 - **Exponents**: `m3`, `m^3` or `m³`; `W/m2/K` and `W/(m2 K)` are the same.

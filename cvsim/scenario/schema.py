@@ -144,6 +144,10 @@ STOP = Section(
         Field("mass_below", Quantity("mass", at_least=0.0),
               "Stop when the mass of gas falls below."),
         Field("mass_above", Quantity("mass", above=0.0), "Stop when the mass of gas rises above."),
+        Field("if_met_at_start", Choice(("error", "stop")),
+              "When the condition already holds at the start: `error` (a problem: usually "
+              "a condition written the wrong way round) or `stop` (the run ends at t = 0, "
+              "on purpose).", default="error"),
     ),
     one_of=(STOP_KEYS,),
 )

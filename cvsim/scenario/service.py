@@ -24,7 +24,7 @@ REVERSIBLE = (Orifice, ControlValve, Line)
 def node_phases(fluid_spec, vessels, reservoirs) -> dict[str, str]:
     """Phase of every node at time 0: ``liquid``, ``two-phase``, ``gas`` (gas, vapour or
     supercritical), from the vessels' initial states and the reservoirs' first values."""
-    from ..fluid import fluid_for
+    from ..engines import fluid_for
     if fluid_spec.model not in ("real", "mixture"):
         return {n.name: "gas" for n in (*vessels, *reservoirs)}
     fluid = fluid_for(fluid_spec)

@@ -294,13 +294,20 @@ def split_path(path: str) -> list:
     return parts
 
 
+#: override values that remove the key (its default applies again)
+REMOVE = ("null", "~", "none")
+
+
 def override_value(value):
     """An override as given -> a tree value.
 
     Text is read as YAML so that a mapping (``{ua: 50 W/K, ambient: 15 degC}``)
     or a table can be given; text that YAML reads as a yes/no word or nothing
-    is kept as the text.
+    is kept as the text. ``null``, ``~`` and ``none`` (and Python's ``None``) mean
+    "remove the key": :func:`apply_overrides` deletes it.
     """
+    if value is None or (isinstance(value, str) and value.strip().lower() in REMOVE):
+        return _REMOVED
     if isinstance(value, str):
         tree, problems = parse(value)
         if problems or tree is None or isinstance(tree, bool):
@@ -309,12 +316,18 @@ def override_value(value):
     return strip_lines(value)
 
 
+_REMOVED = object()
+
+
 def apply_overrides(tree: Mapping, overrides: dict | None) -> tuple[set[str], list[Problem]]:
     """Set each ``dotted.key.path`` of ``overrides`` in ``tree`` (in place).
 
-    Every step of a path except the last must exist; the last key is replaced
-    or added (an added key that the format does not know is reported by the
-    validator like any unknown key). Returns (paths applied, problems).
+    The last key is replaced or added (an added key that the format does not know is
+    reported by the validator like any unknown key); a value ``null`` removes it, so
+    that its default applies. A mapping missing on the way is created
+    (``run.solver.method`` without a ``solver:`` section) unless its name is close to
+    one that exists, which is reported as a likely typo with the name meant. Returns
+    (paths applied, problems).
     """
     applied: set[str] = set()
     problems: list[Problem] = []
@@ -334,6 +347,10 @@ def apply_overrides(tree: Mapping, overrides: dict | None) -> tuple[set[str], li
         for depth, part in enumerate(parts[:-1]):
             here = key_path(parts[:depth]) or "the top level"
             found, message = _step(node, part, here)
+            if message and _creatable(node, part):
+                node[part] = Mapping()
+                node.key_lines[part] = None
+                found, message = node[part], None
             if message:
                 problems.append(Problem(str(path), f"override: {message}"))
                 node = None
@@ -342,11 +359,21 @@ def apply_overrides(tree: Mapping, overrides: dict | None) -> tuple[set[str], li
         if node is None:
             continue
         last = parts[-1]
-        if isinstance(node, dict) and not isinstance(last, int):
-            node[last] = override_value(value)
+        new = override_value(value)
+        if new is _REMOVED:
+            if isinstance(node, dict) and not isinstance(last, int):
+                node.pop(last, None)
+                node.key_lines.pop(last, None)
+            else:
+                where = key_path(parts[:-1]) or "the top level"
+                problems.append(Problem(str(path), f"override: only a key of a mapping can be "
+                                        f"removed with null, not {last!r} in {where}"))
+                continue
+        elif isinstance(node, dict) and not isinstance(last, int):
+            node[last] = new
             node.key_lines[last] = None
         elif isinstance(node, list) and isinstance(last, int) and last < len(node):
-            node[last] = override_value(value)
+            node[last] = new
             node.item_lines[last] = None
         else:
             where = key_path(parts[:-1]) or "the top level"
@@ -354,6 +381,13 @@ def apply_overrides(tree: Mapping, overrides: dict | None) -> tuple[set[str], li
             continue
         applied.add(key_path(parts))
     return applied, problems
+
+
+def _creatable(node, part) -> bool:
+    """A missing key on an override's path may be created as a new mapping: a key of a
+    mapping, not close to a key it has (that would be a typo)."""
+    return (isinstance(node, dict) and not isinstance(part, int) and part not in node
+            and not difflib.get_close_matches(part, [str(k) for k in node], n=1))
 
 
 def _step(node, part, here: str):

@@ -13,6 +13,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from ..heat import geometry as geo
+from ..heat.level import area_below
 from ..heat.definitions import (FlameExposure, GasFire, InsideTransfer, OutsideTransfer,
                                 PoolFire, Wall, WallLayer, WettedSurface)
 from ..heat.fire import FIRE_HEIGHT
@@ -285,9 +286,9 @@ def _fire_area(values, geometry, thickness, at, ctx) -> float | None:
     reach = FIRE_HEIGHT - values["elevation"]
     area = 0.0
     if reach > 0.0:
-        area = geo.area_below(reach, geometry.kind, geometry.inner_diameter,
-                              geometry.length or 0.0, geometry.heads, geometry.orientation,
-                              offset=thickness)
+        area = area_below(reach, geometry.kind, geometry.inner_diameter,
+                          geometry.length or 0.0, geometry.heads, geometry.orientation,
+                          offset=thickness)
     if area <= 0.0:
         ctx.problem(values.where["elevation"], f"the vessel lies entirely above the fire's "
                     f"reach ({FIRE_HEIGHT:g} m above its base): no area is exposed; give "

@@ -11,6 +11,9 @@ import argparse
 import sys
 from pathlib import Path
 
+from .options import (common_options, decimal_comma_option, progress_wanted,
+                      read_time_limit)
+
 SWEEP_HELP = """\
 Run a scenario for many values of one or more of its keys, in parallel, and
 write a table (sweep.csv, sweep.json, sweep.txt) and a plot (sweep.png) of
@@ -25,9 +28,9 @@ values (units as in the scenario file):
   words, mappings --vary run.solver.method="LSODA, BDF"
 
 Local worker processes are used by default (one per CPU); --cluster runs the
-cases on a Dask cluster instead (pip install 'cvsim[cluster]'). A case that runs
-longer than --case-time-limit (default 10 min) is stopped and fails with that
-reason. Ctrl-C (or SIGTERM) stops the sweep: the cases finished are written as
+cases on a Dask cluster instead (in the cvsim checkout: pip install -e
+'.[cluster]'). A case that runs longer than --case-time-limit (default 10 min)
+is stopped and fails with that reason. Ctrl-C (or SIGTERM) stops the sweep: the cases finished are written as
 a table marked PARTIAL. Exit status: 0 when the table is written, 1 when every
 case failed, 2 for a wrong option, 130 (143 on SIGTERM) when stopped."""
 
@@ -70,33 +73,13 @@ examples:
 """
 
 
-def _workers(p: argparse.ArgumentParser) -> None:
-    g = p.add_mutually_exclusive_group()
-    g.add_argument("--workers", type=int, default=None, metavar="N",
-                   help="local worker processes (default: one per CPU)")
-    g.add_argument("--cluster", default=None, metavar="ADDRESS",
-                   help="run on a Dask cluster, e.g. tcp://host:8786 (needs cvsim[cluster] "
-                   "and cvsim on every worker)")
-
-
-def _common(p: argparse.ArgumentParser) -> None:
-    p.add_argument("scenario", type=Path, help="scenario file (YAML)")
-    p.add_argument("--set", dest="overrides", action="append", default=[], metavar="KEY=VALUE",
-                   help="change one scenario value in every case (repeatable)")
-    _workers(p)
-    p.add_argument("--out", type=Path, default=None, help="output folder")
-    p.add_argument("--no-plots", action="store_true", help="skip the PNG plots")
-    p.add_argument("--report", action="store_true",
-                   help="also write report.html, the calculation report of the study")
-    p.add_argument("--quiet", action="store_true", help="no progress bar, no table on screen")
-
-
 def add_study_commands(sub) -> None:
     """Add ``sweep``, ``find`` and ``outcomes`` to the command line's sub-parsers."""
     fmt = argparse.RawDescriptionHelpFormatter
     s = sub.add_parser("sweep", help="run a scenario for many values of its keys, in parallel",
                        description=SWEEP_HELP, epilog=SWEEP_EXAMPLES, formatter_class=fmt)
-    _common(s)
+    common_options(s)
+    decimal_comma_option(s)
     s.add_argument("--vary", action="append", default=[], metavar="KEY=VALUES", required=True,
                    help="a key path and its values (repeatable: a grid)")
     s.add_argument("--plot", dest="plot", action="append", default=None, metavar="OUTCOME",
@@ -108,7 +91,8 @@ def add_study_commands(sub) -> None:
 
     f = sub.add_parser("find", help="find the smallest or largest value that meets requirements",
                        description=FIND_HELP, epilog=FIND_EXAMPLES, formatter_class=fmt)
-    _common(f)
+    common_options(f)
+    decimal_comma_option(f)
     f.add_argument("--vary", required=True, metavar="KEY=RANGE",
                    help="the key to search and its range, e.g. "
                    "links.orifice.diameter='10 mm:30 mm' (':COUNT' sets the scan points; "
@@ -136,54 +120,33 @@ def add_study_commands(sub) -> None:
     o.add_argument("scenario", type=Path, help="scenario file (YAML)")
 
 
-def _progress(args) -> bool:
-    return not args.quiet and sys.stderr.isatty()
-
-
-def _time_limit(text: str | None) -> float | None:
-    from ..errors import StudyError
-    from ..units import UnitsError, parse_quantity
-    from .sweep import CASE_TIME_LIMIT
-    if text is None:
-        return CASE_TIME_LIMIT
-    if text.strip().lower() in ("none", "off", "no"):
-        return None
-    try:
-        value = parse_quantity(text, "time")
-    except UnitsError as exc:
-        raise StudyError(f"--case-time-limit: {exc}; e.g. '30 min' or 'none'") from None
-    if not value > 0:
-        raise StudyError(f"--case-time-limit: give a time above zero (e.g. '30 min') or "
-                         f"'none', not '{text}'")
-    return value
-
-
 def cmd_sweep(args) -> int:
-    from ..cli import _overrides
+    from ..cliargs import parse_overrides
     from ..errors import Terminated
     from ..outfolder import claim
     from .sweep import Interrupted, check_distinct, parse_vary, sweep
     params = [parse_vary(v) for v in args.vary]
     check_distinct(params)
-    limit = _time_limit(args.case_time_limit)
+    limit = read_time_limit(args.case_time_limit)
     out = args.out or Path("results") / f"{args.scenario.stem}-sweep"
     stopped = None
     with claim(out) as folder:  # checked and locked before any case runs
         try:
             result = sweep(args.scenario, {p.key: p.spec for p in params},
                            workers=args.workers, cluster=args.cluster,
-                           progress=_progress(args), overrides=_overrides(args.overrides),
+                           progress=progress_wanted(args), overrides=parse_overrides(args.overrides),
                            plot=args.plot, case_time_limit=limit)
         except Interrupted as stop:
             if stop.result is None:
                 raise
             result, stopped = stop.result, stop
             print("cvsim: stopping; writing the cases finished so far", file=sys.stderr)
+        result.decimal_comma = args.decimal_comma
         result.write(out, plots=not args.no_plots)
         if args.report:
             from ..scenario import load_scenario
             from .report import write_study_report
-            scenario = load_scenario(args.scenario, overrides=_overrides(args.overrides))
+            scenario = load_scenario(args.scenario, overrides=parse_overrides(args.overrides))
             notes = ([result.partial + "."] if result.partial else []) + [
                 f"{len(result.rows)} cases: {result.counts()}; ran on {result.ran_on} in "
                 f"{result.wall_time:.3g} s."]
@@ -208,7 +171,7 @@ def cmd_sweep(args) -> int:
 
 
 def cmd_find(args) -> int:
-    from ..cli import _overrides
+    from ..cliargs import parse_overrides
     from ..errors import StudyError
     from .seek import MAX_RUNS, seek
     from .sweep import parse_vary
@@ -224,8 +187,10 @@ def cmd_find(args) -> int:
         result = seek(args.scenario, {param.key: param.spec}, meet=args.meet or "limits",
                       goal=args.goal, workers=args.workers, cluster=args.cluster,
                       tolerance=tolerance, max_runs=args.max_runs or MAX_RUNS,
-                      progress=_progress(args), overrides=_overrides(args.overrides))
-        result.write(out, plots=not args.no_plots, run=not args.no_run)
+                      progress=progress_wanted(args), overrides=parse_overrides(args.overrides))
+        result.cases.decimal_comma = args.decimal_comma
+        result.write(out, plots=not args.no_plots, run=not args.no_run,
+                     decimal_comma=args.decimal_comma)
         if args.report:
             _find_report(args, result, out, folder)
     if not args.quiet:
@@ -238,19 +203,30 @@ def cmd_find(args) -> int:
 
 
 def _find_report(args, result, out: Path, folder) -> None:
-    """The calculation report of a search, added to its written folder."""
-    from ..cli import _overrides
+    """The calculation report of a search, added to its written folder: the answer (the
+    value, its bracket and its margins) in the title block and the job statement."""
+    from ..cliargs import parse_overrides
+    from ..display import margin
     from ..scenario import load_scenario
     from .report import write_study_report
-    scenario = load_scenario(args.scenario, overrides=_overrides(args.overrides))
-    answer = (f"{result.goal} {result.key} meeting the requirements: {result.value}"
-              if result.value is not None else f"no value found ({result.status})")
-    notes = [f"Requirements: {'; '.join(result.requirements)}.", f"Answer: {answer}.",
-             f"Bracket: {result.bracket}; {result.simulations} simulations in "
-             f"{result.rounds} rounds; tolerance {result.tolerance:g}.",
-             f"Binding check at the answer: {result.binding}."]
-    notes += [f"{m[0]}: {'met' if m[1] else 'CROSSED'}, margin {m[2]:.4g} {m[3]}"
-              for m in result.margins]
+    scenario = load_scenario(args.scenario, overrides=parse_overrides(args.overrides))
+    answer = [("Answer", f"{result.value}: the {result.goal} {result.key} meeting every "
+               "requirement (simulated and met)" if result.value is not None
+               else f"no value found ({result.status}): {result.message}")]
+    if result.bracket[0] is not None:
+        answer.append(("Bracket", f"the crossing lies between {result.bracket[0]} (not met) "
+                       f"and {result.bracket[1]} (met), relative width at most "
+                       f"{result.tolerance:g}; {result.simulations} simulations in "
+                       f"{result.rounds} rounds"))
+    if result.margins:
+        answer.append(("Margins at the answer", "; ".join(
+            f"{c}: {'met' if m else 'CROSSED'}, margin {margin(g, u)}"
+            for c, m, g, u in result.margins)))
+    if result.binding:
+        answer.append(("Binding requirement", result.binding))
+    answer.append(("Requirements", "; ".join(result.requirements)))
+    notes = ["Every simulation of the search is a row of the table; cases.csv holds them "
+             "all. The answer's own run is in run/."]
     images = [p for k, p in result.files.items() if k == "plot"]
     overview = out / "run" / "overview.png"
     if overview.exists():
@@ -259,7 +235,7 @@ def _find_report(args, result, out: Path, folder) -> None:
         write_study_report(path, result.cases, scenario,
                            title=f"Search for the {result.goal} {result.key}: "
                            f"{result.cases.title}",
-                           notes=notes, images=images)
+                           notes=notes, images=images, answer=answer)
 
 
 def cmd_outcomes(args) -> int:
@@ -276,18 +252,6 @@ def cmd_outcomes(args) -> int:
     print("Limit checks of walls (when modelled) add names such as "
           "<vessel>.limit.max_temperature.<wall>.")
     return 0
-
-
-# public names of the option helpers, for the other study commands' modules
-common_options = _common
-progress_wanted = _progress
-read_time_limit = _time_limit
-
-
-def set_overrides(items: list[str]) -> dict:
-    """``--set KEY=VALUE`` items as a mapping (as ``cvsim run`` reads them)."""
-    from ..cli import _overrides
-    return _overrides(items)
 
 
 def cmd_uncertainty(args) -> int:

@@ -28,7 +28,7 @@ running cases included, rather than after the cases they were running.
 
 A Dask cluster is used when a scheduler address is given (``tcp://host:8786``):
 ``distributed.Client(address)``, ``client.map`` and ``as_completed``. Dask is an
-optional extra (``pip install cvsim[cluster]``) imported only then.
+optional extra (``pip install -e '.[cluster]'`` in the checkout) imported only then.
 """
 from __future__ import annotations
 
@@ -343,7 +343,8 @@ class _Dask:
             import distributed
         except ImportError:
             raise ClusterError("running on a Dask cluster (--cluster) needs the optional "
-                               "packages dask and distributed: pip install 'cvsim[cluster]'"
+                               "packages dask and distributed: pip install -e '.[cluster]' "
+                               "in the cvsim checkout (its distribution is cvsim-vessels)"
                                ) from None
         self.address = address
         self._distributed = distributed
@@ -371,9 +372,10 @@ class _Dask:
         try:
             theirs = self.client.run(versions)
         except ImportError as exc:
-            raise ClusterError(f"the Dask workers cannot import cvsim ({exc}); install cvsim "
-                               f"{mine['cvsim']} with CoolProp {mine['coolprop']} on every "
-                               "worker machine") from None
+            raise ClusterError(f"the Dask workers cannot import cvsim ({exc}): on every "
+                               f"worker machine, install the same cvsim ({mine['cvsim']}, "
+                               f"CoolProp {mine['coolprop']}) from a copy of the checkout "
+                               "(pip install -e '.[cluster]')") from None
         other = {addr: v for addr, v in theirs.items() if v != mine}
         if other:
             addr, v = next(iter(other.items()))

@@ -18,7 +18,7 @@ from pathlib import Path
 
 import numpy as np
 
-from ..plot import COLOURS, DASHES, DPI, _least_span, _legend, figure
+from ..plot import COLOURS, DASHES, figure, least_span, save
 
 PANEL_SIZE = (5.1, 2.9)     # [in] one panel's plotting area, about
 HEADER_IN = 1.3             # [in] title, subtitle and footer together
@@ -46,7 +46,7 @@ def plot_sweep(result, path: Path, outcomes: list[str], mark: tuple | None = Non
     n = max(1, len(outcomes))
     cols = 1 if n == 1 else 2
     rows = math.ceil(n / cols)
-    size = (max(8.0, cols * (PANEL_SIZE[0] + 0.9)), HEADER_IN + rows * (PANEL_SIZE[1] + 0.8))
+    size = (max(8.0, cols * (PANEL_SIZE[0] + 0.9)), HEADER_IN + rows * (PANEL_SIZE[1] + 1.5))
     c = result.counts()
     if subtitle is None:
         subtitle = (f"{len(result.rows)} cases: {c['completed']} completed, "
@@ -59,7 +59,7 @@ def plot_sweep(result, path: Path, outcomes: list[str], mark: tuple | None = Non
                    [(v, op) for n, v, op in required or () if n == name])
         for ax in axes[len(outcomes):]:
             ax.set_visible(False)
-        fig.savefig(path, dpi=DPI)
+        save(fig, path)
     return path
 
 
@@ -73,22 +73,24 @@ class _XAxis:
         if p.numbers and len(p.numbers) == len(p.values):
             where = dict(zip(p.texts(), p.numbers))
             self.x = [where[r[p.key]] for r in result.rows]
-            self.label = f"{p.key} [{p.unit}]" if p.unit else p.key
+            words = axis_words(p.key)
+            self.label = f"{words} [{p.unit}]" if p.unit else words
             self.log = p.kind == "log"
             if not p.unit and p.kind == "list":
                 unit = _common_unit(p.values)
-                self.label = f"{p.key} [{unit}]" if unit else p.key
+                self.label = f"{words} [{unit}]" if unit else words
             return
         si = [r.get(f"{p.key}.si") for r in result.rows]
         unit = result.column(f"{p.key}.si").unit
         if all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in si):
             self.x = [float(v) for v in si]
-            self.label = f"{p.key} [{unit}] (as used, SI)" if unit else p.key
+            words = axis_words(p.key)
+            self.label = f"{words} [{unit}] (as used, SI)" if unit else words
             return
         order = p.texts()
         self.x = [float(order.index(r[p.key])) for r in result.rows]
         self.ticks = order
-        self.label = p.key
+        self.label = axis_words(p.key)
 
 
 def _common_unit(values) -> str:
@@ -131,7 +133,7 @@ def _panel(ax, result, name, axis: _XAxis, groups, mark, required=()):
         ax.plot([axis.x[i] for i in ok], [y[i] for i in ok], color=colour, ls=ls, lw=1.6,
                 marker="o", ms=3.5 if axis.ticks is None else 6, label=label or None)
     if col.kind != "limit-met":
-        _least_span(ax, 0.0)  # round-off between cases must not show as ticks
+        least_span(ax, 0.0)  # round-off between cases must not show as ticks
     _limit_line(ax, result, name, conv, unit)
     for value, op in required:
         _threshold(ax, conv(value), below_is_bad=op.startswith(">"),
@@ -160,13 +162,53 @@ def _panel(ax, result, name, axis: _XAxis, groups, mark, required=()):
     if col.kind == "limit-met":
         ax.set_ylim(-0.2, 1.2)
         ax.set_yticks([0, 1], ["crossed", "met"])
-    _legend(ax, PANEL_SIZE, [])
+    _legend_below(ax)
+
+
+#: characters of a panel title per line (two lines at most; the whole text is in the
+#: table's column description)
+TITLE_CHARS = 58
+
+
+def _legend_below(ax):
+    """The legend under the panel (below its axis label), where it hides no point."""
+    handles, labels = ax.get_legend_handles_labels()
+    if handles:
+        ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.2), ncols=2, fontsize=7.5,
+                  frameon=False)
 
 
 def _title(col) -> str:
+    """The outcome's words, wrapped on two lines (cut with an ellipsis after them)."""
+    import textwrap
     text = col.text or col.name
     text = text[0].upper() + text[1:]
-    return text if len(text) <= 70 else text[:69] + "…"
+    lines = textwrap.wrap(text, TITLE_CHARS)
+    if len(lines) > 2:
+        lines = [lines[0], lines[1][:TITLE_CHARS - 1].rstrip() + "…"]
+    return "\n".join(lines)
+
+
+#: words for the sections of a key path (``links.orifice.diameter``)
+SECTION_WORDS = {"links": "link", "vessels": "vessel", "reservoirs": "reservoir"}
+
+
+def axis_words(key: str) -> str:
+    """A varied key path in words for an axis label:
+    ``links.orifice.diameter`` -> ``Diameter of link 'orifice'``,
+    ``vessels.drum.initial.temperature`` -> ``Initial temperature of vessel 'drum'``,
+    ``run.end`` -> ``Run end``.
+
+    >>> axis_words("links.orifice.diameter"), axis_words("vessels.drum.initial.temperature")
+    ("Diameter of link 'orifice'", "Initial temperature of vessel 'drum'")
+    """
+    import re
+    parts = [p for p in re.split(r"[.\[\]]", key) if p]
+    if len(parts) >= 3 and parts[0] in SECTION_WORDS:
+        what = " ".join(parts[2:]).replace("_", " ")
+        return f"{what[0].upper()}{what[1:]} of {SECTION_WORDS[parts[0]]} '{parts[1]}'"
+    what = " ".join(parts).replace("_", " ")
+    return what[0].upper() + what[1:] if what else key
 
 
 def _limit_line(ax, result, name, conv, unit):
@@ -185,8 +227,24 @@ def _limit_line(ax, result, name, conv, unit):
             continue
         shown = conv(limits.pop())
         _threshold(ax, shown, _below_is_bad(completed, base),
-                   f"limit: {_short_unit(shown, _deg(unit))} ({base.split('.limit.')[-1]})")
+                   f"limit: {_short_unit(shown, _deg(unit))} "
+                   f"({limit_words(base.split('.limit.')[-1])})")
         return
+
+
+#: words for the limit checks' keys (``cvsim.limits.LimitCheck.key``)
+LIMIT_WORDS = {"design_pressure": "allowed pressure", "min_metal_temperature": "MDMT",
+               "max_temperature": "highest allowed temperature",
+               "depressure": "depressuring time"}
+
+
+def limit_words(key: str) -> str:
+    """``min_metal_temperature.gas`` -> ``MDMT, gas temperature for information``."""
+    head, _, rest = key.partition(".")
+    words = LIMIT_WORDS.get(head, head.replace("_", " "))
+    if rest == "gas" and head == "min_metal_temperature":
+        return f"{words}; the gas, for information"
+    return f"{words}, {rest.replace('.', ' ')}" if rest else words
 
 
 def _deg(unit: str) -> str:

@@ -50,7 +50,7 @@ def study_rows(result: SweepResult, outcomes: list[str] | None = None):
 
 
 def write_study_report(path, result: SweepResult, scenario=None, title: str | None = None,
-                       notes=(), images=()) -> Path:
+                       notes=(), images=(), answer=()) -> Path:
     """Write report.html of a study next to its files (written via a temporary name,
     so a failed write leaves no partial report)."""
     from ..report import render_sweep_report
@@ -58,7 +58,8 @@ def write_study_report(path, result: SweepResult, scenario=None, title: str | No
     params = {p.key: [str(v) for v in p.values] for p in result.parameters}
     html = render_sweep_report(title or result.title, scenario=scenario, parameters=params,
                                rows=rows, columns=columns, images=list(images),
-                               notes=list(notes), provenance=result.provenance)
+                               notes=list(notes), provenance=result.provenance,
+                               answer=list(answer), keep=len(result.parameters))
     path = Path(path)
     tmp = path.with_name(f".{path.name}.partial")
     tmp.write_text(html, encoding="utf-8")

@@ -232,7 +232,7 @@ class SeekResult:
         }
 
     def text(self) -> str:
-        from ..outputs import _t
+        from ..display import duration as _t
         from .table import Column, cell_text
         word = "smallest" if self.goal == "smallest" else "largest"
         L = [self.cases.title, "=" * min(len(self.cases.title), 78),
@@ -258,12 +258,13 @@ class SeekResult:
               "", "CAUTION: " + CAUTION]
         return "\n".join(L) + "\n"
 
-    def write(self, folder, plots: bool = True, run: bool = True) -> dict:
+    def write(self, folder, plots: bool = True, run: bool = True,
+              decimal_comma: bool = False) -> dict:
         """Write seek.txt, seek.json, cases.csv/.json/.txt, cases.png and, with
         ``run``, the full outputs of one more run at the value found (``run/``),
         atomically."""
         from ..outputs import atomic_folder, write_run_files
-        from ..outputs import _jsonable
+        from ..display import jsonable as _jsonable
         import json
         folder = Path(folder)
         with atomic_folder(folder) as tmp:
@@ -292,7 +293,8 @@ class SeekResult:
                                                {**source.overrides, **self.overrides})
                 result = run_scenario(scenario)
                 (tmp / "run").mkdir()
-                write_run_files(result, tmp / "run", plots=plots, echo=scenario.echo)
+                write_run_files(result, tmp / "run", plots=plots, echo=scenario.echo,
+                                decimal_comma=decimal_comma)
                 files["run"] = tmp / "run"
             files["text"] = tmp / "seek.txt"
             files["json"] = tmp / "seek.json"

@@ -36,7 +36,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from ..errors import CvsimError, ScenarioError, StudyError
-from .table import NOT_RUN, SweepResult
+from .table import NOT_RUN, SweepResult, value_text  # noqa: F401  (value_text re-exported)
 
 #: largest number of values a range may ask for, and of cases in one sweep
 MAX_VALUES = 10_000
@@ -84,12 +84,6 @@ class Parameter:
 
     def texts(self) -> list[str]:
         return [value_text(v) for v in self.values]
-
-
-def value_text(value) -> str:
-    """A value as shown in tables (text as given)."""
-    from ..scenario.spec import as_text
-    return value if isinstance(value, str) else as_text(value)
 
 
 def number_text(x: float) -> str:

@@ -54,7 +54,7 @@ class Column:
 
     def shown(self) -> tuple[str, object]:
         """(unit shown in files, converter from SI)."""
-        from ..outputs import display
+        from ..display import display
         if self.kind == "parameter-si":  # the value as the scenario used it: SI
             return self.unit, (lambda v: v)
         if self.difference and self.unit in DIFFERENCE_DISPLAY:
@@ -95,6 +95,7 @@ class SweepResult:
     outcome_defaults: list = field(default_factory=list)
     files: dict = field(default_factory=dict)
     partial: str = ""      # the sweep was stopped: what is missing ("" when complete)
+    decimal_comma: bool = False  # CSV for decimal-comma spreadsheets: ';' and 1,5
     warnings: list = field(default_factory=list)  # e.g. a plot that could not be drawn
 
     # ------------------------------------------------------------- build
@@ -103,7 +104,6 @@ class SweepResult:
               wall_time=0.0) -> "SweepResult":
         from ..api import provenance as versions
         from .outcomes import outcome_list
-        from .sweep import value_text
         columns = [Column("case", "", "case", "case number")]
         for p in parameters:
             si_unit = next((r["si"][p.key][1] for r in raw_rows if p.key in r["si"]), "")
@@ -186,13 +186,14 @@ class SweepResult:
 
     def to_dataframe(self):
         """The rows as a pandas DataFrame (SI values; needs pandas:
-        ``pip install cvsim[dataframe]``), with ``df.attrs``: ``caution``, ``title``,
+        ``pip install -e '.[dataframe]'`` in the cvsim checkout), with ``df.attrs``: ``caution``, ``title``,
         ``provenance`` and ``units`` (column name -> SI unit)."""
         try:
             import pandas as pd
         except ImportError:
             from ..errors import StudyError
-            raise StudyError("to_dataframe() needs pandas: pip install 'cvsim[dataframe]'"
+            raise StudyError("to_dataframe() needs pandas: pip install -e '.[dataframe]' in "
+                             "the cvsim checkout"
                              ) from None
         names = [c.name for c in self.columns]
         df = pd.DataFrame([[r.get(n) for n in names] for r in self.rows], columns=names)
@@ -225,7 +226,7 @@ class SweepResult:
     def write(self, folder, plots: bool = True, outcomes: list[str] | None = None) -> dict:
         """Write sweep.csv, sweep.json, sweep.txt and (unless ``plots=False``)
         sweep.png into ``folder``, atomically; returns {name: path}."""
-        from ..outputs import atomic_folder
+        from ..outfolder import atomic_folder
         folder = Path(folder)
         names = self._plot_outcomes(outcomes)
         with atomic_folder(folder) as tmp:
@@ -250,7 +251,7 @@ class SweepResult:
         self.files = files
         write_table_csv(self, files["csv"])
         files["text"].write_text(self.text(outcomes), encoding="utf-8")
-        from ..outputs import _jsonable
+        from ..display import jsonable as _jsonable
         with open(files["json"], "w", encoding="utf-8") as fh:
             json.dump(_jsonable(self.as_dict()), fh, indent=1)
             fh.write("\n")
@@ -280,7 +281,7 @@ class SweepResult:
         """A time column in min or h when its values are long (text and plots)."""
         if col.unit != "s":
             return col
-        from ..plot import time_unit
+        from ..display import time_unit
         values = [v for v in self.values(col.name) if isinstance(v, float) and math.isfinite(v)]
         unit, size = time_unit(max(values, default=0.0))
         return _Scaled(col.name, col.unit, col.kind, col.text, col.difference, unit, size)
@@ -288,7 +289,7 @@ class SweepResult:
     def text(self, outcomes: list[str] | None = None) -> str:
         """A readable summary: what was varied, a table of the chosen outcomes,
         the failed cases with their errors, the caution."""
-        from ..outputs import _t
+        from ..display import duration as _t
         names = self._plot_outcomes(outcomes)
         c = self.counts()
         n = len(self.rows)
@@ -336,6 +337,13 @@ class SweepResult:
         return "\n".join(L) + "\n"
 
 
+def value_text(value) -> str:
+    """A value as shown in tables (text as given)."""
+    from ..scenario.spec import as_text
+    return value if isinstance(value, str) else as_text(value)
+
+
+
 def cell_text(column: Column, value, digits: int = 6) -> str:
     """One value as written in the text table (``digits`` significant digits)
     and, with ``digits=10``, in the CSV: engineering units, SI for the
@@ -366,11 +374,24 @@ def write_table_csv(result: SweepResult, path: Path) -> Path:
     with open(path, "w", newline="", encoding="utf-8") as fh:
         for line in header_lines(result.title, result.provenance, status, result.atmosphere):
             fh.write(f"# {line}\n")
-        w = csv.writer(fh)
+        comma = getattr(result, "decimal_comma", False)
+        if comma:
+            fh.write("# fields separated by ';', decimal comma\n")
+        w = csv.writer(fh, delimiter=";" if comma else ",")
         w.writerow([col.header() for col in result.columns])
         for r in result.rows:
-            w.writerow([cell_text(col, r.get(col.name), 10) for col in result.columns])
+            cells = [cell_text(col, r.get(col.name), 10) for col in result.columns]
+            w.writerow([_comma(c) for c in cells] if comma else cells)
     return path
+
+
+def _comma(cell: str) -> str:
+    """A number written with a decimal comma; other text as it is."""
+    try:
+        float(cell)
+    except ValueError:
+        return cell
+    return cell.replace(".", ",")
 
 
 def default_outcomes(result: SweepResult, reference) -> list[str]:
@@ -399,7 +420,19 @@ def default_outcomes(result: SweepResult, reference) -> list[str]:
     present = {c.name for c in result.columns}
     wanted = [w for w in wanted if w in present]
     varying = [w for w in wanted if _varies(result, w)]
-    return varying or wanted[:1]
+    return _distinct(result, varying) or wanted[:1]
+
+
+def _distinct(result: SweepResult, names: list[str]) -> list[str]:
+    """``names`` without those whose values equal an earlier one's in every case (the
+    lowest gas temperature and the MDMT check on the gas are the same numbers: one
+    panel, with the limit drawn on it)."""
+    out = []
+    for name in names:
+        values = [r.get(name) for r in result.rows]
+        if not any(values == [r.get(o) for r in result.rows] for o in out):
+            out.append(name)
+    return out
 
 
 def _has_walls(result: SweepResult, vessel: str) -> bool:

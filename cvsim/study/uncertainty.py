@@ -39,19 +39,13 @@ from ..errors import ScenarioError, StudyError
 from ..result import CAUTION
 from .sweep import CASE_TIME_LIMIT, Interrupted, Parameter, Source, not_run_row, run_cases
 from .table import NOT_RUN, SweepResult
+from .uncertainty_terms import ANY_LIMIT, UNCERTAINTY_CAUTION  # noqa: F401  (re-exported)
 
-#: said beside every probability and percentile of a study
-UNCERTAINTY_CAUTION = (
-    "A probability or percentile from this study is only as good as the distributions "
-    "stated for its inputs: it covers the inputs made uncertain and nothing else (not the "
-    "error of the model itself, nor inputs held at fixed values).")
 #: an input's distribution is checked against the scenario reader at these
 #: points of its CDF (the truncation ends where it has them)
 TAIL = 1e-6
 #: kinds of sweep-table column whose spread is reported
 SPREAD_KINDS = ("figure", "limit-actual", "limit-margin")
-#: the overall chance of crossing any limit is listed under this name
-ANY_LIMIT = "any design limit"
 
 
 # ----------------------------------------------------------------- set-up
@@ -326,7 +320,8 @@ class UncertaintyResult:
         try:
             import pandas as pd
         except ImportError:
-            raise StudyError("to_dataframe() needs pandas: pip install 'cvsim[dataframe]'"
+            raise StudyError("to_dataframe() needs pandas: pip install -e '.[dataframe]' in "
+                             "the cvsim checkout"
                              ) from None
         records = []
         for name, s in self.spreads.items():

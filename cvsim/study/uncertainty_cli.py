@@ -44,7 +44,7 @@ examples:
 
 
 def add_uncertainty_command(sub) -> None:
-    from .cli import common_options
+    from .options import common_options
     p = sub.add_parser("uncertainty", help="how sure the outcomes are, and which input drives "
                        "them (uncertain inputs drawn many times)", description=HELP,
                        epilog=EXAMPLES, formatter_class=argparse.RawDescriptionHelpFormatter)
@@ -105,7 +105,7 @@ def _correlations(items: list[str]) -> list:
 def cmd_uncertainty(args) -> int:
     from ..errors import Terminated
     from ..outfolder import claim
-    from .cli import progress_wanted, read_time_limit, set_overrides
+    from .options import progress_wanted, read_time_limit, set_overrides
     from .sweep import Interrupted
     from .uncertainty import uncertainty
     limit = read_time_limit(args.case_time_limit)

@@ -25,7 +25,7 @@ TEXT_INPUTS = 5
 def units_of(result, name: str) -> tuple[str, object, str, object]:
     """(unit shown, SI -> shown, unit of a difference, SI difference -> shown)
     of an outcome; long times in min or h."""
-    from ..plot import time_unit
+    from ..display import time_unit
     col = result.table.column(name)
     unit, conv = col.shown()
     if col.unit == "s":
@@ -65,7 +65,7 @@ def _head(result, fh) -> None:
     t = result.table
     for line in header_lines(t.title, t.provenance, _status(result), t.atmosphere):
         fh.write(f"# {line}\n")
-    from .uncertainty import UNCERTAINTY_CAUTION
+    from .uncertainty_terms import UNCERTAINTY_CAUTION
     fh.write(f"# {UNCERTAINTY_CAUTION}\n")
 
 
@@ -182,7 +182,7 @@ def duration(t: float) -> str:
 # ------------------------------------------------------------------- text
 
 def summary_text(result) -> str:
-    from .uncertainty import ANY_LIMIT, UNCERTAINTY_CAUTION
+    from .uncertainty_terms import ANY_LIMIT, UNCERTAINTY_CAUTION
     spec, rec, c = result.spec, result.record(), result.counts
     conf = f"{100 * spec.confidence:.3g} %"
     L = [result.title, "=" * min(len(result.title), 78)]
@@ -306,7 +306,7 @@ def describe_input(inp) -> str:
 def input_unit(inp) -> tuple[str, object]:
     """(unit, SI -> unit) an input is shown in: the unit the file writes it in
     (``10 mm``), else the engineering unit of the tables (degC, bar a)."""
-    from ..outputs import display
+    from ..display import display
     return _unit_of(inp) or display(inp.distribution.unit)
 
 

@@ -43,7 +43,7 @@ def _grid(n: int, width_in: float = PANEL[0]):
 
 
 def _subtitle(result, what: str) -> str:
-    from .uncertainty import UNCERTAINTY_CAUTION
+    from .uncertainty_terms import UNCERTAINTY_CAUTION
     rec, c = result.record(), result.counts
     text = (f"{what}. {rec['cases']} cases ({rec['sampling']}, seed {rec['seed']}): "
             f"{c.get('completed', 0)} completed, {c.get('stopped', 0)} stopped, "

@@ -54,7 +54,7 @@ def _pct(x) -> str:
 
 
 def inputs_section(result) -> Section:
-    from .uncertainty import UNCERTAINTY_CAUTION
+    from .uncertainty_terms import UNCERTAINTY_CAUTION
     spec, rec = result.spec, result.record()
     rows = [[tag("code", i.key), describe_input(i), i.given] for i in spec.inputs]
     body = [table(["Key", "Distribution", "Value in the file"], rows,
@@ -175,7 +175,7 @@ def write_uncertainty_report(path, result, scenario=None) -> Path:
     """Write report.html of an uncertainty study (via a temporary name)."""
     from ..report import render_sweep_report
     from .report import study_rows
-    from .uncertainty import UNCERTAINTY_CAUTION
+    from .uncertainty_terms import UNCERTAINTY_CAUTION
     rows, columns = study_rows(result.table, result.main)
     # the inputs in the unit the file writes them in, 5 digits (cases.csv has every digit)
     shown = []
