@@ -482,6 +482,17 @@ class WallTerm(HeatComponent):
         if out.model == "insulated":
             return q_fire, q_fire, 0.0
         T_amb = segment.signal(out.ambient, t)
+        area = self.A_out - (self.exposed if burning else 0.0)
+        q, h = self._surface_exchange(Tw, T_amb)
+        return area * q + q_fire, q_fire, h
+
+    def _surface_exchange(self, Tw: float, T_amb: float) -> tuple[float, float]:
+        """Heat flux [W/m2] into an outside surface at Tw [K] from surroundings at T_amb
+        [K] (natural convection or a fixed coefficient, plus grey radiation), and the
+        convective coefficient [W/(m2 K)]; keeps the largest surface coefficient (with
+        the radiative one, Incropera 7th ed., eq. 1.9) for the Biot number and the
+        dimensionless groups for the range watch."""
+        out = self.d.outside
         if out.model == "fixed":
             h = out.coefficient
         else:
@@ -492,15 +503,13 @@ class WallTerm(HeatComponent):
             nu, validity = NATURAL[self.d.convection_shape]
             h = nu(Ra, Pr) * k / L
             self._out_groups = (validity, Ra, Pr, Tw - T_amb)
-        area = self.A_out - (self.exposed if burning else 0.0)
         q = h * (T_amb - Tw)
         h_surface = h
         if out.emissivity > 0.0:
             q += out.emissivity * SIGMA * (T_amb**4 - Tw**4)
-            # radiative coefficient (Incropera 7th ed., eq. 1.9), for the Biot number
             h_surface += out.emissivity * SIGMA * (Tw + T_amb) * (Tw * Tw + T_amb * T_amb)
         self._h_biot_out = max(self._h_biot_out, h_surface)
-        return area * q + q_fire, q_fire, h
+        return q, h
 
     # ------------------------------------------------------------------ energy
     def stored_energy(self, own) -> float:

@@ -56,7 +56,7 @@ import numpy as np
 from .boiling import ROHSENOW_CSF, ROHSENOW_N, rohsenow_coefficient, zuber_critical_heat_flux
 from .convection import NATURAL, prandtl, rayleigh
 from .definitions import FlameExposure, PoolFire
-from .fire import SIGMA, api521_pool_fire_heat, flame_heat_flux
+from .fire import api521_pool_fire_heat, flame_heat_flux
 from .walls import WallTerm, fire_equivalent_coefficient
 
 #: regularisation of a part's energy per unit share (see the module docstring)
@@ -232,22 +232,7 @@ class ZonedWallTerm(WallTerm):
         res = []
         h_report = 0.0
         for T, area in ((Tw, A_w - ex_w), (Tu, A_u - ex_u)):
-            if out.model == "fixed":
-                h = out.coefficient
-            else:
-                rho, cp, mu, k, beta = self._air.at(0.5 * (T + T_amb))
-                L = self.d.outside_length
-                Ra = rayleigh(abs(beta), T - T_amb, L, rho, mu, k, cp)
-                Pr = prandtl(mu, k, cp)
-                nu, validity = NATURAL[self.d.convection_shape]
-                h = nu(Ra, Pr) * k / L
-                self._out_groups = (validity, Ra, Pr, T - T_amb)
-            q = h * (T_amb - T)
-            h_surface = h
-            if out.emissivity > 0.0:
-                q += out.emissivity * SIGMA * (T_amb**4 - T**4)
-                h_surface += out.emissivity * SIGMA * (T + T_amb) * (T * T + T_amb * T_amb)
-            self._h_biot_out = max(self._h_biot_out, h_surface)
+            q, h = self._surface_exchange(T, T_amb)
             res.append(max(area, 0.0) * q)
             h_report = max(h_report, h)
         return res[0] + fire_w, res[1] + fire_u, q_fire, h_report

@@ -276,12 +276,18 @@ class _Local:
             pool = self._ensure()
             broken = False
             while waiting and len(running) < window:
+                # a job that was running at a crash runs alone, so that a second crash
+                # is its own and takes no innocent job with it
+                if crashes[waiting[-1]] and running:
+                    break
                 i = waiting.pop()
                 try:
                     running[pool.submit(fn, jobs[i])] = i
                 except BrokenProcessPool:
                     waiting.append(i)
                     broken = True
+                    break
+                if crashes[i]:
                     break
             if not broken:
                 done, _ = wait(running, return_when=FIRST_COMPLETED)

@@ -493,7 +493,6 @@ def sweep(scenario, vary: dict, workers: int | None = None, cluster: str | None 
     Interrupted
         Ctrl-C or SIGTERM: its ``result`` holds the finished cases, marked partial.
     """
-    from .parallel import Workers
     if not isinstance(vary, dict) or not vary:
         raise StudyError("give at least one key to vary, e.g. "
                          "vary={'links.vent.diameter': '6 mm, 8 mm, 10 mm'} (--vary)")
@@ -507,6 +506,26 @@ def sweep(scenario, vary: dict, workers: int | None = None, cluster: str | None 
     if case_time_limit is not None and not case_time_limit > 0:
         raise StudyError(f"the case time limit must be above zero, not {case_time_limit!r} "
                          "(--case-time-limit; 'none' for no limit)")
+    try:
+        result = run_table(source, parameters, cases, reference, workers, cluster,
+                           start_method, progress, case_time_limit, "sweep", "")
+    except Interrupted as stop:
+        if plot is not None:
+            stop.result.outcome_defaults = plot
+        raise
+    if plot is not None:
+        result.outcome_defaults = plot
+    return result
+
+
+def run_table(source, parameters, cases, reference, workers, cluster, start_method,
+              progress, case_time_limit, what: str, left_out: str) -> SweepResult:
+    """Run ``cases`` on local workers or a Dask cluster and collect their table.
+    Stopped part-way (Ctrl-C, SIGTERM), the finished rows are kept in a table marked
+    PARTIAL (the others ``not run``), set on the :class:`Interrupted` as ``result``,
+    which is raised again; ``what`` names the study and ``left_out`` says what else
+    leaves the unfinished cases out, in that mark."""
+    from .parallel import Workers
     started = time.time()
     where = ""
     try:
@@ -516,21 +535,16 @@ def sweep(scenario, vary: dict, workers: int | None = None, cluster: str | None 
     except Interrupted as stop:
         done = sum(r is not None for r in stop.rows)
         rows = [r if r is not None else not_run_row(i + 1) for i, r in enumerate(stop.rows)]
-        result = SweepResult.build(source, parameters, cases, rows, reference,
-                                   ran_on=where, wall_time=time.time() - started)
+        table = SweepResult.build(source, parameters, cases, rows, reference,
+                                  ran_on=where, wall_time=time.time() - started)
         left = len(rows) - done
-        result.partial = (f"PARTIAL: the sweep was stopped after {done} of {len(rows)} "
-                          f"cases; the {left} not finished {'is' if left == 1 else 'are'} "
-                          f"marked '{NOT_RUN}'")
-        if plot is not None:
-            result.outcome_defaults = plot
-        stop.result = result
+        table.partial = (f"PARTIAL: the {what} was stopped after {done} of {len(rows)} "
+                         f"cases; the {left} not finished {'is' if left == 1 else 'are'} "
+                         f"marked '{NOT_RUN}'{left_out}")
+        stop.result = table
         raise
-    result = SweepResult.build(source, parameters, cases, rows, reference,
-                               ran_on=where, wall_time=time.time() - started)
-    if plot is not None:
-        result.outcome_defaults = plot
-    return result
+    return SweepResult.build(source, parameters, cases, rows, reference,
+                             ran_on=where, wall_time=time.time() - started)
 
 
 def check_outcomes(names, reference) -> list[str]:

@@ -29,7 +29,6 @@ from __future__ import annotations
 
 import copy
 import math
-import time
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -37,8 +36,8 @@ import numpy as np
 
 from ..errors import ScenarioError, StudyError
 from ..result import CAUTION
-from .sweep import CASE_TIME_LIMIT, Interrupted, Parameter, Source, not_run_row, run_cases
-from .table import NOT_RUN, SweepResult
+from .sweep import CASE_TIME_LIMIT, Interrupted, Parameter, Source, run_table
+from .table import SweepResult
 from .uncertainty_terms import ANY_LIMIT, UNCERTAINTY_CAUTION  # noqa: F401  (re-exported)
 
 #: an input's distribution is checked against the scenario reader at these
@@ -501,7 +500,6 @@ def uncertainty(scenario, inputs: dict | None = None, correlations=None,
         (marked partial).
     """
     from ..scenario import load_scenario_bytes
-    from .parallel import Workers
     from .sampling import make_design
     source = Source.of(scenario, overrides)
     extra = study_overrides(source, inputs, correlations, cases=cases, sampling=sampling,
@@ -528,27 +526,15 @@ def uncertainty(scenario, inputs: dict | None = None, correlations=None,
                   for i, inp in enumerate(spec.inputs)]
     case_values = [dict(zip(design.keys, t)) for t in texts]
     notes = list(design.notes)
-    started = time.time()
-    where = ""
     try:
-        with Workers(workers, cluster, start_method) as pool:
-            where = pool.describe()
-            rows = run_cases(source, case_values, pool, progress, time_limit=case_time_limit)
+        table = run_table(source, parameters, case_values, reference, workers, cluster,
+                          start_method, progress, case_time_limit, "study",
+                          " and left out of the statistics")
     except Interrupted as stop:
-        done = sum(r is not None for r in stop.rows)
-        rows = [r if r is not None else not_run_row(i + 1) for i, r in enumerate(stop.rows)]
-        table = SweepResult.build(source, parameters, case_values, rows, reference,
-                                  ran_on=where, wall_time=time.time() - started)
-        left = len(rows) - done
-        table.partial = (f"PARTIAL: the study was stopped after {done} of {len(rows)} cases; "
-                         f"the {left} not finished {'is' if left == 1 else 'are'} marked "
-                         f"'{NOT_RUN}' and left out of the statistics")
-        result = UncertaintyResult.build(table, spec, design, notes)
-        result.partial = table.partial
+        result = UncertaintyResult.build(stop.result, spec, design, notes)
+        result.partial = stop.result.partial
         stop.result = result
         raise
-    table = SweepResult.build(source, parameters, case_values, rows, reference,
-                              ran_on=where, wall_time=time.time() - started)
     return UncertaintyResult.build(table, spec, design, notes)
 
 
