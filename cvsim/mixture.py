@@ -859,6 +859,42 @@ class MixtureFluid:
             hint.liquid = fl[3] is None
         return self._make(T, p, fl)
 
+    def root_of(self, st: MixtureState) -> str:
+        """Which volume root of the equation of state a one-phase state of this
+        composition lies on at its (T, p): ``vapour`` or ``liquid`` (the nearer in
+        molar volume; one root only: ``vapour``)."""
+        e = self.engine
+        v = self.molar_mass / st.rho
+        vV = e._lean.volume(st.T, st.p, self.z, e._VAP)
+        vL = e._lean.volume(st.T, st.p, self.z, e._LIQ)
+        e.evaluations += 2
+        return "liquid" if abs(vL - v) < abs(vV - v) else "vapour"
+
+    def metastable_isentrope_at_p(self, p: float, s: float, T_guess: float,
+                                  root: str = "vapour") -> MixtureState:
+        """One-phase state at pressure p [Pa] with specific entropy s [J/(kg K)] on one
+        volume root (``vapour`` or ``liquid``) of the equation of state at this fixed
+        composition, with no stability test: the phase is kept from splitting, as in a
+        frozen expansion (a vapour supersaturated inside the phase envelope stays
+        vapour). Newton on T at fixed p, ds/dT = c_p/T, bracketed; converged to
+        MIX_RTOL (|s| + R). Where the root ceases to exist (beyond its spinodal) the
+        equation of state has only the other root, and the state is that root's.
+
+        Raises StateError when no temperature in range gives the entropy."""
+        if not (p > 0.0) or not math.isfinite(p):
+            raise StateError(f"pressure {p:.6g} Pa is not positive")
+        self._check_p(p)
+        e = self.engine
+        target = s * self.molar_mass
+        tol = MIX_RTOL * (abs(target) + self._s_scale)
+        T0 = T_guess if (T_guess and self.t_min < T_guess < self.t_max) else 300.0
+        liquid = root == "liquid"
+        ph = self._single_T_p(p, target, T0, "s", tol, e._LIQ if liquid else e._VAP)
+        if ph is None:
+            raise self._unsolved_p(p, s)
+        return self._make(ph.T, p, (0.0, self.z, self.z, None, ph) if liquid else
+                          (1.0, self.z, self.z, ph, None))
+
     def _single_T_p(self, p: float, target: float, T0: float, kind: str, tol: float,
                     flag: int):
         """One-phase temperature at pressure p on the root ``flag`` with s (or h) =

@@ -124,11 +124,21 @@ def assumption_lines(spec, network) -> list[str]:
     own = [r.name for r in network.reservoirs if r.composition is not None]
     if own:
         out.append("Reservoirs supplying their own composition: " + ", ".join(own) + ".")
+    frozen = [k.name for k in network.links
+              if getattr(k.device, "expansion", "equilibrium") == "frozen"]
     if any(type(k.device).__name__ in ("Orifice", "ReliefValve", "BurstingDisc", "CheckValve")
-           for k in network.links):
+           and k.name not in frozen for k in network.links):
         out.append("Mixture through a nozzle throat: homogeneous equilibrium (phases at one "
                    "velocity and temperature, in phase equilibrium), throat where the flow "
                    "reaches the equilibrium speed of sound, found in pressure.")
+    if frozen:
+        out.append("Frozen composition through the orifice(s) " + ", ".join(frozen) + ": no "
+                   "phase change in the nozzle (each phase keeps its mass share and "
+                   "composition; the vapour expands isentropically on its own root of the "
+                   "equation of state, supersaturated where equilibrium would condense it; "
+                   "the liquid incompressible), throat where the flow reaches the frozen "
+                   "speed of sound; the upper bound of a flashing flow, equilibrium the "
+                   "lower.")
     return out
 
 

@@ -257,6 +257,10 @@ class Orifice:
                           density and the ideal-gas k at the upstream temperature)
     open_from, open_until [s] the orifice passes flow only in this time window
                           (an isolation valve opening or closing instantly)
+    expansion             a mixture's real-gas nozzle: ``equilibrium`` (phases split
+                          and exchange mass through the nozzle, homogeneous
+                          equilibrium) or ``frozen`` (each phase keeps its share and
+                          composition: :mod:`cvsim.flow.frozen_nozzle`)
     """
 
     area: float
@@ -264,6 +268,7 @@ class Orifice:
     flow_model: str = "real-gas"
     open_from: float = 0.0
     open_until: float = float("inf")
+    expansion: str = "equilibrium"
 
 
 @dataclass(frozen=True)

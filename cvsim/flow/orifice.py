@@ -5,7 +5,9 @@ import math
 
 from .base import NO_FLOW, Device, Flow
 from .exponent import perfect_gas_exponent
-from .nozzle import NozzleHint, at_triple_point, ideal_gas_mass_flux, real_gas_mass_flux
+from ..fluid import fluid_of
+from .nozzle import (LINEAR_BELOW, NozzleHint, at_triple_point, ideal_gas_mass_flux,
+                     real_gas_mass_flux)
 
 
 class OrificeDevice(Device):
@@ -15,7 +17,8 @@ class OrificeDevice(Device):
     (default) or ideal-gas form; the ideal-gas form takes the real upstream density
     and the ideal-gas k at the upstream temperature
     (:func:`cvsim.flow.exponent.perfect_gas_exponent`), also from a saturated or
-    two-phase source. The flow goes from the node at the higher
+    two-phase source. A mixture with ``expansion: frozen`` takes the frozen-composition
+    nozzle (:mod:`cvsim.flow.frozen_nozzle`). The flow goes from the node at the higher
     pressure to the other; the upstream node gives the stagnation state.
     Outside ``[open_from, open_until)`` the orifice passes nothing (an isolation
     valve that opens or closes at once; both times are solver breakpoints).
@@ -28,6 +31,12 @@ class OrificeDevice(Device):
         self.cda = definition.discharge_coefficient * definition.area
         self.real = definition.flow_model == "real-gas"
         self._hints = (NozzleHint(), NozzleHint())
+        #: a mixture's nozzle with frozen composition (no phase change in the nozzle)
+        self.frozen = getattr(definition, "expansion", "equilibrium") == "frozen"
+        if self.frozen:
+            from .frozen_nozzle import FrozenNozzleHint, frozen_mass_flux
+            self._frozen_flux = frozen_mass_flux
+            self._hints = (FrozenNozzleHint(), FrozenNozzleHint())
         #: earliest time [s] a throat was held at the triple point (solid in the jet)
         self.solid_from = None
 
@@ -66,6 +75,10 @@ class OrificeDevice(Device):
         return Flow(-self.cda * g, b.h, b.h, choked)
 
     def _flux(self, up, pb, hint):
+        if self.frozen:
+            g, choked, _ = self._frozen_flux(fluid_of(up, self.fluid), up, pb, hint,
+                                             LINEAR_BELOW)
+            return g, choked
         if self.real:
             g, choked, p_throat = real_gas_mass_flux(self.fluid, up, pb, hint)
             if choked and at_triple_point(self.fluid, p_throat) and (

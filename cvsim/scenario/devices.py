@@ -36,9 +36,20 @@ def _build_orifice(values, ctx) -> Orifice:
     else:
         area = values["area"]
     closes = values["closes_at"]
+    expansion = values["expansion"]
+    if expansion == "frozen":
+        at = values.where["expansion"]
+        if ctx.fluid is None or ctx.fluid.model != "mixture":
+            ctx.problem(at, "expansion: frozen is offered for mixtures only (a fluid given as "
+                            "components); a pure fluid's nozzle is the equilibrium one: "
+                            "leave the key out")
+        elif values["flow_model"] != "real-gas":
+            ctx.problem(at, "expansion: frozen needs flow_model: real-gas (the perfect-gas "
+                            "nozzle has no phases to freeze): write flow_model: real-gas or "
+                            "leave expansion out")
     return Orifice(area=area, discharge_coefficient=values["discharge_coefficient"],
                    flow_model=values["flow_model"], open_from=values["opens_at"],
-                   open_until=math.inf if closes is None else closes)
+                   open_until=math.inf if closes is None else closes, expansion=expansion)
 
 
 ORIFICE = register_device(Variant(
@@ -60,6 +71,13 @@ ORIFICE = register_device(Variant(
                   "`ideal-gas`: perfect-gas nozzle with the real upstream density and the "
                   "ideal-gas k at the upstream temperature (docs/theory.md, section 2a).",
                   default="real-gas"),
+            Field("expansion", Choice(("equilibrium", "frozen")),
+                  "A mixture's real-gas nozzle: `equilibrium`: the phases split and "
+                  "exchange mass through the nozzle (homogeneous equilibrium); `frozen`: "
+                  "no phase change in the nozzle, each phase keeps its mass share and "
+                  "composition (a vapour stays vapour, supersaturated; liquid "
+                  "incompressible), the upper bound of a flashing flow (docs/theory.md, "
+                  "section 13).", default="equilibrium"),
             Field("opens_at", Quantity("time", at_least=0.0),
                   "Time the orifice opens (an isolation valve opening instantly).",
                   default="0 s"),

@@ -107,6 +107,9 @@ def _mixture_liquid(device, model: str) -> tuple[str, str]:
     the liquid's own composition); the liquid forms of the valve equations need a pure
     fluid's vapour pressure and are refused."""
     if isinstance(device, Orifice) and device.flow_model == "real-gas":
+        if device.expansion == "frozen":
+            return "", ("frozen-composition nozzle: the liquid incompressible, no flashing "
+                        "(homogeneous frozen model)")
         return "", ("homogeneous equilibrium nozzle on the mixture's equation of state "
                     "(the liquid phase's own composition)")
     return ("the liquid of a mixture passes only an orifice with flow_model: real-gas in "
