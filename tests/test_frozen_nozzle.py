@@ -94,7 +94,7 @@ def test_frozen_throat_against_a_brute_force_nozzle(rich, p0, T0):
 
 def test_frozen_vapour_stays_vapour_inside_the_envelope(rich):
     up = rich.state_pt(100e5, 288.15)
-    G, _, p_t = frozen_mass_flux(rich, up, 1.01325e5)
+    _, _, p_t = frozen_mass_flux(rich, up, 1.01325e5)
     eq = rich.isentrope_at_p(p_t, up.s)
     met = rich.metastable_isentrope_at_p(p_t, up.s, up.T)
     # at the frozen throat the equilibrium state has condensed, the frozen one has not
