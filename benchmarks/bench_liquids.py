@@ -33,8 +33,8 @@ import dataclasses  # noqa: E402
 
 from cvsim.model import Model  # noqa: E402
 from cvsim.result import build_result  # noqa: E402
-from cvsim.solve import integrate  # noqa: E402
 from cvsim.scenario import load_scenario  # noqa: E402
+from cvsim.solve import integrate  # noqa: E402
 
 CASES = [
     ("LPG bullet, pool fire, 30 min", "lpg-bullet-pool-fire.yaml", 1800.0),

@@ -532,8 +532,9 @@ def test_convergence_plot_draws_the_running_percentiles(two_input_study, monkeyp
 
 def test_sensitivity_plot_draws_the_rank_correlations_largest_on_top(two_input_study,
                                                                      monkeypatch, tmp_path):
-    from cvsim.study.uncertainty_plot import plot_sensitivity
     from scipy.stats import rankdata
+
+    from cvsim.study.uncertainty_plot import plot_sensitivity
     study = two_input_study
     panels = drawn_axes(monkeypatch, plot_sensitivity, study, tmp_path / "s.png")
     name = "tank.limit.depressure.actual"
