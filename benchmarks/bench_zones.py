@@ -8,7 +8,7 @@ Run by hand:  python benchmarks/bench_zones.py [--repeat N]
 Prints per case and model the solver wall time (best of N; imports and self-checks
 excluded), steps, right-hand sides, Jacobians and property evaluations, and the ratio of
 the separated model's time to the equilibrium model's; and what the two models give for
-the coldest and hottest metal.
+the coldest and hottest metal, and the load average before and after.
 """
 from __future__ import annotations
 
@@ -48,6 +48,9 @@ def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--repeat", type=int, default=3)
     args = ap.parse_args()
+    import os
+    print(f"load average before: {os.getloadavg()[0]:.2f} on {os.cpu_count()} CPUs "
+          "(the machine is shared: a load above the cores slows every time, both models alike)")
     print(f"{'case':38s} {'model':12s} {'solver [s]':>10s} {'steps':>6s} {'rhs':>6s} "
           f"{'jac':>4s} {'props':>8s}  coldest / hottest metal [degC]")
     for label, name in CASES:
@@ -63,6 +66,7 @@ def main() -> None:
                   f"{v['min_wall_temperature_K'] - 273.15:7.1f} / "
                   f"{v['max_wall_temperature_K'] - 273.15:6.1f}")
         print(f"{'':38s} {'ratio':12s} {times['separated'] / times['equilibrium']:10.2f}")
+    print(f"load average after: {os.getloadavg()[0]:.2f}")
 
 
 if __name__ == "__main__":

@@ -170,6 +170,12 @@ class RealFluid:
         except ValueError:
             self.p_triple = None
         self.evaluations = 0  # count of equation-of-state evaluations (for benchmarks)
+        #: (rho, u) and (rho, s) solves and their iterations, by kind "u" / "s", and
+        #: the two-phase isentrope points by the lever rule at T ("s@T", one
+        #: saturation evaluation each, no iteration). Read by
+        #: benchmarks/bench_liquids.py; nothing in a run depends on them.
+        self.solves = {"u": 0, "s": 0, "s@T": 0}
+        self.solve_iterations = {"u": 0, "s": 0}
         R = R_UNIVERSAL / self.molar_mass
         #: residual tolerances of the state solves (see :meth:`_solve_T`): an
         #: energy [J/kg] and an entropy [J/(kg K)] scale of this fluid
@@ -321,7 +327,9 @@ class RealFluid:
         err_prev = math.inf
         best_T, best_err = NAN, math.inf
         T = T_guess if (T_guess is not None and lo < T_guess < hi) else min(300.0, 0.5 * (lo + hi))
+        self.solves[kind] += 1
         for _ in range(MAX_STATE_ITERATIONS):
+            self.solve_iterations[kind] += 1
             self._update_dt(rho, T)
             err = read() - target
             if abs(err) <= tol:
@@ -528,6 +536,7 @@ class RealFluid:
             return None
         b = self._sat
         self.evaluations += 1
+        self.solves["s@T"] += 1
         try:
             b.update(self._QT, 0.0, T)
         except ValueError:

@@ -247,6 +247,12 @@ def check_vessel(name: str, limits, atmosphere: float, t, pressure, gas_temperat
             mins = [(_extreme(t, v, "min"), k) for k, v in walls.items()]
             (T_min, t_min), col = min(mins, key=lambda m: m[0][0])
             note = f"checked on the wall temperature ({col})"
+            # a wall split at the liquid level: one check over both parts, at the
+            # coldest column of either, and the part it is in named
+            label, _, rest = col.removeprefix(name + ".").partition(".")
+            if rest.split(".")[0] in ("wetted", "unwetted"):
+                note = (f"checked on the wall temperature ({col}: {_where(rest)}, the colder "
+                        f"of the {label}'s wetted and unwetted parts)")
         else:
             T_min, t_min = _extreme(t, gas_temperature, "min")
             note = MDMT_GAS_STAND_IN

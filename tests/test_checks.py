@@ -115,3 +115,39 @@ def test_the_rerun_check_passes_on_a_sound_run_and_fails_on_a_step_dependent_mod
     monkeypatch.setattr(OrificeDevice, "flow", lagging)
     bad = cvsim.run(DEMO, overrides={"run.end": "20 s"}, verify_tolerance=True)
     assert not bad.checks[-1].passed
+
+
+def test_the_verify_flag_of_the_command_line_adds_the_rerun_check(monkeypatch, tmp_path):
+    import json
+
+    from cvsim.cli import main
+
+    def checks(out):
+        return {c["name"]: c for c in json.loads((out / "summary.json").read_text())
+                ["self_checks"]}
+    plain, good = tmp_path / "plain", tmp_path / "good"
+    for out, flags in ((plain, []), (good, ["--verify"])):
+        assert main(["run", DEMO, "--no-plots", "--quiet", "--set", "run.end=60 s",
+                     "--out", str(out), *flags]) == 0
+    assert "rerun at tight tolerance" not in checks(plain)
+    rerun = checks(good)["rerun at tight tolerance"]
+    assert rerun["passed"] and rerun["value"] < VERIFY_TOLERANCE / 10
+    assert "rerun at tight tolerance: passed" in (good / "summary.txt").read_text()
+
+    original = OrificeDevice.flow
+
+    def lagging(self, t, a, b, segment):   # the step-dependent defect of the test above
+        f = original(self, t, a, b, segment)
+        last = getattr(self, "_last_p", a.p)
+        self._last_p = a.p
+        return Flow(f.mdot * last / a.p, f.h_from, f.h_to, f.choked)
+
+    monkeypatch.setattr(OrificeDevice, "flow", lagging)
+    bad = tmp_path / "bad"
+    main(["run", DEMO, "--no-plots", "--quiet", "--set", "run.end=20 s", "--verify",
+          "--out", str(bad)])
+    rerun = checks(bad)["rerun at tight tolerance"]
+    assert not rerun["passed"] and rerun["value"] > rerun["tolerance"]
+    summary = json.loads((bad / "summary.json").read_text())
+    assert summary["self_checks_failed"] >= 1
+    assert any("SELF-CHECK FAILED" in w and "rerun" in w for w in summary["warnings"])

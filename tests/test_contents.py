@@ -130,6 +130,31 @@ def test_a_heated_drum_that_fills_with_liquid_is_reported_liquid_full():
     assert f"{rise / 1e5:.2g}" in warning or f"{rise / 1e5:.3g}" in warning
 
 
+def test_summary_states_the_initial_density_and_mass_of_a_two_phase_vessel(tmp_path):
+    import json
+
+    import CoolProp.CoolProp as CP
+
+    path = tmp_path / "bullet.yaml"
+    path.write_text(BULLET)
+    out = tmp_path / "out"
+    assert main(["run", str(path), "--no-plots", "--quiet", "--out", str(out)]) == 0
+    # source: CoolProp saturation states of propane at 20 degC: 60 % of the volume
+    # saturated liquid, 40 % saturated vapour; the volume from the fluids library's TANK
+    rho_l = CP.PropsSI("D", "T", 293.15, "Q", 0, "Propane")
+    rho_v = CP.PropsSI("D", "T", 293.15, "Q", 1, "Propane")
+    rho = 0.6 * rho_l + 0.4 * rho_v
+    V = _fluids_tank(1.6, 4.0).V_total
+    d = json.loads((out / "summary.json").read_text())["vessels"]["bullet"]
+    assert d["initial_phase"] == "two-phase"
+    assert d["initial_density_kg_m3"] == pytest.approx(rho, rel=1e-9)
+    assert d["initial_mass_kg"] == pytest.approx(rho * V, rel=1e-8)
+    text = (out / "summary.txt").read_text()
+    line = next(ln for ln in text.splitlines() if ln.strip().startswith("initially"))
+    assert f"{rho:.4g} kg/m3" in line and f"{rho * V:.1f} kg" in line
+    assert "liquid 60 % of the volume" in line
+
+
 def test_level_plot_only_when_a_vessel_holds_liquid(tmp_path):
     from cvsim.plot import plot_run
 

@@ -3,6 +3,7 @@ intervals, probabilities, rank correlations and Sobol' indices against outside
 references, and whole studies on the sweep machinery (closed-form blowdown time,
 reproducibility, failed cases kept, the command line)."""
 import math
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -391,3 +392,204 @@ def test_a_study_whose_every_case_fails_still_writes_its_tables(blowdown, tmp_pa
     assert "4 failed" in text and "0 of 0 cases" in text and "100 % if they all crossed" in text
     assert (out / "cases.csv").read_text().count("failed") >= 4
     assert not (out / "convergence.png").exists()
+
+
+# ------------------------------------------------- correlated inputs in whole studies
+
+T0 = "vessels.tank.initial.temperature"
+T_OUT = "reservoirs.outside.temperature"
+TWO_TEMPERATURES = {T0: "{distribution: triangular, lowest: 280 K, most_likely: 300 K, "
+                        "highest: 320 K}",
+                    T_OUT: "{distribution: uniform, lowest: 250 K, highest: 350 K}"}
+
+
+def spearman_bound(rho: float, n: int) -> tuple[float, float]:
+    """Where a sample rank correlation of n pairs falls (3 standard errors) when the
+    population's is rho: Fisher's z = atanh(r) with variance 1.06 / (n - 3)."""
+    # source: Fieller, Hartley & Pearson, "Tests for rank correlation coefficients. I",
+    # Biometrika 44 (1957), the variance 1.06/(n-3) of z for Spearman's r (from memory).
+    # Random sampling; a Latin hypercube spreads less, so the bound is generous.
+    half = 3.0 * math.sqrt(1.06 / (n - 3))
+    return math.tanh(math.atanh(rho) - half), math.tanh(math.atanh(rho) + half)
+
+
+def rank_correlation_of(x, y) -> float:
+    from scipy.stats import spearmanr  # independent of cvsim.study.sensitivity
+    return float(spearmanr(x, y).statistic)
+
+
+def test_rank_correlations_of_the_scenario_reach_the_cases(tmp_path):
+    # the pair correlated in the file's uncertainty section: the values each case ran
+    # with keep the rank correlation asked, and each case really ran with its value
+    text = BLOWDOWN.replace(
+        "    links.vent.discharge_coefficient: {distribution: normal, standard_deviation: 0.04}",
+        f"    {T0}: {TWO_TEMPERATURES[T0]}\n    {T_OUT}: {TWO_TEMPERATURES[T_OUT]}\n"
+        f"  rank_correlations:\n    - {{inputs: [{T0}, {T_OUT}], value: 0.8}}"
+    ).replace("cases: 20", "cases: 40")
+    path = tmp_path / "correlated.yaml"
+    path.write_text(text)
+    study = cvsim.uncertainty(path, workers=1, progress=False)
+    rows = [r for r in study.table.rows if r["status"] != "failed"]
+    assert len(rows) == 40
+    t0 = np.array([r[f"{T0}.si"] for r in rows])
+    t_out = np.array([r[f"{T_OUT}.si"] for r in rows])
+    low, high = spearman_bound(0.8, 40)
+    assert low < rank_correlation_of(t0, t_out) < high
+    assert low > 0.45   # an uncorrelated pair (about 0) could not pass
+    # each case ran from its own initial temperature: the adiabatic perfect-gas vessel
+    # expands isentropically, T = T0 (p/p0)^((k-1)/k), to the stop at 5 bar a
+    # source: isentropic relation of a perfect gas (e.g. Anderson, Modern Compressible
+    # Flow, 3rd ed., eq. 3.28)
+    for r, start in zip(rows, t0):
+        assert r["tank.min_temperature"] == pytest.approx(
+            start * (5.0 / 50.0) ** ((K - 1.0) / K), rel=1e-4)
+    assert study.spec.correlations and study.as_dict()["rank_correlations"]
+
+
+def test_correlate_on_the_command_line_reaches_the_cases(blowdown, tmp_path):
+    import csv
+    out = tmp_path / "correlated"
+    code = main(["uncertainty", str(blowdown), "--cases", "40", "--seed", "5", "--workers", "1",
+                 "--quiet", "--out", str(out),
+                 "--uncertain", f"{T0}={TWO_TEMPERATURES[T0]}",
+                 "--uncertain", f"{T_OUT}={TWO_TEMPERATURES[T_OUT]}",
+                 "--correlate", f"{T0},{T_OUT}=-0.7"])
+    assert code == 0
+    lines = [ln for ln in (out / "cases.csv").read_text().splitlines()
+             if not ln.startswith("#")]
+    rows = list(csv.DictReader(lines))
+    assert len(rows) == 40
+    t0 = [float(r[f"{T0}.si [K]"]) for r in rows]
+    t_out = [float(r[f"{T_OUT}.si [K]"]) for r in rows]
+    low, high = spearman_bound(-0.7, 40)
+    assert low < rank_correlation_of(t0, t_out) < high < -0.3
+    assert "rank correlation -0.7" in (out / "uncertainty.txt").read_text()
+
+
+# ------------------------------------------------------ what the plots draw
+
+def drawn_axes(monkeypatch, draw, *args):
+    """Run a plot function of cvsim.study.uncertainty_plot and return, per visible
+    panel, what it drew (read from the matplotlib Axes before the figure is cleared)."""
+    from contextlib import contextmanager
+
+    import cvsim.study.uncertainty_plot as up
+    real, panels = up.figure, []
+
+    @contextmanager
+    def keep(*a, **k):
+        with real(*a, **k) as fig:
+            yield fig
+            for ax in fig.axes:
+                if not ax.get_visible():
+                    continue
+                panels.append({
+                    "title": ax.get_title(loc="left"), "xlabel": ax.get_xlabel(),
+                    "ylabel": ax.get_ylabel(), "xscale": ax.get_xscale(),
+                    "xlim": ax.get_xlim(),
+                    "lines": {ln.get_label(): (np.asarray(ln.get_xdata(), float),
+                                               np.asarray(ln.get_ydata(), float))
+                              for ln in ax.get_lines()},
+                    "bands": len(ax.collections),
+                    "bars": [(p.get_y() + p.get_height() / 2, p.get_width(),
+                              p.get_facecolor()[3]) for p in ax.patches],
+                    "yticks": [(t, lab.get_text()) for t, lab in
+                               zip(ax.get_yticks(), ax.get_yticklabels())]})
+    monkeypatch.setattr(up, "figure", keep)
+    draw(*args)
+    return panels
+
+
+@pytest.fixture(scope="module")
+def two_input_study(tmp_path_factory):
+    # t = c / (Cd sqrt(T0)) for the choked perfect-gas vessel: both inputs drive the time
+    path = tmp_path_factory.mktemp("plots") / "blowdown.yaml"
+    path.write_text(BLOWDOWN)
+    return cvsim.uncertainty(path, inputs={T0: TWO_TEMPERATURES[T0]}, cases=24, seed=8,
+                             workers=1, progress=False)
+
+
+def test_convergence_plot_draws_the_running_percentiles(two_input_study, monkeypatch,
+                                                        tmp_path):
+    from cvsim.study.uncertainty_plot import plot_convergence
+    study = two_input_study
+    panels = drawn_axes(monkeypatch, plot_convergence, study, tmp_path / "c.png")
+    assert len(panels) == len(study.main) >= 1
+    name = "tank.limit.depressure.actual"
+    panel = panels[study.main.index(name)]
+    assert panel["xlabel"] == "cases" and panel["xscale"] == "log" and panel["ylabel"] == "s"
+    assert set(panel["lines"]) == {"P5", "P50", "P95"} and panel["bands"] == 3
+    times = [study.table.rows[i][name] for i in study.used]
+    for p in (5, 50, 95):
+        xs, ys = panel["lines"][f"P{p:g}"]
+        assert xs[-1] == 24 and ys[-1] == pytest.approx(study.percentile(name, p), rel=1e-12)
+        # each point: the percentile of the first n cases (linear definition)
+        # source: Hyndman & Fan (1996) definition 7, numpy's default
+        for n, y in zip(xs, ys):
+            assert y == pytest.approx(np.percentile(times[:int(n)], p), rel=1e-12)
+        assert np.all(np.diff(xs) > 0)
+
+
+def test_sensitivity_plot_draws_the_rank_correlations_largest_on_top(two_input_study,
+                                                                     monkeypatch, tmp_path):
+    from scipy.stats import rankdata
+
+    from cvsim.study.uncertainty_plot import plot_sensitivity
+    study = two_input_study
+    panels = drawn_axes(monkeypatch, plot_sensitivity, study, tmp_path / "s.png")
+    name = "tank.limit.depressure.actual"
+    panel = next(p for p in panels if p["title"] == panels[study.main.index(name)]["title"])
+    assert panel["xlabel"] == "correlation" and panel["xlim"] == (-1.05, 1.05)
+    rows = [study.table.rows[i] for i in study.used]
+    y = np.array([r[name] for r in rows])
+    keys = study.design.keys
+    x = np.array([[r[f"{k}.si"] for k in keys] for r in rows])
+    rank = [rank_correlation_of(x[:, j], y) for j in range(2)]
+    # partial rank correlation of two inputs from the three rank correlations
+    # source: Kendall & Stuart, The Advanced Theory of Statistics, vol. 2, partial
+    # correlation r_y1.2 = (r_y1 - r_y2 r_12) / sqrt((1 - r_y2^2)(1 - r_12^2)), on ranks
+    # (PRCC: Saltelli et al., Sensitivity Analysis in Practice, 2004, sec. 1.2.4)
+    r12 = float(np.corrcoef(rankdata(x[:, 0]), rankdata(x[:, 1]))[0, 1])
+    partial = [(rank[j] - rank[1 - j] * r12) / math.sqrt((1 - rank[1 - j] ** 2) * (1 - r12 ** 2))
+               for j in range(2)]
+    filled = sorted((b for b in panel["bars"] if b[2] > 0), key=lambda b: b[0])
+    outlined = sorted((b for b in panel["bars"] if b[2] == 0), key=lambda b: b[0])
+    assert len(filled) == len(outlined) == 2
+    labels = [lab for _, lab in sorted(panel["yticks"])]
+    # bottom to top; a long key is shown by its last three parts
+    order = [next(i for i, k in enumerate(keys) if k.endswith(lab)) for lab in labels]
+    assert sorted(order) == [0, 1]
+    assert abs(partial[order[-1]]) >= abs(partial[order[0]])   # largest on top
+    for k, j in enumerate(order):
+        assert filled[k][1] == pytest.approx(rank[j], abs=1e-12)
+        assert outlined[k][1] == pytest.approx(partial[j], abs=1e-9)
+    # both faster flow (Cd up) and a warmer gas (T0 up) shorten the time
+    assert all(r < 0 for r in rank)
+
+
+# --------------------------------------------------------- the demo study
+
+DEMO = Path(__file__).resolve().parents[1] / "scenarios" / "nitrogen-receiver-uncertain.yaml"
+DOCS = Path(__file__).resolve().parents[1] / "docs" / "studies.md"
+
+
+def test_the_demo_study_runs_end_to_end_and_its_nominal_figure_is_the_documented_one(tmp_path):
+    # the docs quote the nominal run's lowest metal temperature: it must be today's
+    import re
+    nominal = cvsim.run(DEMO)
+    check = next(c for c in nominal.limits if c.key == "min_metal_temperature")
+    metal = check.actual - 273.15
+    quoted = re.search(r"the metal\s+reaches (−?[\d.]+) °C against", DOCS.read_text())
+    assert quoted, "docs/studies.md no longer quotes the nominal metal temperature"
+    assert metal == pytest.approx(float(quoted.group(1).replace("−", "-")), abs=0.05)
+    # a few cases of the file as it stands, every output written
+    out = tmp_path / "demo"
+    code = main(["uncertainty", str(DEMO), "--cases", "12", "--workers", "2", "--quiet",
+                 "--report", "--out", str(out)])
+    assert code == 0
+    for name in ("cases.csv", "percentiles.csv", "limits.csv", "sensitivity.csv",
+                 "convergence.png", "sensitivity.png", "spread.png", "report.html"):
+        assert (out / name).is_file(), name
+    text = (out / "uncertainty.txt").read_text()
+    assert "seed 20240611" in text and "0 failed" in text and "12 stopped" in text
+    assert "rank correlation +0.9 between vessels.receiver.initial.temperature" in text

@@ -313,6 +313,165 @@ def test_fire_demo_heats_the_unwetted_wall_above_the_wetted_one():
     assert wall.actual == pytest.approx(s["max_unwetted_wall_temperature_K"])
 
 
+def test_mdmt_of_a_split_wall_is_checked_on_the_coldest_part_and_names_it(blowdown_demo):
+    """One minimum-design-metal-temperature check per wall, at the coldest column of
+    either part (every surface and node, wetted or unwetted), naming the part."""
+    r = blowdown_demo
+    rows = np.vstack([r.data, r.fine_data])
+    lowest = {}
+    for part in ("wetted", "unwetted"):
+        cols = [i for i, (n, unit, _) in enumerate(r.columns)
+                if n.startswith(f"drum.wall.{part}.") and unit == "K"]
+        assert len(cols) == 2 + 4  # inside, outside and the 3 x 1 + 1 nodes of the layers
+        lowest[part] = rows[:, cols].min()
+    (check,) = [c for c in r.limits if c.key == "min_metal_temperature"]
+    # source: the minimum of the recorded histories, taken here column by column
+    assert check.actual == pytest.approx(min(lowest.values()), abs=1e-12)
+    assert lowest["wetted"] < lowest["unwetted"] - 10.0   # boiling cools the wetted metal
+    assert "drum.wall.wetted." in check.note and "of the wetted part" in check.note
+    assert "the colder of the wall's wetted and unwetted parts" in check.note
+    # ASME VIII-1 UCS-66: the metal must stay at or above the MDMT (-29 degC here)
+    assert check.limit == pytest.approx(273.15 - 29.0)
+    assert check.met == (check.actual >= check.limit)
+    assert check.margin == pytest.approx(check.actual - check.limit)
+
+
+def test_mdmt_names_the_unwetted_part_when_it_is_the_colder():
+    from types import SimpleNamespace
+
+    from cvsim.limits import check_vessel
+    limits = SimpleNamespace(design_pressure=None, min_metal_temperature=244.15,
+                             max_temperature=None, depressure_to=None, depressure_within=None)
+    t = np.array([0.0, 10.0, 20.0])
+    walls = {"v.wall.wetted.inner_temperature": np.array([290.0, 260.0, 250.0]),
+             "v.wall.unwetted.node2_temperature": np.array([290.0, 240.0, 245.0])}
+    checks = check_vessel("v", limits, 101325.0, t, np.full(3, 5e5), np.full(3, 230.0), walls)
+    (mdmt,) = [c for c in checks if c.key == "min_metal_temperature"]
+    assert (mdmt.actual, mdmt.time, mdmt.met) == (240.0, 10.0, False)
+    assert "node 2 of the unwetted part" in mdmt.note
+
+
+def test_bottom_outlet_of_separated_zones_draws_the_liquid_zone():
+    """A drum held as separated zones drained through a bottom outlet (draws: liquid):
+    the liquid zone's own flashing flow leaves, the vapour zone's mass changes only by
+    what moves between the zones, and the level falls."""
+    import CoolProp.CoolProp as CP
+    from scipy.optimize import minimize_scalar
+    text = DRUM.format(phases="{model: separated}", heat="", end="2 min").replace(
+        "diameter: 15 mm, discharge_coefficient: 0.84}",
+        "diameter: 5 mm, discharge_coefficient: 0.84, draws: liquid}").replace(
+        "record_every: 5 s", "record_every: 1 s")
+    r = run_network(load_scenario_text(text).network)
+    assert r.ok and not r.checks_failed, [c.text() for c in r.checks_failed]
+    # the flow at the start: saturated liquid at 20 degC through the homogeneous-
+    # equilibrium nozzle, the throat at the largest isentropic mass flux
+    # source: brute-force maximum of rho sqrt(2 (h0 - h)) over CoolProp (p, s) flashes
+    a = CP.AbstractState("HEOS", "Propane")
+    a.update(CP.QT_INPUTS, 0.0, 293.15)
+    p0, h0, s0 = a.p(), a.hmass(), a.smass()
+    assert r["drum.pressure"][0] == pytest.approx(p0, rel=1e-6)
+
+    def flux(p):
+        a.update(CP.PSmass_INPUTS, p, s0)
+        return a.rhomass() * math.sqrt(max(2.0 * (h0 - a.hmass()), 0.0))
+    grid = np.linspace(0.3 * p0, 0.9999 * p0, 400)
+    k = int(np.argmax([flux(p) for p in grid]))
+    best = minimize_scalar(lambda p: -flux(p), bounds=(grid[k - 1], grid[k + 1]),
+                           method="bounded", options={"xatol": 1e-3})
+    area = math.pi / 4.0 * 0.005 ** 2
+    assert r["vent.mass_flow"][0] == pytest.approx(0.84 * area * -best.fun, rel=1e-4)
+    assert best.x > 1.2e5 and r["vent.choked"][0] == 1.0   # choked: back pressure below
+    # mass: the vapour zone changes only by rain-out, boil-off and evaporation at the
+    # interface; the liquid zone loses the outflow besides
+    t = r.time
+    m, m_l = r["drum.mass"], r["drum.liquid_mass"]
+    m_v = m - m_l
+    moved = np.trapezoid(r["drum.boil_off"] + r["drum.interface_evaporation"]
+                         - r["drum.rain_out"], t)   # liquid to vapour [kg]
+    passed = r.totals["links"]["vent"]["mass_kg"]
+    assert passed > 10.0 and m[0] - m[-1] == pytest.approx(passed, rel=1e-9)
+    assert m_v[-1] - m_v[0] == pytest.approx(moved, abs=1e-3 * passed)
+    assert m_l[0] - m_l[-1] == pytest.approx(passed + moved, abs=1e-3 * passed)
+    # the level falls all along
+    assert np.all(np.diff(r["drum.liquid_level"]) < 0.0)
+    assert r["drum.liquid_level"][0] - r["drum.liquid_level"][-1] > 0.02
+
+
+def test_lumped_wall_split_at_the_level():
+    """A closed sphere of propane held as separated zones, heated in its liquid and from
+    hot surroundings through a lumped wall of constant heat capacity: each part is the
+    lumped wall over its share of the area, the wetted share follows the level, and the
+    whole (fluid + both parts) keeps the first law."""
+    D, th, h_out, T_amb, load = 1.5, 0.004, 150.0, 363.15, 30e3
+    rho_s, c_s = 7850.0, 470.0
+    text = f"""
+title: lumped split wall
+fluid: Propane
+properties: real
+vessels:
+  sphere:
+    shape: {{kind: sphere, inner_diameter: {D} m}}
+    initial: {{temperature: 20 degC, liquid_fraction: 40 %}}
+    phases: {{model: separated}}
+    heat:
+      load: {load} W
+      wall:
+        model: lumped
+        layers: {{material: {{density: {rho_s} kg/m3, heat_capacity: {c_s} J/kg/K,
+                  conductivity: 45 W/m/K}}, thickness: {th * 1e3} mm}}
+        outside: {{model: fixed, coefficient: {h_out} W/m2/K, ambient: {T_amb} K}}
+run: {{end: 5 min, record_every: 1 s}}
+"""
+    r = run_network(load_scenario_text(text).network)
+    assert r.ok and not r.checks_failed, [c.text() for c in r.checks_failed]
+    assert not any("node" in c[0] for c in r.columns)   # lumped: one temperature a part
+    T_w, T_u = r["sphere.wall.wetted.inner_temperature"], r["sphere.wall.unwetted.inner_temperature"]
+    assert np.array_equal(T_w, r["sphere.wall.wetted.outer_temperature"])
+    phi = r["sphere.wall.wetted_share"]
+    # source: Archimedes' hat-box theorem: a spherical cap of height h has the area
+    # pi D h, so the wetted share of a sphere's inside is h / D
+    assert np.allclose(phi, r["sphere.liquid_level"] / D, rtol=1e-9)
+    assert phi[-1] - phi[0] > 0.003                       # the heated liquid swells
+    assert T_u[-1] - T_w[-1] > 1.0                        # the parts go their own ways
+    # each part gives its zone h A_in share (T_part - T_zone)
+    A_in, A_out = math.pi * D ** 2, math.pi * (D + 2 * th) ** 2
+    for part, share, zone in (("wetted", phi, "liquid"), ("unwetted", 1 - phi, "vapour")):
+        h = r[f"sphere.wall.{part}.inside_coefficient"]
+        q = h * A_in * share * (r[f"sphere.wall.{part}.inner_temperature"]
+                                - r[f"sphere.{zone}_temperature"])
+        assert np.allclose(r[f"sphere.heat.wall.{part}"], q, rtol=1e-9, atol=1e-6), part
+    # outside: the stated coefficient over each part's share of the outside area
+    q_out = h_out * A_out * (phi * (T_amb - T_w) + (1 - phi) * (T_amb - T_u))
+    assert np.allclose(r["sphere.wall.heat_from_outside"], q_out, rtol=1e-9)
+    # first law of the whole, the wall's energy from its parts' temperatures:
+    # M c [phi T_w + (1 - phi) T_u], M from the spherical shell's volume
+    M = rho_s * math.pi / 6.0 * ((D + 2 * th) ** 3 - D ** 3)
+    E = r["sphere.mass"] * r["sphere.specific_internal_energy"] + M * c_s * (
+        phi * T_w + (1 - phi) * T_u)
+    heat_in = load * r.time + np.concatenate(
+        [[0.0], np.cumsum(0.5 * (q_out[1:] + q_out[:-1]) * np.diff(r.time))])
+    # trapezoid of a smooth heat flow on 1 s records: well inside 1e-4 of the heat
+    assert np.allclose(E - E[0], heat_in, rtol=0, atol=1e-4 * heat_in[-1])
+    # metal changes side with the energy per unit share of the part it leaves (the
+    # level rises: unwetted -> wetted). The part giving metal keeps its temperature
+    # but for heat; the part taking it is mixed towards the other's temperature:
+    #   M c (1 - phi) dT_u/dt = Q_out,u - q_u
+    #   M c phi dT_w/dt = Q_out,w - q_w + M c phi' (T_u - T_w)
+    # source: energy balance of each part written here (cvsim.heat.zoned_wall's rule
+    # restated), rates by central differences of the records
+    t = r.time
+    dphi = np.gradient(phi, t)
+    q_w, q_u = r["sphere.heat.wall.wetted"], r["sphere.heat.wall.unwetted"]
+    rate_u = (h_out * A_out * (1 - phi) * (T_amb - T_u) - q_u) / (M * c_s * (1 - phi))
+    mixing = dphi * (T_u - T_w) / phi
+    rate_w = (h_out * A_out * phi * (T_amb - T_w) - q_w) / (M * c_s * phi) + mixing
+    inner = slice(2, -2)
+    assert np.max(np.abs(np.gradient(T_u, t) - rate_u)[inner]) < 1e-4   # of 0.7 K/s
+    settled = t >= 30.0   # after the first 30 s, once boiling has set the wetted part's pace
+    assert np.min(mixing[settled]) > 5e-4                        # the mixing matters ...
+    assert np.max(np.abs(np.gradient(T_w, t) - rate_w)[settled][:-2]) < 1e-4   # ... and fits
+
+
 # ------------------------------------------------------------------ scenario errors
 
 def test_separated_needs_a_shape_and_a_real_fluid():
