@@ -27,16 +27,22 @@ COST = {"overview": 2.5}
 
 
 def _warm_up() -> None:
-    """Import matplotlib and the plotting module and draw a little text once (fonts and
-    the text layout caches load here)."""
-    from matplotlib.backends.backend_agg import FigureCanvasAgg
-    from matplotlib.figure import Figure
+    """Import matplotlib, the plotting module and the PNG writer, and draw and write a
+    small figure the way the plots are drawn (fonts, text layout caches and the layout
+    engine load here), so that the first real figure costs no more than the next."""
+    import io
 
-    from . import plot  # noqa: F401  (imported here, before the work arrives)
-    fig = Figure(figsize=(2, 1), dpi=50)
-    FigureCanvasAgg(fig)
-    fig.text(0.5, 0.5, "warm-up °C →", fontsize=9)
-    fig.canvas.draw()
+    # imported here, before the work arrives: the plots, and what unpickling a result
+    # needs (about 25 ms otherwise, on the critical path)
+    from . import histories, network, plot  # noqa: F401
+    with plot.figure((3.0, 2.0), "warm-up", "warm-up °C →") as fig:
+        ax = fig.subplots()
+        ax.plot([0.0, 1.0], [0.0, 1.0], label="a")
+        ax.set_title("warm-up", fontsize=10, loc="left")
+        ax.set_ylabel("Pressure [bar a]")
+        ax.secondary_yaxis("right").set_ylabel("bar g", fontsize=8)
+        ax.legend(fontsize=plot.LEGEND_PT)
+        plot.save(fig, io.BytesIO())
 
 
 def _serve(conn) -> None:
@@ -110,6 +116,15 @@ def _light(result):
     return light
 
 
+class _Pending:
+    """Figures sent to the helpers and not collected yet."""
+
+    def __init__(self, names: list[str]):
+        self.names = names
+        self.busy: list = []     # connections that owe an answer
+        self.errors: list[str] = []
+
+
 class Painters:
     """Helper processes that draw a run's plots (see the module notes)."""
 
@@ -147,6 +162,11 @@ class Painters:
         """Draw the figures ``names`` of ``result`` into ``folder``, shared among the
         helpers; returns the paths in the order of ``names``. Raises RuntimeError
         naming what failed (the caller draws the rest itself)."""
+        return self.collect(self.submit(result, folder, names))
+
+    def submit(self, result, folder: Path, names: list[str]) -> "_Pending":
+        """Send the figures ``names`` of ``result`` to the helpers and return at once
+        (the caller writes its other files meanwhile); :meth:`collect` waits for them."""
         data = pickle.dumps(_light(result), protocol=pickle.HIGHEST_PROTOCOL)
         shares = [[] for _ in self.connections]
         load = [0.0] * len(self.connections)
@@ -154,29 +174,36 @@ class Painters:
             i = load.index(min(load))
             shares[i].append(name)
             load[i] += COST.get(name, 1.0)
-        busy, errors = [], []
+        pending = _Pending(list(names))
         for conn, share in zip(self.connections, shares):
             if share:
                 try:
                     conn.send((data, str(folder), share))
                 except OSError as exc:  # the helper has gone
-                    errors.append(f"a plotting process ended ({type(exc).__name__})")
+                    pending.errors.append(f"a plotting process ended ({type(exc).__name__})")
                     continue
-                busy.append(conn)
+                pending.busy.append(conn)
+        return pending
+
+    @staticmethod
+    def collect(pending: "_Pending") -> list[Path]:
+        """The paths :meth:`submit` asked for, once drawn, in the order asked; raises
+        RuntimeError naming what failed."""
         drawn = {}
-        for conn in busy:
+        for conn in pending.busy:
             try:
                 status, payload = conn.recv()
             except (EOFError, OSError) as exc:
-                errors.append(f"a plotting process ended ({type(exc).__name__})")
+                pending.errors.append(f"a plotting process ended ({type(exc).__name__})")
                 continue
             if status == "ok":
                 drawn.update({Path(p).stem: Path(p) for p in payload})
             else:
-                errors.append(payload)
-        if errors:
-            raise RuntimeError("; ".join(errors))
-        return [drawn[n] for n in names if n in drawn]
+                pending.errors.append(payload)
+        pending.busy = []
+        if pending.errors:
+            raise RuntimeError("; ".join(pending.errors))
+        return [drawn[n] for n in pending.names if n in drawn]
 
     def close(self) -> None:
         """Tell the helpers to stop and wait for the first one (which waits for the

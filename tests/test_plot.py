@@ -293,7 +293,7 @@ def test_units_agree_across_plots_summary_and_csv(tmp_path):
 
 # ------------------------------------------------------------- plotting helpers
 
-def _helper_pids(painters, wait: float = 10.0) -> list[int]:
+def _helper_pids(painters, wait: float = 60.0) -> list[int]:
     """The first helper's pid and those of the helpers it forked (Linux /proc), once
     they are all there."""
     import time
@@ -367,14 +367,17 @@ def test_helpers_end_when_the_command_is_killed():
             "sys.path[:0] = [sys.argv[1]]\n"
             "from cvsim.painters import Painters\n"
             "p = Painters.start()\n"
-            "time.sleep(1.5)\n"  # warm and forked
             "print(p.process.pid, flush=True)\n"
-            "time.sleep(60)\n")
+            "time.sleep(120)\n")
     with subprocess.Popen([sys.executable, "-c", code, str(ROOT)], stdout=subprocess.PIPE,
                           text=True) as proc:
         first = int(proc.stdout.readline())
-        with open(f"/proc/{first}/task/{first}/children") as fh:
-            pids = [first] + [int(x) for x in fh.read().split()]
+        deadline = time.monotonic() + 60  # the second helper is forked once the first is warm
+        pids = [first]
+        while len(pids) < 2 and time.monotonic() < deadline:
+            time.sleep(0.05)
+            with open(f"/proc/{first}/task/{first}/children") as fh:
+                pids = [first] + [int(x) for x in fh.read().split()]
         assert len(pids) == 2
         proc.send_signal(signal.SIGKILL)
         proc.wait()
