@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import argparse
 import contextlib
+import os
 import signal
 import sys
 import threading
@@ -360,5 +361,41 @@ def main(argv: list[str] | None = None) -> int:
         return 143 if isinstance(exc, Terminated) else 130
 
 
+#: commands that start no worker pool or cluster client: after them the process may
+#: leave without the interpreter's clean-up
+QUICK_EXIT = {"run", "check", "relief", "fluids"}
+
+
+def command(argv: list[str] | None = None) -> None:
+    """The ``cvsim`` program: :func:`main`, then leave.
+
+    After the commands in :data:`QUICK_EXIT` (every file written and closed, every
+    helper process ended) the process leaves by ``os._exit`` once its output is
+    flushed: tearing down the imported libraries (the property library, SciPy,
+    matplotlib) would add about 0.1 s to every run for nothing
+    (benchmarks/bench_outputs.py). Other commands leave the usual way, so that worker
+    pools and cluster clients shut down by their own handlers."""
+    argv = sys.argv[1:] if argv is None else argv
+    try:
+        code = main(argv)
+        sys.stdout.flush()
+    except BrokenPipeError:  # `cvsim check ... | head`: the reader left; no traceback
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        os._exit(1)
+    quick = bool(argv) and argv[0] in QUICK_EXIT
+    if not quick:
+        sys.exit(code)
+    import multiprocessing
+    if multiprocessing.active_children():  # never leave a helper behind
+        sys.exit(code)
+    try:
+        sys.stdout.flush()
+        sys.stderr.flush()
+    except (OSError, ValueError):  # a closed pipe: the usual way says so
+        sys.exit(code)
+    os._exit(code)
+
+
 if __name__ == "__main__":  # pragma: no cover
-    sys.exit(main())
+    command()

@@ -12,6 +12,8 @@ from dataclasses import asdict, dataclass
 
 import numpy as np
 
+from .units import PSI
+
 #: Allowed accumulation above MAWP as a fraction of the MAWP (gauge), and the
 #: smallest allowed overpressure [Pa] for low design pressures.
 #: Source: ASME BPVC Section VIII Div. 1, UG-125(c) (10 % or 3 psi for a single device,
@@ -19,8 +21,8 @@ import numpy as np
 #: accumulation). Values from memory; the percentages are also listed in
 #: shared/references.md from a relief-valve engineering handbook citing API.
 ACCUMULATION = {
-    "single-device": (0.10, 20.684e3),     # 3 psi
-    "multiple-devices": (0.16, 27.579e3),  # 4 psi
+    "single-device": (0.10, 3.0 * PSI),
+    "multiple-devices": (0.16, 4.0 * PSI),
     "fire": (0.21, 0.0),
 }
 ACCUMULATION_SOURCE = "ASME VIII-1 UG-125(c); API 520 Part I (allowed accumulation)"

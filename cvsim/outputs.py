@@ -255,29 +255,41 @@ def write_run_files(result: Result, folder: Path, plots: bool = True,
                     changes=(), decimal_comma: bool = False, painters=None) -> None:
     """The files of :func:`write_run_outputs`, written into an existing folder.
 
-    Plots are drawn first: one that fails is left out with a warning in the
-    summary (naming it), and the histories and summary are written all the same."""
-    drawn = None  # plots for the report: None = the report draws its own
-    if report and not plots and painters is not None and len(result.data) > 1:
-        # the report's plots, drawn by the helpers into a folder of their own
+    With helper processes (``painters``) the plots are sent to them first and the
+    histories are written while they draw. A plot that fails is left out with a warning
+    in the summary (naming it), so the summary, the inputs and the report are written
+    after the plots; the histories and summary are written all the same."""
+    drawing = len(result.data) > 1 and (plots or report)
+    if report and not plots:
+        # the report's plots, drawn into a folder of their own (only the report keeps them)
         import tempfile
         with tempfile.TemporaryDirectory(prefix="cvsim-report-") as tmp:
-            write_run_files(result, folder, plots=False, echo=echo, report=False,
-                            extra_files=extra_files, changes=changes,
-                            decimal_comma=decimal_comma)
-            from .report import write_run_report
-            write_run_report(result, folder / "report.html", scenario,
-                             plots=_plots(result, Path(tmp), painters), relief=relief,
-                             changes=changes)
+            plot_folder = Path(tmp)
+            pending = _submit(result, plot_folder, painters) if drawing else None
+            _write_histories(result, folder, decimal_comma)
+            drawn = (_plots(result, plot_folder, painters, pending) if drawing else None)
+            _write_texts(result, folder, echo, extra_files, changes, report, scenario, drawn,
+                         relief)
         return
+    pending = _submit(result, folder, painters) if drawing else None
+    _write_histories(result, folder, decimal_comma)
+    drawn = None  # plots for the report: None = the report draws its own
     if plots:
-        drawn = []
-        if len(result.data) > 1:
-            drawn = _plots(result, folder, painters)
+        drawn = _plots(result, folder, painters, pending) if drawing else []
+    _write_texts(result, folder, echo, extra_files, changes, report, scenario, drawn, relief)
+
+
+def _write_histories(result: Result, folder: Path, decimal_comma: bool) -> None:
     units = run_units(result)
     write_csv(result, folder / "history.csv", decimal_comma=decimal_comma, units=units)
     write_csv(result, folder / "steps.csv", fine=True, decimal_comma=decimal_comma,
               units=units)
+
+
+def _write_texts(result: Result, folder: Path, echo, extra_files, changes, report: bool,
+                 scenario, drawn, relief) -> None:
+    """Summary, inputs, extra files and the report: after the plots, whose failure
+    would be a warning in them."""
     (folder / "summary.txt").write_text(summary_text(result), encoding="utf-8")
     write_summary_json(result, folder / "summary.json")
     if echo is not None:
@@ -291,37 +303,50 @@ def write_run_files(result: Result, folder: Path, plots: bool = True,
                          changes=changes)
 
 
-#: the plots of a run in the order :func:`cvsim.plot.plot_run` draws them
-PLOT_FILES = ("overview.png", "pressure.png", "temperature.png", "mass.png", "flow.png",
-              "opening.png", "wall.png")
+def _submit(result: Result, folder: Path, painters):
+    """Send the run's plots to the helper processes; ``None`` without helpers or when
+    they cannot take the work (then :func:`_plots` draws here)."""
+    if painters is None:
+        return None
+    try:
+        return painters.submit(result, folder, _plot_names(result))
+    except (RuntimeError, OSError):
+        return None
 
 
-def _plots(result: Result, folder: Path, painters=None) -> list[Path]:
-    """Draw the run's plots (by the helper processes ``painters`` when given); a plot
-    that fails must not cost the results: the plots drawn whole are kept, the rest
-    left out, and the result carries a warning naming the first one that could not be
-    drawn."""
-    before = set(folder.iterdir())
+def _plots(result: Result, folder: Path, painters=None, pending=None) -> list[Path]:
+    """The run's plots: collected from the helper processes when sent to them
+    (``pending``, from :func:`_submit`) or drawn by them (``painters``), else drawn here.
+    A plot that fails must not cost the results: the plots drawn whole are kept, the
+    rest left out, and the result carries a warning naming the first one that could not
+    be drawn. ``folder`` holds no other PNG files than the plots."""
     if painters is not None:
-        from .plot import plot_names
         try:
-            return painters.draw(result, folder, plot_names(result))
-        except RuntimeError:
+            if pending is None:
+                pending = painters.submit(result, folder, _plot_names(result))
+            return painters.collect(pending)
+        except (RuntimeError, OSError):
             pass  # drawn again below, in this process, where the failure shows
     try:
         from .plot import plot_run
         return plot_run(result, folder)
     except Exception as exc:  # matplotlib layout, fonts, memory: never lose the run
-        made = {p.name: p for p in folder.iterdir() if p not in before}
-        whole = [n for n in PLOT_FILES if n in made and _whole_png(made[n])]
+        made = {p.name: p for p in folder.glob("*.png")}
+        order = [f"{n}.png" for n in _plot_names(result)]
+        whole = [n for n in order if n in made and _whole_png(made[n])]
         for name, p in made.items():
             if name not in whole:
                 p.unlink()
-        first = next((n for n in PLOT_FILES if n not in whole), "a plot")
+        first = next((n for n in order if n not in whole), "a plot")
         what = " ".join(f"{type(exc).__name__}: {exc}".split())[:200]
         result.warnings.append(f"plots left out: '{first}' could not be drawn ({what}); "
                                "the histories and the summary are complete")
         return [made[n] for n in whole]
+
+
+def _plot_names(result: Result) -> list[str]:
+    from .plot import plot_names
+    return plot_names(result)
 
 
 def _whole_png(path: Path) -> bool:

@@ -1,8 +1,10 @@
 """Plots drawn by helper processes that start with the command, beside the run.
 
-A command that will draw plots starts :class:`Painters` first thing: two processes,
-forked from the command line before it loads the property library, import matplotlib
-and warm its font caches while the main process reads the scenario and solves it.
+A command that will draw plots starts :class:`Painters` first thing: one process,
+forked from the command line before it loads the property library, imports matplotlib
+and warms its font caches while the main process reads the scenario and solves it, then
+forks the second helper from itself (already warm: the two cores are not both spent on
+importing matplotlib while the main process imports the property library and SciPy).
 When the result is ready, each draws part of the figures (:func:`cvsim.plot.plot_run`
 with ``only``) into the output folder, at the same time. On the 2-core machine this
 takes importing matplotlib and most of the drawing off the command's critical path
@@ -24,18 +26,29 @@ HELPERS = 2
 COST = {"overview": 2.5}
 
 
-def _serve(conn) -> None:
-    """A helper's life: import and warm up matplotlib, then draw what it is sent
-    until its pipe closes."""
-    try:
-        from matplotlib.backends.backend_agg import FigureCanvasAgg
-        from matplotlib.figure import Figure
+def _warm_up() -> None:
+    """Import matplotlib, the plotting module and the PNG writer, and draw and write a
+    small figure the way the plots are drawn (fonts, text layout caches and the layout
+    engine load here), so that the first real figure costs no more than the next."""
+    import io
 
-        from . import plot
-        fig = Figure(figsize=(2, 1), dpi=50)  # load the fonts and the text layout caches
-        FigureCanvasAgg(fig)
-        fig.text(0.5, 0.5, "warm-up °C →", fontsize=9)
-        fig.canvas.draw()
+    # imported here, before the work arrives: the plots, and what unpickling a result
+    # needs (about 25 ms otherwise, on the critical path)
+    from . import histories, network, plot  # noqa: F401
+    with plot.figure((3.0, 2.0), "warm-up", "warm-up °C →") as fig:
+        ax = fig.subplots()
+        ax.plot([0.0, 1.0], [0.0, 1.0], label="a")
+        ax.set_title("warm-up", fontsize=10, loc="left")
+        ax.set_ylabel("Pressure [bar a]")
+        ax.secondary_yaxis("right").set_ylabel("bar g", fontsize=8)
+        ax.legend(fontsize=plot.LEGEND_PT)
+        plot.save(fig, io.BytesIO())
+
+
+def _serve(conn) -> None:
+    """Draw what is sent on ``conn`` until the pipe closes (or the command is stopped)."""
+    from . import plot
+    try:
         while True:
             message = conn.recv()
             if message is None:
@@ -54,6 +67,44 @@ def _serve(conn) -> None:
         conn.close()
 
 
+def _helpers(theirs: list, mine: list) -> None:
+    """The first helper's life: drop the main process's ends of the pipes (so that the
+    helpers see the end of their pipe when the main process ends, however it ends), warm
+    up, fork one more helper per further pipe, then serve the first pipe. Forked helpers
+    leave with ``os._exit``: they never run the main process's exit handlers."""
+    for conn in mine:
+        conn.close()
+    children = []
+    try:
+        _warm_up()
+        for i, conn in enumerate(theirs[1:], start=1):
+            pid = os.fork()
+            if pid == 0:  # the new helper: keeps its own pipe only
+                code = 0
+                try:
+                    for j, other in enumerate(theirs):
+                        if j != i:
+                            other.close()
+                    _serve(conn)
+                except BaseException:
+                    code = 1
+                finally:
+                    os._exit(code)
+            children.append(pid)
+            conn.close()
+        _serve(theirs[0])
+    except (EOFError, OSError, KeyboardInterrupt, SystemExit):
+        return
+    except BaseException:  # stopped while warming up
+        return
+    finally:
+        for pid in children:
+            try:
+                os.waitpid(pid, 0)
+            except (ChildProcessError, InterruptedError, OSError):
+                pass
+
+
 def _light(result):
     """What the plots read of a result, as :class:`~cvsim.histories.Histories` (with its
     limit checks): unpickling it loads neither the solver nor the property library."""
@@ -65,11 +116,21 @@ def _light(result):
     return light
 
 
+class _Pending:
+    """Figures sent to the helpers and not collected yet."""
+
+    def __init__(self, names: list[str]):
+        self.names = names
+        self.busy: list = []     # connections that owe an answer
+        self.errors: list[str] = []
+
+
 class Painters:
     """Helper processes that draw a run's plots (see the module notes)."""
 
-    def __init__(self, helpers: list):
-        self.helpers = helpers  # (process, connection)
+    def __init__(self, process, connections: list):
+        self.process = process          # the first helper (the others are its children)
+        self.connections = connections  # one pipe per helper
 
     @classmethod
     def start(cls, n: int = HELPERS) -> "Painters | None":
@@ -82,70 +143,84 @@ class Painters:
         if (os.cpu_count() or 1) < 2 or "fork" not in mp.get_all_start_methods():
             return None
         ctx = mp.get_context("fork")
-        helpers = []
+        pipes = [ctx.Pipe() for _ in range(n)]
+        mine = [m for m, _ in pipes]
+        theirs = [t for _, t in pipes]
         try:
-            for _ in range(n):
-                mine, theirs = ctx.Pipe()
-                p = ctx.Process(target=_serve, args=(theirs,), daemon=True,
-                                name="cvsim-plots")
-                p.start()
-                theirs.close()
-                helpers.append((p, mine))
+            p = ctx.Process(target=_helpers, args=(theirs, mine), daemon=True,
+                            name="cvsim-plots")
+            p.start()
         except OSError:
-            out = cls(helpers)
-            out.close()
+            for conn in mine + theirs:
+                conn.close()
             return None
-        return cls(helpers)
+        for conn in theirs:
+            conn.close()
+        return cls(p, mine)
 
     def draw(self, result, folder: Path, names: list[str]) -> list[Path]:
         """Draw the figures ``names`` of ``result`` into ``folder``, shared among the
         helpers; returns the paths in the order of ``names``. Raises RuntimeError
         naming what failed (the caller draws the rest itself)."""
+        return self.collect(self.submit(result, folder, names))
+
+    def submit(self, result, folder: Path, names: list[str]) -> "_Pending":
+        """Send the figures ``names`` of ``result`` to the helpers and return at once
+        (the caller writes its other files meanwhile); :meth:`collect` waits for them."""
         data = pickle.dumps(_light(result), protocol=pickle.HIGHEST_PROTOCOL)
-        shares = [[] for _ in self.helpers]
-        load = [0.0] * len(self.helpers)
+        shares = [[] for _ in self.connections]
+        load = [0.0] * len(self.connections)
         for name in sorted(names, key=lambda n: -COST.get(n, 1.0)):
             i = load.index(min(load))
             shares[i].append(name)
             load[i] += COST.get(name, 1.0)
-        busy, errors = [], []
-        for (p, conn), share in zip(self.helpers, shares):
+        pending = _Pending(list(names))
+        for conn, share in zip(self.connections, shares):
             if share:
                 try:
                     conn.send((data, str(folder), share))
                 except OSError as exc:  # the helper has gone
-                    errors.append(f"a plotting process ended ({type(exc).__name__})")
+                    pending.errors.append(f"a plotting process ended ({type(exc).__name__})")
                     continue
-                busy.append(conn)
+                pending.busy.append(conn)
+        return pending
+
+    @staticmethod
+    def collect(pending: "_Pending") -> list[Path]:
+        """The paths :meth:`submit` asked for, once drawn, in the order asked; raises
+        RuntimeError naming what failed."""
         drawn = {}
-        for conn in busy:
+        for conn in pending.busy:
             try:
                 status, payload = conn.recv()
             except (EOFError, OSError) as exc:
-                errors.append(f"a plotting process ended ({type(exc).__name__})")
+                pending.errors.append(f"a plotting process ended ({type(exc).__name__})")
                 continue
             if status == "ok":
                 drawn.update({Path(p).stem: Path(p) for p in payload})
             else:
-                errors.append(payload)
-        if errors:
-            raise RuntimeError("; ".join(errors))
-        return [drawn[n] for n in names if n in drawn]
+                pending.errors.append(payload)
+        pending.busy = []
+        if pending.errors:
+            raise RuntimeError("; ".join(pending.errors))
+        return [drawn[n] for n in pending.names if n in drawn]
 
     def close(self) -> None:
-        """Tell the helpers to stop and wait for them (a stuck one is ended)."""
-        for p, conn in self.helpers:
+        """Tell the helpers to stop and wait for the first one (which waits for the
+        others); a stuck one is ended."""
+        for conn in self.connections:
             try:
                 conn.send(None)
             except (OSError, ValueError):
                 pass
             conn.close()
-        for p, _ in self.helpers:
-            p.join(timeout=5)
-            if p.is_alive():
-                p.terminate()
-                p.join(timeout=5)
-        self.helpers = []
+        self.connections = []
+        if self.process is not None:
+            self.process.join(timeout=5)
+            if self.process.is_alive():
+                self.process.terminate()
+                self.process.join(timeout=5)
+            self.process = None
 
     def __enter__(self):
         return self

@@ -39,6 +39,7 @@ from .flow.relief import (API526_AREAS_IN2, INCH, api520_area, api520_c, api520_
                           two_phase_discharge_coefficient)
 from .fluid import root_on_bracket
 from .limits import ACCUMULATION
+from .units import PSI
 from .network import FixedFlow, Network, ReliefValve
 from .relief_loads import (WALL_TEMPERATURE_CARBON_STEEL, api521_unwetted_factor,
                            api521_unwetted_load, latent_heat_load, max_set_pressure,
@@ -329,7 +330,7 @@ def size_relief(network: Network, link_name: str, *, load: float | None = None,
             "fire)")
     p1 = relieving_pressure(mawp, atm, acc, dp_min)
     acc_text = (f"{acc * 100:.0f} % accumulation ({case}"
-                + (f", at least {dp_min / 6894.757:.0f} psi" if dp_min else "")
+                + (f", at least {dp_min / PSI:.0f} psi" if dp_min else "")
                 + f") above the {mawp_text}")
 
     # -- the contents at relieving conditions and what the valve passes

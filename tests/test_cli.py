@@ -1,6 +1,7 @@
 """The command line as a user meets it: demos run end to end, broken inputs give one
 clear message and no traceback, nothing half-written is left behind."""
 import json
+import os
 from pathlib import Path
 
 import pytest
@@ -171,3 +172,42 @@ run: {end: 5 s}
     assert any("," in cell for cell in comma[1])
     for a, b in zip(dot[1:], comma[1:]):
         assert [float(x) for x in a if x] == [float(x.replace(",", ".")) for x in b if x]
+
+
+def test_the_program_leaves_quickly_with_its_output_and_exit_code_whole(tmp_path):
+    """`cvsim run` and `check` leave by os._exit (cvsim.cli.command): everything printed
+    must still arrive through a pipe, the exit code must be main()'s, and the files
+    must be complete."""
+    import subprocess
+    import sys
+    env = {k: v for k, v in os.environ.items() if k != "PYTHONUNBUFFERED"}
+    env["PYTHONPATH"] = str(ROOT)  # block-buffered output through a pipe, as usual
+    demo = ROOT / "scenarios" / "nitrogen-blowdown.yaml"
+    run = subprocess.run([sys.executable, "-m", "cvsim.cli", "run", str(demo), "--out",
+                          str(tmp_path / "out"), "--no-plots"], capture_output=True, text=True,
+                         env=env, timeout=300)
+    assert run.returncode == 0, run.stderr
+    assert run.stdout.rstrip().endswith(f"Results written to {tmp_path / 'out'}/")
+    assert "Minimum" in run.stdout or "minimum" in run.stdout  # the summary came through
+    summary = (tmp_path / "out" / "summary.txt").read_text()
+    assert run.stdout.startswith(summary.splitlines()[0])
+    check = subprocess.run([sys.executable, "-m", "cvsim.cli", "check", str(demo)],
+                           capture_output=True, text=True, env=env, timeout=300)
+    assert check.returncode == 0 and "no problems found" in check.stdout
+    missing = subprocess.run([sys.executable, "-m", "cvsim.cli", "run",
+                              str(tmp_path / "nothing.yaml")], capture_output=True, text=True,
+                             env=env, timeout=300)
+    assert missing.returncode == 2 and missing.stderr.startswith("cvsim: ")
+
+
+def test_a_reader_that_leaves_early_gets_no_traceback():
+    """`cvsim check FILE | head -1`: the pipe closes under the writer; the program
+    ends quietly (cvsim.cli.command)."""
+    import subprocess
+    import sys
+    env = {**os.environ, "PYTHONPATH": str(ROOT)}
+    demo = ROOT / "scenarios" / "nitrogen-blowdown.yaml"
+    proc = subprocess.run(f"'{sys.executable}' -m cvsim.cli check '{demo}' | head -c 20",
+                          shell=True, capture_output=True, text=True, env=env, timeout=300)
+    assert proc.stdout == f"{demo}"[:20]
+    assert "Traceback" not in proc.stderr and "BrokenPipe" not in proc.stderr

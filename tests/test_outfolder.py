@@ -164,6 +164,58 @@ def test_an_unwritable_place_is_refused_before_solving(small, tmp_path, capsys):
         locked.chmod(0o700)
 
 
+def _deny_writing(monkeypatch, *places):
+    """``os.access`` as an ordinary user without write permission on ``places`` sees it
+    (a superuser's os.access always says yes, and CI runs as the superuser)."""
+    real = os.access
+    denied = {os.path.realpath(p) for p in places}
+
+    def access(path, mode, *args, **kwargs):
+        if mode & os.W_OK and os.path.realpath(path) in denied:
+            return False
+        return real(path, mode, *args, **kwargs)
+    monkeypatch.setattr(outfolder.os, "access", access)
+
+
+def _no_solving(monkeypatch):
+    import cvsim.api
+
+    def solve(*args, **kwargs):
+        raise AssertionError("solved before the output folder was checked")
+    monkeypatch.setattr(cvsim.api, "run", solve)
+
+
+def test_an_unwritable_place_is_refused_before_solving_for_any_user(small, tmp_path, capsys,
+                                                                     monkeypatch):
+    """Issue 10 item 3, as it runs in CI (as the superuser): the permission check comes
+    before the solve, and the message says what to do."""
+    locked = tmp_path / "locked"
+    locked.mkdir()
+    _deny_writing(monkeypatch, locked)
+    _no_solving(monkeypatch)
+    assert run(small, locked / "out") == 2
+    err = capsys.readouterr().err
+    assert "no permission" in err and "--out" in err and "Traceback" not in err
+    assert list(locked.iterdir()) == []
+
+
+def test_an_earlier_result_that_cannot_be_changed_is_refused_up_front(small, tmp_path, capsys,
+                                                                      monkeypatch):
+    """Issue 10 item 7: an earlier result folder without write permission is refused
+    before solving, kept as it was, and no hidden .old- or .partial- folder is left."""
+    out = tmp_path / "out"
+    assert run(small, out) == 0
+    before = sorted(p.name for p in out.iterdir())
+    capsys.readouterr()
+    _deny_writing(monkeypatch, out)
+    _no_solving(monkeypatch)
+    assert run(small, out) == 2
+    err = capsys.readouterr().err
+    assert "cannot be replaced" in err and "no permission" in err and "Traceback" not in err
+    assert sorted(p.name for p in out.iterdir()) == before
+    assert leftovers(tmp_path) == []
+
+
 # ------------------------------------------------------------------ item 7
 
 def test_leftovers_of_killed_runs_are_cleaned_and_nothing_else(small, tmp_path):

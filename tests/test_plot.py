@@ -2,8 +2,11 @@
 (a run stopped or failed, a network without links, columns added by later features)."""
 import dataclasses
 import math
+import os
 import subprocess
 import sys
+
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -14,6 +17,8 @@ from cvsim.plot import _View, flow_unit, plot_run, time_unit
 from cvsim.result import build_result
 from cvsim.signals import Constant
 from cvsim.solve import integrate
+
+ROOT = Path(__file__).resolve().parents[1]
 
 # any warning while plotting (a collapsed layout, a NaN reduction) is a failure here
 pytestmark = pytest.mark.filterwarnings("error")
@@ -288,6 +293,32 @@ def test_units_agree_across_plots_summary_and_csv(tmp_path):
 
 # ------------------------------------------------------------- plotting helpers
 
+def _helper_pids(painters, wait: float = 60.0) -> list[int]:
+    """The first helper's pid and those of the helpers it forked (Linux /proc), once
+    they are all there."""
+    import time
+    first = painters.process.pid
+    deadline = time.monotonic() + wait
+    while True:
+        try:
+            with open(f"/proc/{first}/task/{first}/children") as fh:
+                children = [int(x) for x in fh.read().split()]
+        except OSError:
+            children = []
+        if len(children) >= len(painters.connections) - 1 or time.monotonic() > deadline:
+            return [first] + children
+        time.sleep(0.02)
+
+
+def _alive(pid: int) -> bool:
+    """True while ``pid`` runs (a zombie, ended but not yet reaped, counts as ended)."""
+    try:
+        with open(f"/proc/{pid}/stat") as fh:
+            return fh.read().rsplit(")", 1)[1].split()[0] != "Z"
+    except OSError:
+        return False
+
+
 def test_helper_processes_draw_the_same_figures_and_end(tmp_path):
     from cvsim.painters import Painters
     from cvsim.plot import plot_names
@@ -297,7 +328,8 @@ def test_helper_processes_draw_the_same_figures_and_end(tmp_path):
         pytest.skip("no fork on this platform or a single core")
     (tmp_path / "a").mkdir()
     with painters:
-        processes = [p for p, _ in painters.helpers]
+        pids = _helper_pids(painters)
+        assert len(pids) == 2  # the first helper and the one it forked when warm
         paths = painters.draw(res, tmp_path / "a", plot_names(res))
     assert [p.name for p in paths] == [f"{n}.png" for n in plot_names(res)]
     assert_pictures(paths, [f"{n}.png" for n in plot_names(res)])
@@ -306,7 +338,7 @@ def test_helper_processes_draw_the_same_figures_and_end(tmp_path):
     import matplotlib.image as mpimg
     for a, b in zip(paths, alone):
         assert mpimg.imread(a).shape == mpimg.imread(b).shape
-    assert not any(p.is_alive() for p in processes)  # closed with the block
+    assert not any(_alive(pid) for pid in pids)  # closed with the block
 
 
 def test_a_failing_helper_leaves_the_drawing_to_the_main_process(tmp_path):
@@ -317,11 +349,42 @@ def test_a_failing_helper_leaves_the_drawing_to_the_main_process(tmp_path):
     if painters is None:
         pytest.skip("no fork on this platform or a single core")
     with painters:
-        for p, _ in painters.helpers:  # helpers that died (killed, out of memory)
-            p.kill()
-            p.join()
+        import signal
+        for pid in _helper_pids(painters):  # helpers that died (killed, out of memory)
+            os.kill(pid, signal.SIGKILL)
+        painters.process.join()
         paths = _plots(res, tmp_path, painters)
     assert [p.name for p in paths] == QUANTITIES
+
+
+@pytest.mark.skipif(not os.path.exists("/proc/self/task"), reason="reads Linux /proc")
+def test_helpers_end_when_the_command_is_killed():
+    """A command killed outright (SIGKILL: no handler runs) leaves no plotting helper
+    behind: each sees the end of its pipe and leaves (issue 10: no orphan processes)."""
+    import signal
+    import time
+    code = ("import os, signal, sys, time\n"
+            "sys.path[:0] = [sys.argv[1]]\n"
+            "from cvsim.painters import Painters\n"
+            "p = Painters.start()\n"
+            "print(p.process.pid, flush=True)\n"
+            "time.sleep(120)\n")
+    with subprocess.Popen([sys.executable, "-c", code, str(ROOT)], stdout=subprocess.PIPE,
+                          text=True) as proc:
+        first = int(proc.stdout.readline())
+        deadline = time.monotonic() + 60  # the second helper is forked once the first is warm
+        pids = [first]
+        while len(pids) < 2 and time.monotonic() < deadline:
+            time.sleep(0.05)
+            with open(f"/proc/{first}/task/{first}/children") as fh:
+                pids = [first] + [int(x) for x in fh.read().split()]
+        assert len(pids) == 2
+        proc.send_signal(signal.SIGKILL)
+        proc.wait()
+    deadline = time.monotonic() + 10
+    while any(_alive(pid) for pid in pids) and time.monotonic() < deadline:
+        time.sleep(0.05)
+    assert not any(_alive(pid) for pid in pids)
 
 
 def test_what_the_helpers_receive_loads_neither_solver_nor_property_library(tmp_path):

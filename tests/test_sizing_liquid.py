@@ -214,6 +214,23 @@ def test_relieving_pressure_is_the_mawp_plus_the_accumulation(case, set_g, p1_g)
     assert s.allowed_pressure == s.relieving_pressure
 
 
+@pytest.mark.parametrize("case, mawp_g, set_g, floor_psi", [
+    ("single-device", 1.0, 1.0, 3.0),      # 10 % of 1 barg = 1.45 psi < 3 psi
+    ("multiple-devices", 1.0, 1.05, 4.0),  # 16 % of 1 barg = 2.32 psi < 4 psi
+])
+def test_relieving_pressure_of_a_low_mawp_takes_the_psi_floor(case, mawp_g, set_g, floor_psi):
+    # source: ASME BPVC VIII-1 UG-125(c); API 520 Part I, 10th ed., sec. 4: the allowed
+    # overpressure is 10 % of the MAWP or 3 psi, whichever is greater (single device);
+    # 16 % or 4 psi (multiple devices). 1 psi = 6894.757 Pa (NIST SP 811, 7 digits)
+    sc = load_scenario(BLOCKED, overrides={
+        "vessels.drum.limits": f"{{design_pressure: {mawp_g} barg, accumulation: {case}}}",
+        "links.psv.set_pressure": f"{set_g} barg"})
+    s = size_relief(sc.network, "psv", load=0.1, confirm=False)
+    expected = mawp_g * 1e5 + floor_psi * 6894.757
+    assert s.relieving_pressure - ATM == pytest.approx(expected, rel=1e-7)
+    assert s.allowed_pressure == s.relieving_pressure
+
+
 @pytest.mark.parametrize("case, set_g, allowed", [
     ("single-device", 10.1, "at or below the MAWP"),
     ("multiple-devices", 10.6, "105 %"),

@@ -111,7 +111,7 @@ def test_install_hints_refer_to_the_checkout_not_the_package_index():
     root = PACKAGE.parent
     project = tomllib.loads((root / "pyproject.toml").read_text())["project"]
     assert project["name"] == "cvsim-vessels"
-    assert project["scripts"] == {"cvsim": "cvsim.cli:main"}
+    assert project["scripts"] == {"cvsim": "cvsim.cli:command"}
     offenders = []
     for path in [*PACKAGE.rglob("*.py"), *root.glob("*.md"), *(root / "docs").glob("*.md")]:
         text = path.read_text(encoding="utf-8")

@@ -22,7 +22,7 @@ from pathlib import Path
 
 import numpy as np
 
-from ..plot import COLOURS, DPI, figure
+from ..plot import COLOURS, figure, save
 
 PANEL = (5.2, 3.0)       # [in] one panel
 HEADER_IN = 1.5          # [in] title, subtitle and footer
@@ -101,7 +101,7 @@ def plot_convergence(result, path: Path, outcomes=None) -> Path:
             ax.legend(fontsize=7.5, framealpha=0.9)
         for ax in axes[len(names):]:
             ax.set_visible(False)
-        fig.savefig(path, dpi=DPI)
+        save(fig, path)
     return Path(path)
 
 
@@ -162,7 +162,7 @@ def plot_sensitivity(result, path: Path, outcomes=None) -> Path:
             axes[0].text(0.5, 0.5, "no outcome varies from case to case", ha="center",
                          va="center", transform=axes[0].transAxes)
             axes[0].set_axis_off()
-        fig.savefig(path, dpi=DPI)
+        save(fig, path)
     return Path(path)
 
 
@@ -212,7 +212,7 @@ def plot_spread(result, path: Path, outcomes=None) -> Path:
             ax.legend(fontsize=7, framealpha=0.9)
         for ax in axes[len(names):]:
             ax.set_visible(False)
-        fig.savefig(path, dpi=DPI)
+        save(fig, path)
     return Path(path)
 
 
