@@ -598,6 +598,42 @@ def test_relief_report_and_inputs_state_the_values_simulated(relief_report):
     assert "orifice_letter: G" in tree.by_id("inputs-given").find("pre")[0].text()
 
 
+def test_relief_report_software_section_lists_what_the_command_changed(relief_report,
+                                                                        tmp_path):
+    """--set gave D, the sizing chose G: the report says G ran, D only as given, the
+    areas in mm2, and the software section names both changes so the run can be
+    repeated from it; repeated that way, the run is the confirming run."""
+    out, sizing, tree = relief_report
+    # API Std 526 effective areas: D 0.110 in2, G 0.503 in2; 1 in2 = 645.16 mm2 (exact)
+    d_mm2, g_mm2 = 0.110 * 645.16, 0.503 * 645.16
+    assert sizing["letter"] == "G"
+    rows = [[words(td.text()) for td in tr.find("td")]
+            for tr in tree.by_id("inputs-changed").find("tbody")[0].find("tr")]
+    letter = [r for r in rows if r[0] == "links.psv.orifice_letter"]
+    assert len(letter) == 1  # no row saying D was simulated
+    assert letter[0][1].startswith("G ") and "was D, given with --set" in letter[0][1]
+    area = next(r for r in rows if r[0] == "links.psv.area")
+    assert area[1] == f"{g_mm2:.6g} mm2 (was {d_mm2:.6g} mm2)"
+    assert "e-0" not in words(tree.by_id("inputs-changed").text())  # nothing left in SI
+    head = words(tree.by_id("title-block").text())
+    assert f"links.psv.area = {g_mm2:.6g} mm2" in head
+    software = words(tree.by_id("software").text())
+    assert "links.psv.orifice_letter = G by cvsim relief" in software
+    assert f"links.psv.area = {g_mm2:.6g} mm2 by cvsim relief" in software
+    assert "links.psv.orifice_letter = D (given with --set; not simulated" in software
+    repeat = words(tree.by_id("repeat").find("code")[0].text())
+    assert repeat.endswith("--set links.psv.orifice_letter=G")
+    # the command the report gives repeats the confirming run point for point
+    args = repeat.split()[1:]
+    rerun = tmp_path / "rerun"
+    assert main(args + ["--out", str(rerun), "--no-plots", "--quiet"]) == 0
+
+    def table(folder):
+        return [ln for ln in (folder / "history.csv").read_text().splitlines()
+                if not ln.startswith("#")]
+    assert table(rerun) == table(out)
+
+
 # ------------------------------------------------------------ study reports
 
 def test_find_report_states_the_answer_in_the_title_block_and_job(tmp_path):
