@@ -696,3 +696,69 @@ def test_chromium_prints_the_wide_table_of_cases_on_landscape_pages(tmp_path):
     sizes = {(round(float(w)), round(float(h))) for w, h in boxes}
     # A4 is 595 x 842 pt (ISO 216: 210 x 297 mm); the cases on landscape pages
     assert (842, 595) in sizes and (595, 842) in sizes
+
+
+# --------------------------------------------------------- the units of a study
+
+@pytest.fixture(scope="module")
+def separator_sweep(tmp_path_factory):
+    """`cvsim sweep --report` over two orifices of the separator demo (15 min target:
+    14 mm is too slow, 20 mm meets it), with the axes of sweep.png kept."""
+    import cvsim.study.plot as study_plot
+    out = tmp_path_factory.mktemp("sweep") / "sep"
+    drawn = []
+    keep = study_plot.save
+
+    def save(fig, path):
+        drawn.append([(ax.get_ylabel(), [list(map(float, line.get_ydata()))
+                                         for line in ax.get_lines()])
+                      for ax in fig.axes if ax.get_visible()])
+        keep(fig, path)
+    with pytest.MonkeyPatch.context() as mp:
+        mp.setattr(study_plot, "save", save)
+        code = main(["sweep", str(ROOT / "scenarios" / "separator-depressuring.yaml"),
+                     "--vary", "links.orifice.diameter=14 mm, 20 mm", "--out", str(out),
+                     "--report", "--quiet", "--workers", "1"])
+    assert code == 0
+    import json
+    data = json.loads((out / "sweep.json").read_text())
+    return out, data, Tree((out / "report.html").read_text(encoding="utf-8")), drawn[0]
+
+
+def test_study_times_are_in_one_unit_in_the_plot_text_table_report_and_csv(separator_sweep):
+    """The depressuring time is shown in the study's unit everywhere: the run's rule
+    (cvsim.display.time_unit) applied to the longest time of the study, here min."""
+    import csv
+    from cvsim.display import time_unit
+    out, data, tree, axes = separator_sweep
+    rows = data["rows"]
+    actual = [r["separator.limit.depressure.actual"] for r in rows]
+    longest = max(v for r in rows for c in data["columns"] if c["unit"] == "s"
+                  and c["kind"] != "parameter-si" for v in [r[c["name"]]]
+                  if isinstance(v, float))
+    unit, size = time_unit(longest)
+    assert unit == "min" and size == 60.0  # runs of 11 to 23 min
+    shown = [v / 60.0 for v in actual]
+    name = f"separator.limit.depressure.actual [{unit}]"
+    # sweep.csv
+    lines = [ln for ln in (out / "sweep.csv").read_text().splitlines() if not ln.startswith("#")]
+    table = list(csv.DictReader(lines))
+    assert [float(r[name]) for r in table] == pytest.approx(shown, rel=1e-9)
+    assert "separator.limit.depressure.actual [s]" not in lines[0]
+    assert not [h for h in lines[0].split(",") if h.endswith("[s]")]  # every time in min
+    # sweep.txt
+    text = (out / "sweep.txt").read_text().splitlines()
+    at = next(i for i, ln in enumerate(text) if ln.startswith("case "))
+    assert name in text[at]
+    for line, v in zip(text[at + 1:at + 3], shown):
+        assert f"{v:.6g}" in line.split()
+    # the report's table of cases
+    cases = tree.by_id("cases")
+    assert name in words(cases.text()).replace("<wbr>", "")
+    col = [words(th.text()) for th in cases.find("thead")[0].find("th")].index(name)
+    cells = [words(tr.find("td")[col].text()) for tr in cases.find("tbody")[0].find("tr")]
+    assert [float(c) for c in cells] == pytest.approx(shown, rel=1e-4)
+    # sweep.png: a panel with its time axis in min draws these values
+    panels = [lines for label, lines in axes if label == f"Time [{unit}]"]
+    assert panels and not [label for label, _ in axes if label == "Time [s]"]
+    assert any(ys and ys[0] == pytest.approx(shown, rel=1e-9) for ys in panels)

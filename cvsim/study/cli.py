@@ -246,11 +246,16 @@ def cmd_outcomes(args) -> int:
     outcomes = outcome_list(scenario.network)
     w = max(len(o.name) for o in outcomes)
     print(f"Outcomes of {args.scenario} (units as in sweep.csv):")
+    # times and flows take the study's units, known once it has run
+    study = {"s": "s|min|h", "kg/s": "kg/s|g/s|kg/h"}
     for o in outcomes:
-        unit = Column(o.name, o.unit, o.kind, difference=o.difference).shown()[0]
+        unit = study.get(o.unit) or Column(o.name, o.unit, o.kind,
+                                           difference=o.difference).shown()[0]
         print(f"  {o.name:<{w}}  {('[' + unit + ']') if unit else '':<9} {o.text}")
     print("Limit checks of walls (when modelled) add names such as "
           "<vessel>.limit.max_temperature.<wall>.")
+    print("Times and mass flows are in the study's units: min over 600 s, h over 3 h; "
+          "kg/s from 1 kg/s, g/s from 1 g/s, else kg/h (as a run chooses them).")
     return 0
 
 

@@ -22,8 +22,9 @@ def _fmt(value) -> str:
 def study_rows(result: SweepResult, outcomes: list[str] | None = None):
     """(rows, columns) of a study for the report: parameters as given, status, error,
     the chosen outcomes and every limit check's met/CROSSED and margin, in the units
-    of sweep.csv. Each row also carries ``status`` and ``limits_crossed`` so the
-    report can mark it."""
+    of sweep.csv (times and flows in the study's units, :meth:`SweepResult.units`).
+    Each row also carries ``status`` and ``limits_crossed`` so the report can mark
+    it."""
     wanted = list(outcomes if outcomes is not None else result.outcome_defaults)
     for c in result.columns:
         if c.kind in ("limit-met", "limit-margin") and c.name not in wanted:
@@ -33,6 +34,7 @@ def study_rows(result: SweepResult, outcomes: list[str] | None = None):
     cols = [c for c in result.columns if c.kind in ("parameter", "status")
             or (c.kind == "error" and any_error)]
     cols += [result.column(n) for n in wanted]
+    cols = [result.shown_column(c) for c in cols]  # times and flows as in every file
     rows = []
     for r in result.rows:
         row = {}
