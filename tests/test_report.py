@@ -698,7 +698,7 @@ def test_chromium_prints_the_wide_table_of_cases_on_landscape_pages(tmp_path):
     assert (842, 595) in sizes and (595, 842) in sizes
 
 
-# --------------------------------------------------------- the units of a study
+# ------------------------------------------------------- the sweep's answer, its units
 
 @pytest.fixture(scope="module")
 def separator_sweep(tmp_path_factory):
@@ -723,6 +723,58 @@ def separator_sweep(tmp_path_factory):
     import json
     data = json.loads((out / "sweep.json").read_text())
     return out, data, Tree((out / "report.html").read_text(encoding="utf-8")), drawn[0]
+
+
+def test_sweep_report_states_the_answer_in_the_title_block_and_job(separator_sweep):
+    out, data, tree, _ = separator_sweep
+    rows = data["rows"]
+    # which case meets the depressuring target, from the case's own numbers: the time to
+    # 6.9 bar g against the 15 min (900 s) the scenario states
+    assert [r["separator.limit.depressure.actual"] <= 900.0 for r in rows] == [False, True]
+    assert all(r["separator.limit.design_pressure.met"] and
+               r["separator.limit.min_metal_temperature.met"] for r in rows)
+    head = words(tree.by_id("title-block").text())
+    job = words(tree.by_id("answer").text())
+    for where in (head, job):
+        assert "Answer1 of 2 cases meet every design limit the scenario states" in where
+        assert ("links.orifice.diameter meeting every limitsmallest 20 mm (case 2), "
+                "largest 20 mm (case 2)") in where
+        assert ("Binding limitseparator.limit.depressure (depressured to 6.9 bar g within "
+                "15 min), crossed in 1 of 2 cases (case 1: links.orifice.diameter = 14 mm)"
+                in where)
+    notes = words(tree.by_id("notes").text())
+    assert "2 cases: 0 completed, 2 stopped at a stop condition, 0 failed" in notes
+    assert "{" not in notes and "'" not in notes  # words, not a Python dict
+
+
+def test_sweep_answer_without_a_crossing_names_the_least_margin():
+    """No case crosses: the binding limit is the one closest to it, relative to its limit."""
+    from cvsim.study.report import sweep_answer
+    from cvsim.study.sweep import parse_values
+    from cvsim.study.table import Column, SweepResult
+    p = parse_values("links.vent.diameter", "8 mm, 10 mm")
+    cols = [Column("case", "", "case"), Column(p.key, "", "parameter"),
+            Column("status", "", "status")]
+    for name, unit in (("tank.limit.design_pressure", "Pa"), ("tank.limit.depressure", "s")):
+        cols += [Column(f"{name}.met", "", "limit-met", "words: met (1) or crossed (0)"),
+                 Column(f"{name}.limit", unit, "limit-value"),
+                 Column(f"{name}.margin", unit, "limit-margin", difference=True)]
+    rows = [{"case": i, p.key: d, "status": "stopped",
+             "tank.limit.design_pressure.met": True, "tank.limit.design_pressure.limit": 11e5,
+             "tank.limit.design_pressure.margin": m_p,
+             "tank.limit.depressure.met": True, "tank.limit.depressure.limit": 900.0,
+             "tank.limit.depressure.margin": m_t}
+            for i, d, m_p, m_t in ((1, "8 mm", 5e5, 30.0), (2, "10 mm", 4e5, 200.0))]
+    result = SweepResult("t", "t.yaml", [p], cols, rows, 101325.0)
+    answer = dict(sweep_answer(result))
+    assert answer["Answer"] == "2 of 2 cases meet every design limit the scenario states"
+    assert answer["links.vent.diameter meeting every limit"].startswith(
+        "smallest 8 mm (case 1), largest 10 mm (case 2)")
+    # 30 s of 900 s (3.3 %) is closer than 4 bar of 11 bar a (36 %); times in the study's
+    # unit, min (its longest time, 900 s, is over 600 s)
+    assert answer["Binding limit"] == (
+        "none is crossed; the least margin is that of tank.limit.depressure (words; limit "
+        "15 min), +0.5 min in case 1: links.vent.diameter = 8 mm")
 
 
 def test_study_times_are_in_one_unit_in_the_plot_text_table_report_and_csv(separator_sweep):
