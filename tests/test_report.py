@@ -191,6 +191,38 @@ def test_report_carries_the_caution_at_top_and_end(blowdown_html):
     assert blowdown_html.index('id="caution-end"') > blowdown_html.index('id="sign-off"')
 
 
+BODY = ["job", "inputs", "model", "summary", "limits", "plots", "checks", "software",
+        "sign-off"]
+APPENDICES = ["inputs-given", "inputs-used", "events-all", "plots-each"]
+
+
+def section_order(text: str) -> list[str]:
+    """The ids of the report's parts in the order the page holds them."""
+    wanted = set(BODY + APPENDICES + ["caution-end", "relief-sizing"])
+    return [i for i in re.findall(r'<(?:section|div|header|footer|aside)\b[^>]*\bid="([^"]+)"',
+                                  text) if i in wanted]
+
+
+def test_appendices_follow_the_body_and_the_sign_off(blowdown_html, relief_report):
+    """The scenario echo, the values as used, every event and the plots of each quantity
+    come after the body and its sign-off, lettered, before the closing caution."""
+    out, _, _ = relief_report
+    relief_html = (out / "report.html").read_text(encoding="utf-8")
+    for text, appendices in ((blowdown_html, ["inputs-given", "inputs-used", "plots-each"]),
+                             (relief_html, APPENDICES)):  # the relief run logs > 12 events
+        order = section_order(text)
+        assert [i for i in order if i in BODY] == BODY
+        assert [i for i in order if i in APPENDICES] == appendices
+        last_body = order.index("sign-off")
+        assert all(order.index(a) > last_body for a in appendices)
+        assert order[-1] == "caution-end"
+        tree = Tree(text)
+        for letter, a in zip("ABCD", appendices):
+            assert words(tree.by_id(a).find("h2")[0].text()).startswith(f"Appendix {letter}"), a
+    events = Tree(relief_html).by_id("events-all").find("tbody")[0].find("tr")
+    assert len(events) > 12  # all of them, where the body lists the first 12
+
+
 def test_limits_table_lists_each_limit_and_marks_crossed_rows_in_words(blowdown_html,
                                                                       blowdown_result):
     _, result = blowdown_result
