@@ -371,9 +371,9 @@ def echo_text(result: Result, echo: list, changes=()) -> str:
          f"cvsim {p.get('cvsim', '?')}, CoolProp {p.get('coolprop', '?')}", ""]
     if changes:
         L.append("Values changed by the command (simulated with these, not the file's):")
-        L += [f"  {c.key} = {c.used()}   ({c.why})" for c in changes]
+        L += [f"  {c.key} = {c.as_set()}   ({c.why})" for c in changes]
         L.append("")
-    echo = as_simulated(echo, changes)
+    echo = as_simulated(echo, changes, p.get("overrides"))
     w = max([len(str(r.key)) for r in echo] + [10])
     for r in echo:
         line = f"{r.key:<{w}}  {r.given!s:<22}  ->  {r.used}"

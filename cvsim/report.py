@@ -26,6 +26,7 @@ import json
 import math
 import platform
 import re
+import shlex
 import tempfile
 from datetime import datetime
 from pathlib import Path
@@ -35,7 +36,7 @@ from . import __version__
 from .contents import summary_lines
 from .htmldoc import (Html, Section, bullets, document, esc, facts, figure, join, notice,
                       number, sign_off, subsection, table, tag, verbatim)
-from .changes import as_simulated, changed
+from .changes import as_simulated, before, changed
 from .display import (RunUnits, bar, barg, degc, duration, engineering, limit_value,
                       margin, run_units)
 
@@ -122,7 +123,8 @@ def render_run_report(result: Result, scenario=None, plots=None, relief: dict | 
     prov = result.provenance
     net = result.network
     u = run_units(result)
-    echo = as_simulated(scenario.echo, changes) if scenario is not None else []
+    echo = (as_simulated(scenario.echo, changes, scenario.overrides) if scenario is not None
+            else [])
     body_plots = [p for p in plots if Path(p).stem in BODY_PLOTS]
     more_plots = [p for p in plots if Path(p).stem not in BODY_PLOTS]
     events = s["events"]
@@ -139,7 +141,8 @@ def render_run_report(result: Result, scenario=None, plots=None, relief: dict | 
         Section("limits", "Design limits", _limits(result, u), new_page=False),
         Section("plots", "Plots", _plots(body_plots, more_plots)),
         Section("checks", "Checks on the calculation", _checks(result, s, u)),
-        Section("software", "Software and traceability", _software(prov), new_page=False),
+        Section("software", "Software and traceability", _software(prov, "run", changes),
+                new_page=False),
         Section("sign-off", "Check and review", sign_off(), new_page=False),
     ]
     if scenario is not None:
@@ -437,13 +440,19 @@ def _inputs(scenario, prov: dict, echo, changes) -> Html:
         'in <a href="#inputs-given">Appendix A</a>; every value as the run used it, in '
         "engineering units with defaults and computed values marked, in "
         '<a href="#inputs-used">Appendix B</a>.'))]
+    by_command = {c.key for c in changes}
+    # a --set value a command then changed did not run: it is told in the command's row
     rows = [[tag("code", k), str(v), "command line --set or Python overrides"]
-            for k, v in scenario.overrides.items()]
+            for k, v in scenario.overrides.items() if k not in by_command]
     given = {r.key: r for r in scenario.echo}
-    rows += [[tag("code", c.key), Html(f"<b>{esc(engineering(c.value, c.unit))}</b>"
-                                       + (f" (was {esc(given[c.key].used or given[c.key].given)})"
-                                          if c.key in given else " (not in the file)")),
-              c.why] for c in changes]
+    for c in changes:
+        row = given.get(c.key)
+        was = (f" (was {before(row)}" + (", given with --set" if c.key in scenario.overrides
+                                         else "") + ")") if row is not None else (
+            " (not in the file)")
+        who = (f"command line --set ({scenario.overrides[c.key]}), then {c.why}"
+               if c.key in scenario.overrides else c.why)
+        rows.append([tag("code", c.key), Html(f"<b>{esc(c.used())}</b>{esc(was)}"), who])
     if rows:
         out.append(subsection("inputs-changed", "Values changed for this run", join([
             tag("p", "These values replace those in the file: the run was simulated with "
@@ -773,7 +782,10 @@ def _checks(result: Result, s: dict, u: RunUnits) -> Html:
 
 # ------------------------------------------------------------- software
 
-def _software(prov: dict, what: str = "run") -> Html:
+def _software(prov: dict, what: str = "run", changes=()) -> Html:
+    """Versions, the scenario's hash and every value changed for the run: those given
+    with ``--set`` and those the command changed (``changes``), so that the run can be
+    repeated from this section alone."""
     rows = [(label, prov[key]) for key, label in VERSION_LABELS if key in prov]
     rows.append(("matplotlib (plots)", _dist_version("matplotlib")))
     rows.append(("Platform", platform.platform()))
@@ -781,8 +793,16 @@ def _software(prov: dict, what: str = "run") -> Html:
         rows.append(("Scenario file", tag("code", prov["scenario"])))
         rows.append(("Scenario SHA-256", tag("span", prov.get("scenario_sha256", "-"),
                                              cls="mono")))
-    for k, v in (prov.get("overrides") or {}).items():
-        rows.append(("Changed for this run", tag("code", f"{k} = {v}")))
+    overrides = prov.get("overrides") or {}
+    by_command = {c.key: c for c in changes}
+    for k, v in overrides.items():
+        c = by_command.get(k)
+        text = f"{k} = {v}" + (f" (given with --set; not simulated: the command changed it "
+                               f"to {c.used()}, below)" if c else " (--set)")
+        rows.append(("Changed for this run", tag("code", text)))
+    for c in changes:
+        rows.append(("Changed for this run", join([
+            tag("code", f"{c.key} = {c.used()}"), esc(f" by {c.why}")])))
     if "run_started" in prov:
         rows.append(("Run started", prov["run_started"]))
     shown = {k for k, _ in VERSION_LABELS} | {"scenario", "scenario_sha256", "overrides",
@@ -792,7 +812,17 @@ def _software(prov: dict, what: str = "run") -> Html:
     repeat = (f"To repeat the {what}: the same scenario file (same SHA-256), the same changes, "
               "and the versions above; small differences in the last digits can come from "
               "other library versions.")
-    return join([facts(rows), tag("p", repeat, cls="muted")])
+    out = [facts(rows), tag("p", repeat, cls="muted")]
+    if changes and "scenario" in prov:
+        sets = {k: str(v) for k, v in overrides.items()}
+        sets.update({c.key: c.as_set() for c in changes if not c.derived})
+        line = " ".join(["cvsim", "run", shlex.quote(str(prov["scenario"]))]
+                        + [f"--set {shlex.quote(f'{k}={v}')}" for k, v in sets.items()])
+        out.append(tag("p", join([
+            esc("The values the command changed are part of the run: the command run again "
+                "makes the same changes, and the run alone is repeated by "),
+            tag("code", line), esc(".")]), cls="muted", id="repeat"))
+    return join(out)
 
 
 def _dist_version(name: str) -> str:

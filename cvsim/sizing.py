@@ -155,7 +155,7 @@ class ReliefSizing:
         why = "cvsim relief: the API 526 letter sized for the relief load"
         return [Change(f"links.{self.link}.orifice_letter", self.letter, "", why),
                 Change(f"links.{self.link}.area", float(self.letter_area), "m2",
-                       f"{why} (its effective area)")]
+                       f"{why} (its effective area)", derived=True)]
 
     def as_dict(self) -> dict:
         from .result import CAUTION

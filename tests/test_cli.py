@@ -138,13 +138,7 @@ def test_relief_sizing_json_carries_the_caution(tmp_path, capsys):
     assert record["caution"] == CAUTION
 
 
-def test_decimal_comma_csv_reads_back_in_a_decimal_comma_locale(tmp_path):
-    """--decimal-comma: ';' between fields, a decimal comma in numbers; read back as a
-    spreadsheet in such a locale would (csv with ';', then ',' -> '.'), the numbers equal
-    those of the ordinary file."""
-    import csv
-    scenario = tmp_path / "vent.yaml"
-    scenario.write_text("""
+VENT = """
 title: Vent for the CSV test
 fluid: Nitrogen
 properties: ideal-gas
@@ -157,7 +151,16 @@ links:
   vent: {from: tank, to: outside, device: orifice, diameter: 5 mm, discharge_coefficient: 0.8,
          flow_model: ideal-gas}
 run: {end: 5 s}
-""")
+"""
+
+
+def test_decimal_comma_csv_reads_back_in_a_decimal_comma_locale(tmp_path):
+    """--decimal-comma: ';' between fields, a decimal comma in numbers; read back as a
+    spreadsheet in such a locale would (csv with ';', then ',' -> '.'), the numbers equal
+    those of the ordinary file."""
+    import csv
+    scenario = tmp_path / "vent.yaml"
+    scenario.write_text(VENT)
     assert main(["run", str(scenario), "--out", str(tmp_path / "dot"), "--no-plots",
                  "--quiet"]) == 0
     assert main(["run", str(scenario), "--out", str(tmp_path / "comma"), "--no-plots",
@@ -211,3 +214,53 @@ def test_a_reader_that_leaves_early_gets_no_traceback():
                           shell=True, capture_output=True, text=True, env=env, timeout=300)
     assert proc.stdout == f"{demo}"[:20]
     assert "Traceback" not in proc.stderr and "BrokenPipe" not in proc.stderr
+
+
+def _csv_rows(path, sep):
+    import csv
+    lines = [ln for ln in path.read_text().splitlines() if not ln.startswith("#")]
+    return list(csv.reader(lines, delimiter=sep))
+
+
+def _same_numbers(dot, comma):
+    """The decimal-comma table read back as a spreadsheet in such a locale would (fields
+    split at ';', then ',' read as the decimal point) equals the ordinary one: the same
+    headers, the same words, the same numbers."""
+    assert dot[0] == comma[0]
+    assert len(dot) == len(comma) > 1
+    assert any("," in cell for row in comma[1:] for cell in row)
+    for a, b in zip(dot[1:], comma[1:]):
+        assert len(a) == len(b)
+        for x, y in zip(a, b):
+            try:
+                number = float(x)
+            except ValueError:
+                assert y == x  # words stay as they are
+                continue
+            assert float(y.replace(",", ".")) == number
+
+
+def test_decimal_comma_sweep_table_reads_back_in_a_decimal_comma_locale(tmp_path):
+    scenario = tmp_path / "vent.yaml"
+    scenario.write_text(VENT)
+    for name, extra in (("dot", []), ("comma", ["--decimal-comma"])):
+        assert main(["sweep", str(scenario), "--vary", "links.vent.diameter=4 mm, 5.5 mm",
+                     "--out", str(tmp_path / name), "--no-plots", "--quiet", "--workers", "1",
+                     *extra]) == 0
+    dot = _csv_rows(tmp_path / "dot" / "sweep.csv", ",")
+    comma = _csv_rows(tmp_path / "comma" / "sweep.csv", ";")
+    _same_numbers(dot, comma)
+    assert [r[1] for r in comma[1:]] == ["4 mm", "5.5 mm"]  # values as given, untouched
+
+
+def test_decimal_comma_find_table_reads_back_in_a_decimal_comma_locale(tmp_path):
+    scenario = tmp_path / "vent.yaml"
+    scenario.write_text(VENT)
+    for name, extra in (("dot", []), ("comma", ["--decimal-comma"])):
+        assert main(["find", str(scenario), "--vary", "links.vent.diameter=2 mm:10 mm",
+                     "--smallest", "--meet", "tank.min_pressure <= 9.5 barg", "--tolerance",
+                     "2 %", "--out", str(tmp_path / name), "--no-plots", "--no-run",
+                     "--quiet", "--workers", "1", *extra]) == 0
+    dot = _csv_rows(tmp_path / "dot" / "cases.csv", ",")
+    comma = _csv_rows(tmp_path / "comma" / "cases.csv", ";")
+    _same_numbers(dot, comma)

@@ -191,6 +191,38 @@ def test_report_carries_the_caution_at_top_and_end(blowdown_html):
     assert blowdown_html.index('id="caution-end"') > blowdown_html.index('id="sign-off"')
 
 
+BODY = ["job", "inputs", "model", "summary", "limits", "plots", "checks", "software",
+        "sign-off"]
+APPENDICES = ["inputs-given", "inputs-used", "events-all", "plots-each"]
+
+
+def section_order(text: str) -> list[str]:
+    """The ids of the report's parts in the order the page holds them."""
+    wanted = set(BODY + APPENDICES + ["caution-end", "relief-sizing"])
+    return [i for i in re.findall(r'<(?:section|div|header|footer|aside)\b[^>]*\bid="([^"]+)"',
+                                  text) if i in wanted]
+
+
+def test_appendices_follow_the_body_and_the_sign_off(blowdown_html, relief_report):
+    """The scenario echo, the values as used, every event and the plots of each quantity
+    come after the body and its sign-off, lettered, before the closing caution."""
+    out, _, _ = relief_report
+    relief_html = (out / "report.html").read_text(encoding="utf-8")
+    for text, appendices in ((blowdown_html, ["inputs-given", "inputs-used", "plots-each"]),
+                             (relief_html, APPENDICES)):  # the relief run logs > 12 events
+        order = section_order(text)
+        assert [i for i in order if i in BODY] == BODY
+        assert [i for i in order if i in APPENDICES] == appendices
+        last_body = order.index("sign-off")
+        assert all(order.index(a) > last_body for a in appendices)
+        assert order[-1] == "caution-end"
+        tree = Tree(text)
+        for letter, a in zip("ABCD", appendices):
+            assert words(tree.by_id(a).find("h2")[0].text()).startswith(f"Appendix {letter}"), a
+    events = Tree(relief_html).by_id("events-all").find("tbody")[0].find("tr")
+    assert len(events) > 12  # all of them, where the body lists the first 12
+
+
 def test_limits_table_lists_each_limit_and_marks_crossed_rows_in_words(blowdown_html,
                                                                       blowdown_result):
     _, result = blowdown_result
@@ -598,6 +630,42 @@ def test_relief_report_and_inputs_state_the_values_simulated(relief_report):
     assert "orifice_letter: G" in tree.by_id("inputs-given").find("pre")[0].text()
 
 
+def test_relief_report_software_section_lists_what_the_command_changed(relief_report,
+                                                                        tmp_path):
+    """--set gave D, the sizing chose G: the report says G ran, D only as given, the
+    areas in mm2, and the software section names both changes so the run can be
+    repeated from it; repeated that way, the run is the confirming run."""
+    out, sizing, tree = relief_report
+    # API Std 526 effective areas: D 0.110 in2, G 0.503 in2; 1 in2 = 645.16 mm2 (exact)
+    d_mm2, g_mm2 = 0.110 * 645.16, 0.503 * 645.16
+    assert sizing["letter"] == "G"
+    rows = [[words(td.text()) for td in tr.find("td")]
+            for tr in tree.by_id("inputs-changed").find("tbody")[0].find("tr")]
+    letter = [r for r in rows if r[0] == "links.psv.orifice_letter"]
+    assert len(letter) == 1  # no row saying D was simulated
+    assert letter[0][1].startswith("G ") and "was D, given with --set" in letter[0][1]
+    area = next(r for r in rows if r[0] == "links.psv.area")
+    assert area[1] == f"{g_mm2:.6g} mm2 (was {d_mm2:.6g} mm2)"
+    assert "e-0" not in words(tree.by_id("inputs-changed").text())  # nothing left in SI
+    head = words(tree.by_id("title-block").text())
+    assert f"links.psv.area = {g_mm2:.6g} mm2" in head
+    software = words(tree.by_id("software").text())
+    assert "links.psv.orifice_letter = G by cvsim relief" in software
+    assert f"links.psv.area = {g_mm2:.6g} mm2 by cvsim relief" in software
+    assert "links.psv.orifice_letter = D (given with --set; not simulated" in software
+    repeat = words(tree.by_id("repeat").find("code")[0].text())
+    assert repeat.endswith("--set links.psv.orifice_letter=G")
+    # the command the report gives repeats the confirming run point for point
+    args = repeat.split()[1:]
+    rerun = tmp_path / "rerun"
+    assert main(args + ["--out", str(rerun), "--no-plots", "--quiet"]) == 0
+
+    def table(folder):
+        return [ln for ln in (folder / "history.csv").read_text().splitlines()
+                if not ln.startswith("#")]
+    assert table(rerun) == table(out)
+
+
 # ------------------------------------------------------------ study reports
 
 def test_find_report_states_the_answer_in_the_title_block_and_job(tmp_path):
@@ -660,3 +728,121 @@ def test_chromium_prints_the_wide_table_of_cases_on_landscape_pages(tmp_path):
     sizes = {(round(float(w)), round(float(h))) for w, h in boxes}
     # A4 is 595 x 842 pt (ISO 216: 210 x 297 mm); the cases on landscape pages
     assert (842, 595) in sizes and (595, 842) in sizes
+
+
+# ------------------------------------------------------- the sweep's answer, its units
+
+@pytest.fixture(scope="module")
+def separator_sweep(tmp_path_factory):
+    """`cvsim sweep --report` over two orifices of the separator demo (15 min target:
+    14 mm is too slow, 20 mm meets it), with the axes of sweep.png kept."""
+    import cvsim.study.plot as study_plot
+    out = tmp_path_factory.mktemp("sweep") / "sep"
+    drawn = []
+    keep = study_plot.save
+
+    def save(fig, path):
+        drawn.append([(ax.get_ylabel(), [list(map(float, line.get_ydata()))
+                                         for line in ax.get_lines()])
+                      for ax in fig.axes if ax.get_visible()])
+        keep(fig, path)
+    with pytest.MonkeyPatch.context() as mp:
+        mp.setattr(study_plot, "save", save)
+        code = main(["sweep", str(ROOT / "scenarios" / "separator-depressuring.yaml"),
+                     "--vary", "links.orifice.diameter=14 mm, 20 mm", "--out", str(out),
+                     "--report", "--quiet", "--workers", "1"])
+    assert code == 0
+    import json
+    data = json.loads((out / "sweep.json").read_text())
+    return out, data, Tree((out / "report.html").read_text(encoding="utf-8")), drawn[0]
+
+
+def test_sweep_report_states_the_answer_in_the_title_block_and_job(separator_sweep):
+    out, data, tree, _ = separator_sweep
+    rows = data["rows"]
+    # which case meets the depressuring target, from the case's own numbers: the time to
+    # 6.9 bar g against the 15 min (900 s) the scenario states
+    assert [r["separator.limit.depressure.actual"] <= 900.0 for r in rows] == [False, True]
+    assert all(r["separator.limit.design_pressure.met"] and
+               r["separator.limit.min_metal_temperature.met"] for r in rows)
+    head = words(tree.by_id("title-block").text())
+    job = words(tree.by_id("answer").text())
+    for where in (head, job):
+        assert "Answer1 of 2 cases meet every design limit the scenario states" in where
+        assert ("links.orifice.diameter meeting every limitsmallest 20 mm (case 2), "
+                "largest 20 mm (case 2)") in where
+        assert ("Binding limitseparator.limit.depressure (depressured to 6.9 bar g within "
+                "15 min), crossed in 1 of 2 cases (case 1: links.orifice.diameter = 14 mm)"
+                in where)
+    notes = words(tree.by_id("notes").text())
+    assert "2 cases: 0 completed, 2 stopped at a stop condition, 0 failed" in notes
+    assert "{" not in notes and "'" not in notes  # words, not a Python dict
+
+
+def test_sweep_answer_without_a_crossing_names_the_least_margin():
+    """No case crosses: the binding limit is the one closest to it, relative to its limit."""
+    from cvsim.study.report import sweep_answer
+    from cvsim.study.sweep import parse_values
+    from cvsim.study.table import Column, SweepResult
+    p = parse_values("links.vent.diameter", "8 mm, 10 mm")
+    cols = [Column("case", "", "case"), Column(p.key, "", "parameter"),
+            Column("status", "", "status")]
+    for name, unit in (("tank.limit.design_pressure", "Pa"), ("tank.limit.depressure", "s")):
+        cols += [Column(f"{name}.met", "", "limit-met", "words: met (1) or crossed (0)"),
+                 Column(f"{name}.limit", unit, "limit-value"),
+                 Column(f"{name}.margin", unit, "limit-margin", difference=True)]
+    rows = [{"case": i, p.key: d, "status": "stopped",
+             "tank.limit.design_pressure.met": True, "tank.limit.design_pressure.limit": 11e5,
+             "tank.limit.design_pressure.margin": m_p,
+             "tank.limit.depressure.met": True, "tank.limit.depressure.limit": 900.0,
+             "tank.limit.depressure.margin": m_t}
+            for i, d, m_p, m_t in ((1, "8 mm", 5e5, 30.0), (2, "10 mm", 4e5, 200.0))]
+    result = SweepResult("t", "t.yaml", [p], cols, rows, 101325.0)
+    answer = dict(sweep_answer(result))
+    assert answer["Answer"] == "2 of 2 cases meet every design limit the scenario states"
+    assert answer["links.vent.diameter meeting every limit"].startswith(
+        "smallest 8 mm (case 1), largest 10 mm (case 2)")
+    # 30 s of 900 s (3.3 %) is closer than 4 bar of 11 bar a (36 %); times in the study's
+    # unit, min (its longest time, 900 s, is over 600 s)
+    assert answer["Binding limit"] == (
+        "none is crossed; the least margin is that of tank.limit.depressure (words; limit "
+        "15 min), +0.5 min in case 1: links.vent.diameter = 8 mm")
+
+
+def test_study_times_are_in_one_unit_in_the_plot_text_table_report_and_csv(separator_sweep):
+    """The depressuring time is shown in the study's unit everywhere: the run's rule
+    (cvsim.display.time_unit) applied to the longest time of the study, here min."""
+    import csv
+    from cvsim.display import time_unit
+    out, data, tree, axes = separator_sweep
+    rows = data["rows"]
+    actual = [r["separator.limit.depressure.actual"] for r in rows]
+    longest = max(v for r in rows for c in data["columns"] if c["unit"] == "s"
+                  and c["kind"] != "parameter-si" for v in [r[c["name"]]]
+                  if isinstance(v, float))
+    unit, size = time_unit(longest)
+    assert unit == "min" and size == 60.0  # runs of 11 to 23 min
+    shown = [v / 60.0 for v in actual]
+    name = f"separator.limit.depressure.actual [{unit}]"
+    # sweep.csv
+    lines = [ln for ln in (out / "sweep.csv").read_text().splitlines() if not ln.startswith("#")]
+    table = list(csv.DictReader(lines))
+    assert [float(r[name]) for r in table] == pytest.approx(shown, rel=1e-9)
+    assert "separator.limit.depressure.actual [s]" not in lines[0]
+    assert not [h for h in lines[0].split(",") if h.endswith("[s]")]  # every time in min
+    # sweep.txt
+    text = (out / "sweep.txt").read_text().splitlines()
+    at = next(i for i, ln in enumerate(text) if ln.startswith("case "))
+    assert name in text[at]
+    for line, v in zip(text[at + 1:at + 3], shown):
+        assert f"{v:.6g}" in line.split()
+    # the report's table of cases
+    cases = tree.by_id("cases")
+    assert name in words(cases.text()).replace("<wbr>", "")
+    col = [words(th.text()) for th in cases.find("thead")[0].find("th")].index(name)
+    cells = [words(tr.find("td")[col].text()) for tr in cases.find("tbody")[0].find("tr")]
+    assert [float(c) for c in cells] == pytest.approx(shown, rel=1e-4)
+    # sweep.png: a panel with its time axis in min draws these values
+    panels = [lines for label, lines in axes if label == f"Time [{unit}]"]
+    assert panels and not [label for label, _ in axes if label == "Time [s]"]
+    assert any(ys and ys[0] == pytest.approx(shown, rel=1e-9) for ys in panels)

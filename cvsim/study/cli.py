@@ -122,9 +122,11 @@ def add_study_commands(sub) -> None:
 
 def cmd_sweep(args) -> int:
     from ..cliargs import parse_overrides
+    from ..display import duration
     from ..errors import Terminated
     from ..outfolder import claim
     from .sweep import Interrupted, check_distinct, parse_vary, sweep
+    from .table import NOT_RUN
     params = [parse_vary(v) for v in args.vary]
     check_distinct(params)
     limit = read_time_limit(args.case_time_limit)
@@ -145,15 +147,22 @@ def cmd_sweep(args) -> int:
         result.write(out, plots=not args.no_plots)
         if args.report:
             from ..scenario import load_scenario
-            from .report import write_study_report
+            from .report import sweep_answer, write_study_report
             scenario = load_scenario(args.scenario, overrides=parse_overrides(args.overrides))
+            c = result.counts()
             notes = ([result.partial + "."] if result.partial else []) + [
-                f"{len(result.rows)} cases: {result.counts()}; ran on {result.ran_on} in "
-                f"{result.wall_time:.3g} s."]
+                f"{len(result.rows)} cases: {c['completed']} completed, {c['stopped']} "
+                f"stopped at a stop condition, {c['failed']} failed"
+                + (f", {c[NOT_RUN]} not run" if c.get(NOT_RUN) else "")
+                + f"; ran on {result.ran_on} in {duration(result.wall_time)}.",
+                "A case meets every limit when each design limit the scenario states is met "
+                "in its run; the smallest and largest values that do are among the values "
+                "swept (cvsim find narrows a crossing down)."]
             with folder.adding("report.html") as path:
                 write_study_report(path, result, scenario,
                                    title=f"Sweep: {result.title}", notes=notes,
-                                   images=[p for k, p in result.files.items() if k == "plot"])
+                                   images=[p for k, p in result.files.items() if k == "plot"],
+                                   answer=sweep_answer(result))
     if not args.quiet:
         print(result.text())
     if stopped is not None:
@@ -246,11 +255,16 @@ def cmd_outcomes(args) -> int:
     outcomes = outcome_list(scenario.network)
     w = max(len(o.name) for o in outcomes)
     print(f"Outcomes of {args.scenario} (units as in sweep.csv):")
+    # times and flows take the study's units, known once it has run
+    study = {"s": "s|min|h", "kg/s": "kg/s|g/s|kg/h"}
     for o in outcomes:
-        unit = Column(o.name, o.unit, o.kind, difference=o.difference).shown()[0]
+        unit = study.get(o.unit) or Column(o.name, o.unit, o.kind,
+                                           difference=o.difference).shown()[0]
         print(f"  {o.name:<{w}}  {('[' + unit + ']') if unit else '':<9} {o.text}")
     print("Limit checks of walls (when modelled) add names such as "
           "<vessel>.limit.max_temperature.<wall>.")
+    print("Times and mass flows are in the study's units: min over 600 s, h over 3 h; "
+          "kg/s from 1 kg/s, g/s from 1 g/s, else kg/h (as a run chooses them).")
     return 0
 
 

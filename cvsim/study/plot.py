@@ -112,8 +112,8 @@ def _groups(result) -> list[tuple[str, list[int]]]:
 
 
 def _scale(result, name: str) -> tuple[str, object]:
-    """(unit shown, SI -> shown) for a column; times in s, min or h by size."""
-    return result._readable(result.column(name)).shown()
+    """(unit shown, SI -> shown) for a column; times and flows in the study's units."""
+    return result.shown_column(result.column(name)).shown()
 
 
 def _panel(ax, result, name, axis: _XAxis, groups, mark, required=()):

@@ -70,7 +70,7 @@ class Column:
 
 @dataclass(frozen=True)
 class _Scaled(Column):
-    """A column shown in another unit than its files use (times in min)."""
+    """A column shown in another unit than its SI values (times in min, flows in g/s)."""
 
     unit_shown: str = ""
     size: float = 1.0
@@ -276,14 +276,23 @@ class SweepResult:
             self.column(name)
         return list(outcomes)
 
-    # -------------------------------------------------------------- text
-    def _readable(self, col: Column) -> Column:
-        """A time column in min or h when its values are long (text and plots)."""
-        if col.unit != "s":
+    # ------------------------------------------------------------- units
+    def units(self):
+        """The study's time and mass-flow units (:class:`cvsim.display.RunUnits`): the
+        rule of a run's outputs (:meth:`RunUnits.of`) applied to the longest time and
+        the largest mass flow in any case. Every file of the study (table, text, plot,
+        report) shows its times and flows in these units."""
+        from ..display import RunUnits
+        longest = _largest(self, "s")
+        return RunUnits.of(longest, _largest(self, "kg/s"))
+
+    def shown_column(self, col: Column) -> Column:
+        """``col`` as every file of the study shows it: times and mass flows in the
+        study's :meth:`units` (the parameters' SI values stay SI)."""
+        if col.kind == "parameter-si" or col.unit not in ("s", "kg/s"):
             return col
-        from ..display import time_unit
-        values = [v for v in self.values(col.name) if isinstance(v, float) and math.isfinite(v)]
-        unit, size = time_unit(max(values, default=0.0))
+        u = self.units()
+        unit, size = (u.time, u.time_size) if col.unit == "s" else (u.flow, u.flow_size)
         return _Scaled(col.name, col.unit, col.kind, col.text, col.difference, unit, size)
 
     def text(self, outcomes: list[str] | None = None) -> str:
@@ -304,7 +313,7 @@ class SweepResult:
         if self.warnings:
             L += ["Warnings:"] + [f"  ! {w}" for w in self.warnings] + [""]
         cols = [self.column(p.key) for p in self.parameters]
-        cols += [self.column("status")] + [self._readable(self.column(x)) for x in names]
+        cols += [self.column("status")] + [self.shown_column(self.column(x)) for x in names]
         limit_cols = [x for x in self.columns if x.kind == "limit-met"]
         head = ["case"] + [x.header() for x in cols] + (["limits"] if limit_cols else [])
         body = []
@@ -331,8 +340,10 @@ class SweepResult:
                 err = r["error"]
                 err = err if len(err) <= ERROR_CHARS else err[:ERROR_CHARS - 1] + "…"
                 L.append(f"  case {r['case']} ({given}): {err}")
+        u = self.units()
         L += ["", "Units: pressures absolute (bar a), gauge = absolute - "
-              f"{self.atmosphere / 1e5:.5g} bar; all columns in sweep.csv.",
+              f"{self.atmosphere / 1e5:.5g} bar; times in {u.time}, mass flows in {u.flow} "
+              "(in every file of the study); all columns in sweep.csv.",
               "", "CAUTION: " + CAUTION]
         return "\n".join(L) + "\n"
 
@@ -374,13 +385,17 @@ def write_table_csv(result: SweepResult, path: Path) -> Path:
     with open(path, "w", newline="", encoding="utf-8") as fh:
         for line in header_lines(result.title, result.provenance, status, result.atmosphere):
             fh.write(f"# {line}\n")
+        u = result.units()
+        fh.write(f"# times in {u.time}, mass flows in {u.flow} (the study's units: from its "
+                 "longest time and largest flow, as a run chooses them)\n")
         comma = getattr(result, "decimal_comma", False)
         if comma:
             fh.write("# fields separated by ';', decimal comma\n")
         w = csv.writer(fh, delimiter=";" if comma else ",")
-        w.writerow([col.header() for col in result.columns])
+        columns = [result.shown_column(col) for col in result.columns]
+        w.writerow([col.header() for col in columns])
         for r in result.rows:
-            cells = [cell_text(col, r.get(col.name), 10) for col in result.columns]
+            cells = [cell_text(col, r.get(col.name), 10) for col in columns]
             w.writerow([_comma(c) for c in cells] if comma else cells)
     return path
 
@@ -432,6 +447,20 @@ def _distinct(result: SweepResult, names: list[str]) -> list[str]:
         values = [r.get(name) for r in result.rows]
         if not any(values == [r.get(o) for r in result.rows] for o in out):
             out.append(name)
+    return out
+
+
+def _largest(result: SweepResult, unit: str) -> float:
+    """The largest magnitude of any case's value in the columns of SI ``unit`` (the
+    parameters' own values aside); 0 when there is none."""
+    out = 0.0
+    for c in result.columns:
+        if c.unit != unit or c.kind == "parameter-si":
+            continue
+        for r in result.rows:
+            v = r.get(c.name)
+            if isinstance(v, (int, float)) and not isinstance(v, bool) and math.isfinite(v):
+                out = max(out, abs(float(v)))
     return out
 
 

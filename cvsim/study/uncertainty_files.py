@@ -24,16 +24,12 @@ TEXT_INPUTS = 5
 
 def units_of(result, name: str) -> tuple[str, object, str, object]:
     """(unit shown, SI -> shown, unit of a difference, SI difference -> shown)
-    of an outcome; long times in min or h."""
-    from ..display import time_unit
+    of an outcome; times and mass flows in the study's units, as in cases.csv
+    (:meth:`cvsim.study.table.SweepResult.units`)."""
     col = result.table.column(name)
-    unit, conv = col.shown()
-    if col.unit == "s":
-        s = result.spreads.get(name)
-        big = max((abs(v) for v in (s.lowest, s.highest) if math.isfinite(v)), default=0.0) \
-            if s else 0.0
-        unit, size = time_unit(big)
-        return unit, (lambda v: v / size), unit, (lambda v: v / size)
+    unit, conv = result.table.shown_column(col).shown()
+    if col.unit in ("s", "kg/s"):
+        return unit, conv, unit, conv
     if col.unit == "K":
         return unit, conv, "K", (lambda v: v)
     if col.unit == "Pa":
