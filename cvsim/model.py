@@ -61,6 +61,7 @@ from .flow.relief import ReliefValveDevice
 from .engines import fluid_for
 from .outlets import drawn_state
 from .heat.definitions import GasFire, Wall
+from .heat.level import forget_levels
 from .heat.loads import AmbientExchangeTerm, HeatLoadTerm
 from .heat.walls import GasFireTerm, WallTerm
 from .heat.zoned_wall import ZonedWallTerm
@@ -110,6 +111,9 @@ class Model:
 
     def __init__(self, network: nw.Network):
         self.network = network
+        # a run must not depend on what ran before it in the same process: the shapes'
+        # level solves are warm-started from the last level found, so start them afresh
+        forget_levels()
         self.fluid = fluid_for(network.fluid)
         #: a mixture run: compositions of the vessels and reservoirs (else None)
         self.mix = None

@@ -543,6 +543,13 @@ def tank(kind: str, D: float, L: float = 0.0, heads: str = "flat",
     return Tank(kind, D, L, heads, orientation, offset)
 
 
+def forget_levels() -> None:
+    """Start every shape's level solve afresh (:func:`tank` is cached, and each
+    :class:`Tank` warm-starts from the last level it found): called when a model is
+    built, so that a run gives the same numbers whatever ran before it in the process."""
+    tank.cache_clear()
+
+
 # ------------------------------------------------------------ pure functions
 
 
@@ -618,5 +625,5 @@ def outside_level(h: float, kind: str, D: float, L: float = 0.0, heads: str = "f
     return dep + offset + t.L + (h - dep - t.L) * (dep + offset) / dep
 
 
-__all__ = ["GAUSS_POINTS", "LEVEL_RTOL", "Tank", "area_below", "height_from_volume",
+__all__ = ["GAUSS_POINTS", "LEVEL_RTOL", "Tank", "forget_levels", "area_below", "height_from_volume",
            "outside_level", "tank", "volume_below"]
