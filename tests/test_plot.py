@@ -219,6 +219,84 @@ def test_a_met_limit_has_no_crossing_mark():
     assert not [k for k in lines if k.startswith("CROSSED")]
 
 
+def filled(max_c=60.0, design_g=50e5):
+    """A receiver filled from a 200 bar g supply: the gas heats up past ``max_c`` and the
+    pressure passes the allowed pressure (``design_g`` + 10 %); a bursting disc rated
+    at 150 bar g (above the pressure reached, so it stays shut) protects it."""
+    limits = nw.VesselLimits(design_pressure=ATM + design_g, accumulation=0.10,
+                             accumulation_case="single-device",
+                             max_temperature=273.15 + max_c)
+    return run(nw.Network(
+        title="Filled receiver", fluid=NITROGEN,
+        vessels=(nw.Vessel("receiver", nw.Geometry(1.0), nw.InitialState(ATM + 20e5, 288.15),
+                           limits=limits),),
+        reservoirs=(nw.Reservoir("supply", Constant(ATM + 200e5), Constant(288.15)),
+                    nw.Reservoir("atmosphere", Constant(ATM), Constant(288.15))),
+        links=(nw.Link("fill", "supply", "receiver",
+                       nw.Orifice(math.pi * 0.01 ** 2 / 4, 0.84)),
+               nw.Link("disc", "receiver", "atmosphere",
+                       nw.BurstingDisc(area=1e-4, discharge_coefficient=0.62,
+                                       burst_pressure=ATM + 150e5))),
+        run=nw.RunSettings(end_time=60.0, record_every=1.0)))
+
+
+def test_temperature_panel_draws_the_highest_allowed_temperature_and_marks_the_crossing():
+    from cvsim.plot import _temperature
+    res = filled()
+    lines, _, (lo, hi) = drawn(_temperature, res)
+    assert lines["highest allowed 60.0 °C"][1][0] == pytest.approx(60.0)
+    assert lo <= 60.0 <= hi
+    T, when = res.extreme("receiver.temperature", "max")
+    assert T > 273.15 + 60.0  # the gas does cross it
+    (label,) = [k for k in lines if k.startswith("CROSSED")]
+    assert label == f"CROSSED: highest allowed (gas highest {T - 273.15:.1f} °C)"
+    (t,), (y,) = lines[label]
+    assert (t, y) == (pytest.approx(when), pytest.approx(T - 273.15))
+
+
+def test_pressure_panel_draws_the_bursting_disc_and_marks_the_allowed_pressure_crossed():
+    from cvsim.plot import _pressure
+    res = filled()
+    lines, _, (lo, hi) = drawn(_pressure, res)
+    disc = lines["disc bursts at 150 bar g"][1]
+    assert disc[0] == disc[-1] == pytest.approx((ATM + 150e5) / 1e5)
+    assert hi >= (ATM + 150e5) / 1e5  # in view, though the pressure stays below it
+    (check,) = [c for c in res.limits if c.key == "design_pressure"]
+    # allowed = MAWP + 10 % of the gauge design pressure, 55 bar g
+    # source: ASME BPVC VIII-1 UG-125(c), 10 % accumulation for a single device
+    assert check.limit == pytest.approx(ATM + 55e5) and check.crossed
+    (label,) = [k for k in lines if k.startswith("CROSSED")]
+    assert label == "CROSSED: allowed pressure"
+    (t,), (p,) = lines[label]
+    P, when = res.extreme("receiver.pressure", "max")
+    assert (t, p) == (pytest.approx(when), pytest.approx(P / 1e5))
+
+
+def test_pressure_panel_draws_the_depressuring_deadline_as_a_vertical_line():
+    from cvsim.plot import LIMIT_COLOUR, _pressure, figure
+    res = limited_vent(within=60.0)
+    view = _View(res)
+    with figure((10.0, 6.0), "t", "s") as fig:
+        ax = fig.subplots()
+        _pressure(ax, view, overview=False)
+        upright = [ln for ln in ax.get_lines() if ln.get_color() == LIMIT_COLOUR
+                   and list(ln.get_ydata()) == [0, 1]]
+        assert [list(ln.get_xdata()) for ln in upright] == [[60.0, 60.0]]
+        # the target line ends at the deadline
+        target = next(ln for ln in ax.get_lines() if ln.get_label().startswith("depressure"))
+        assert max(target.get_xdata()) == pytest.approx(60.0)
+
+
+def test_a_deadline_past_the_end_of_the_run_has_no_vertical_line():
+    from cvsim.plot import LIMIT_COLOUR, _pressure, figure
+    res = limited_vent(within=3600.0)
+    with figure((10.0, 6.0), "t", "s") as fig:
+        ax = fig.subplots()
+        _pressure(ax, _View(res), overview=False)
+        assert not [ln for ln in ax.get_lines() if ln.get_color() == LIMIT_COLOUR
+                    and list(ln.get_ydata()) == [0, 1]]
+
+
 def test_the_stop_that_ends_a_run_gets_a_line_but_no_text():
     from cvsim.plot import _pressure
     res = vent()
