@@ -297,6 +297,72 @@ def test_a_deadline_past_the_end_of_the_run_has_no_vertical_line():
                     and list(ln.get_ydata()) == [0, 1]]
 
 
+def pens(ax) -> list:
+    """(colour, dash pattern) of every drawn line of a panel (markers alone left out)."""
+    from matplotlib.colors import to_hex
+    return [(to_hex(ln.get_color()), repr(ln._unscaled_dash_pattern)) for ln in ax.get_lines()
+            if ln.get_linestyle() not in ("None", "none", "")]
+
+
+#: the temperatures a vessel with separated zones and a wetted and an unwetted wall
+#: records (besides its gas): each made distinct, so that none joins another's label
+ZONED = ["wall.wetted.inner_temperature", "wall.wetted.outer_temperature",
+         "wall.unwetted.inner_temperature", "wall.unwetted.outer_temperature",
+         "liquid_temperature", "interface_temperature"]
+
+
+def test_every_temperature_line_of_a_zoned_vessel_has_a_pen_of_its_own():
+    from cvsim.plot import _temperature, figure
+    res = limited_vent()
+    res = dataclasses.replace(res, network=dataclasses.replace(
+        res.network, vessels=tuple(dataclasses.replace(v, limits=dataclasses.replace(
+            v.limits, max_temperature=273.15 + 60.0)) for v in res.network.vessels)))
+    for k, column in enumerate(ZONED):
+        res = with_column(res, f"receiver.{column}", "K", "wall", res["receiver.temperature"]
+                          + 5.0 * (k + 1))
+    view = _View(res)
+    assert len(view.extra_temperatures["receiver"]) == len(ZONED)
+    with figure((10.0, 6.0), "t", "s") as fig:
+        ax = fig.subplots()
+        _temperature(ax, view, overview=False)
+        drawn_pens = pens(ax)
+        by_label = dict(zip([ln.get_label() for ln in ax.get_lines()
+                             if ln.get_linestyle() not in ("None",)], drawn_pens))
+    assert len(drawn_pens) == 1 + len(ZONED) + 2  # gas, the six, MDMT and highest allowed
+    assert len(set(drawn_pens)) == len(drawn_pens)
+    # one vessel: a wall part's two surfaces share a colour, the styles tell them apart
+    inner = by_label["receiver wall wetted, inside surface"]
+    outer = by_label["receiver wall wetted, outside surface"]
+    assert inner[0] == outer[0] and inner[1] != outer[1]
+    assert by_label["receiver, liquid"][0] != by_label["receiver, interface"][0]
+
+
+def test_temperature_lines_of_several_vessels_keep_their_vessel_colour_and_differ():
+    from cvsim.plot import _temperature, figure
+    res = run(nw.Network(
+        title="Two vessels", fluid=NITROGEN,
+        vessels=(nw.Vessel("bank", nw.Geometry(1.0), nw.InitialState(200e5, 288.15)),
+                 nw.Vessel("cylinder", nw.Geometry(0.5), nw.InitialState(20e5, 288.15))),
+        links=(nw.Link("fill", "bank", "cylinder", nw.Orifice(math.pi * 0.002 ** 2 / 4,
+                                                               0.84)),),
+        run=nw.RunSettings(end_time=10.0, record_every=1.0)))
+    for v in ("bank", "cylinder"):
+        for k, column in enumerate(ZONED):
+            res = with_column(res, f"{v}.{column}", "K", "wall",
+                              res[f"{v}.temperature"] + 3.0 * (k + 1))
+    view = _View(res)
+    with figure((10.0, 6.0), "t", "s") as fig:
+        ax = fig.subplots()
+        _temperature(ax, view, overview=False)
+        drawn_pens = pens(ax)
+        colours = {ln.get_label().split(" ")[0].rstrip(","): ln.get_color()
+                   for ln in ax.get_lines()}
+    assert len(drawn_pens) == 2 * (1 + len(ZONED))
+    assert len(set(drawn_pens)) == len(drawn_pens)
+    assert colours["bank"] == view.colour["bank"]
+    assert colours["cylinder"] == view.colour["cylinder"]
+
+
 def test_the_stop_that_ends_a_run_gets_a_line_but_no_text():
     from cvsim.plot import _pressure
     res = vent()
