@@ -157,23 +157,36 @@ def plot_run(result: Result, folder: Path, only=None) -> list[Path]:
 def _draw_overview(view: _View, panels, path: Path) -> Path:
     """The overview holds the four quantities and the openings; walls, levels, phases
     and the rupture screening have their own pages."""
-    overview = [p for p in panels if p[0] not in ("wall", "level", "phases", "rupture")]
     with _figure(OVERVIEW_SIZE, view) as fig:
-        if view.openings:  # valve states under the four quantities, across the page
-            grid = fig.subplot_mosaic([["pressure", "temperature"], ["mass", "flow"],
-                                       ["opening", "opening"]], sharex=True,
-                                      height_ratios=[1.0, 1.0, 0.7])
-            axes = [grid[name] for name, _ in overview]
-            bottom = [grid["opening"]]
-        else:
-            axes = fig.subplots(2, 2, sharex=True).ravel()
-            bottom = axes[2:]
-        for ax, (_, draw) in zip(axes, overview):
-            draw(ax, view, overview=True)
-        for ax in bottom:
-            ax.set_xlabel(view.time_label)
+        _overview_panels(fig, view, panels)
         save(fig, path)
     return path
+
+
+def _overview_panels(fig, view: _View, panels) -> list:
+    """Draw the overview's panels on ``fig``; returns their axes, in drawing order.
+
+    Each column of quantities has its time scale under it: the lower row of the 2 x 2
+    grid; with a row of valve openings across the foot of the page (whose time axis
+    is wider, so it does not line up with the columns) the mass and flow panels keep
+    their own time ticks and label too."""
+    overview = [p for p in panels if p[0] not in ("wall", "level", "phases", "rupture")]
+    if view.openings:  # valve states under the four quantities, across the page
+        grid = fig.subplot_mosaic([["pressure", "temperature"], ["mass", "flow"],
+                                   ["opening", "opening"]], sharex=True,
+                                  height_ratios=[1.0, 1.0, 0.7])
+        axes = [grid[name] for name, _ in overview]
+        timed = [grid["mass"], grid["flow"], grid["opening"]]
+        for ax in timed:  # sharex hides the ticks of every panel but the lowest
+            ax.tick_params(axis="x", labelbottom=True)
+    else:
+        axes = list(fig.subplots(2, 2, sharex=True).ravel())
+        timed = axes[2:]
+    for ax, (_, draw) in zip(axes, overview):
+        draw(ax, view, overview=True)
+    for ax in timed:
+        ax.set_xlabel(view.time_label)
+    return axes
 
 
 def _draw_single(view: _View, name: str, draw, path: Path) -> Path:

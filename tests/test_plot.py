@@ -363,6 +363,37 @@ def test_temperature_lines_of_several_vessels_keep_their_vessel_colour_and_diffe
     assert colours["cylinder"] == view.colour["cylinder"]
 
 
+def test_the_overview_with_valve_openings_shows_the_time_under_each_column():
+    """With a row of openings across the foot of the page, the lower quantity panels
+    keep their time ticks and label (sharex would hide them), so the panels above them
+    - in the same column, with the same x extent - can be read too."""
+    from cvsim.plot import OVERVIEW_SIZE, _overview_panels, _pressure, _temperature, figure
+    full = vent()
+    res = with_column(full, "vent.opening", "-", "link", np.clip(full.time / 20.0, 0.0, 1.0))
+    view = _View(res)
+    assert view.openings == ["vent"]
+    with figure(OVERVIEW_SIZE, "t", "s") as fig:
+        panels = [("pressure", _pressure), ("temperature", _temperature)]
+        from cvsim.plot import _flow, _mass, _opening
+        panels += [("mass", _mass), ("flow", _flow), ("opening", _opening)]
+        axes = _overview_panels(fig, view, panels)
+        fig.canvas.draw()
+        shown = {ax.get_title(loc="left"): [t.get_text() for t in ax.get_xticklabels()
+                                            if t.get_visible() and t.get_text()]
+                 for ax in axes}
+        labels = {ax.get_title(loc="left"): ax.get_xlabel() for ax in axes}
+        where = {ax.get_title(loc="left"): ax.get_position() for ax in axes}
+    titles = list(shown)
+    pressure, temperature, mass, flow, opening = titles
+    for below in (mass, flow, opening):
+        assert len(shown[below]) >= 3, below
+        assert labels[below] == "Time [s]"
+    for above, below in ((pressure, mass), (temperature, flow)):
+        assert where[above].x0 == pytest.approx(where[below].x0, abs=1e-3)
+        assert where[above].x1 == pytest.approx(where[below].x1, abs=1e-3)
+        assert where[above].y0 > where[below].y1
+
+
 def test_the_stop_that_ends_a_run_gets_a_line_but_no_text():
     from cvsim.plot import _pressure
     res = vent()
