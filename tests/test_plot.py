@@ -257,7 +257,7 @@ def test_temperature_panel_draws_the_highest_allowed_temperature_and_marks_the_c
 def test_pressure_panel_draws_the_bursting_disc_and_marks_the_allowed_pressure_crossed():
     from cvsim.plot import _pressure
     res = filled()
-    lines, _, (lo, hi) = drawn(_pressure, res)
+    lines, _, (_, hi) = drawn(_pressure, res)
     disc = lines["disc bursts at 150 bar g"][1]
     assert disc[0] == disc[-1] == pytest.approx((ATM + 150e5) / 1e5)
     assert hi >= (ATM + 150e5) / 1e5  # in view, though the pressure stays below it
@@ -367,16 +367,15 @@ def test_the_overview_with_valve_openings_shows_the_time_under_each_column():
     """With a row of openings across the foot of the page, the lower quantity panels
     keep their time ticks and label (sharex would hide them), so the panels above them
     - in the same column, with the same x extent - can be read too."""
-    from cvsim.plot import OVERVIEW_SIZE, _overview_panels, _pressure, _temperature, figure
+    from cvsim import plot
     full = vent()
     res = with_column(full, "vent.opening", "-", "link", np.clip(full.time / 20.0, 0.0, 1.0))
     view = _View(res)
     assert view.openings == ["vent"]
-    with figure(OVERVIEW_SIZE, "t", "s") as fig:
-        panels = [("pressure", _pressure), ("temperature", _temperature)]
-        from cvsim.plot import _flow, _mass, _opening
-        panels += [("mass", _mass), ("flow", _flow), ("opening", _opening)]
-        axes = _overview_panels(fig, view, panels)
+    with plot.figure(plot.OVERVIEW_SIZE, "t", "s") as fig:
+        panels = [(name, getattr(plot, f"_{name}"))
+                  for name in ("pressure", "temperature", "mass", "flow", "opening")]
+        axes = plot._overview_panels(fig, view, panels)
         fig.canvas.draw()
         shown = {ax.get_title(loc="left"): [t.get_text() for t in ax.get_xticklabels()
                                             if t.get_visible() and t.get_text()]

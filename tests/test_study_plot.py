@@ -58,13 +58,15 @@ def drawn_sweep(result, monkeypatch, tmp_path) -> list[dict]:
             if not ax.get_visible():
                 continue
             legend = ax.get_legend()
-            seen.append(dict(
-                title=ax.get_title(loc="left"), xlabel=ax.get_xlabel(),
-                ys=[tuple(ln.get_ydata()) for ln in ax.get_lines() if ln.get_marker() == "o"],
-                xlabel_box=ax.xaxis.label.get_window_extent(), plot_box=ax.get_window_extent(),
-                legend_box=None if legend is None else legend.get_window_extent(),
-                legend_texts=[] if legend is None else [t.get_text()
-                                                        for t in legend.get_texts()]))
+            seen.append({
+                "title": ax.get_title(loc="left"), "xlabel": ax.get_xlabel(),
+                "ys": [tuple(ln.get_ydata()) for ln in ax.get_lines()
+                       if ln.get_marker() == "o"],
+                "xlabel_box": ax.xaxis.label.get_window_extent(),
+                "plot_box": ax.get_window_extent(),
+                "legend_box": None if legend is None else legend.get_window_extent(),
+                "legend_texts": [] if legend is None else [t.get_text()
+                                                           for t in legend.get_texts()]})
 
     monkeypatch.setattr(study_plot, "save", look)
     result.plot(tmp_path / "sweep.png")
@@ -130,8 +132,8 @@ def test_a_long_title_wraps_on_two_lines_and_is_cut_after_them():
     ("links.orifice.diameter", "Diameter of link 'orifice'"),
     ("vessels.drum.initial.temperature", "Initial temperature of vessel 'drum'"),
     ("reservoirs.supply.pressure", "Pressure of reservoir 'supply'"),
-    ("vessels.drum.heat.fire.environment_factor", "Heat fire environment factor of vessel "
-                                                  "'drum'"),
+    ("vessels.drum.heat.fire.environment_factor",
+     "Heat fire environment factor of vessel 'drum'"),
     ("run.end", "Run end"),
     ("run.stop_when[0].pressure_below", "Run stop when 0 pressure below"),
 ])
