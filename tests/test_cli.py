@@ -60,7 +60,9 @@ def test_every_set_example_in_the_readme_runs(line, tmp_path, capsys, monkeypatc
     args = shlex.split(line, comments=True)
     assert args[0] == "cvsim"
     monkeypatch.chdir(ROOT)
-    code = main(args[1:] + ["--out", str(tmp_path / "out"), "--no-plots", "--quiet"])
+    out = ["--out", str(tmp_path / "out")]
+    extra = {"check": [], "relief": out}.get(args[1], out + ["--no-plots", "--quiet"])
+    code = main(args[1:] + extra)
     assert code == 0, capsys.readouterr().err
 
 BROKEN = {
