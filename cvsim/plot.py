@@ -86,9 +86,10 @@ MASS_RATIO = 10.0
 LIMIT_COLOUR = "0.2"
 CROSSED_COLOUR = "#A00000"
 #: line styles of the limits: the design pressure (MAWP), the highest allowed pressure
-#: (MAWP + accumulation), relief set pressures, the depressuring target, temperatures
+#: (MAWP + accumulation), relief set pressures, the depressuring target, the MDMT and the
+#: highest allowed temperature
 LIMIT_DASH = {"mawp": (0, (4, 2)), "allowed": (0, (8, 2, 2, 2)), "set": (0, (1, 1.5)),
-              "target": (0, (6, 3)), "temperature": (0, (4, 2))}
+              "target": (0, (6, 3)), "temperature": (0, (4, 2)), "hot": (0, (8, 2, 2, 2))}
 
 
 # ---------------------------------------------------------------- the run
@@ -156,23 +157,36 @@ def plot_run(result: Result, folder: Path, only=None) -> list[Path]:
 def _draw_overview(view: _View, panels, path: Path) -> Path:
     """The overview holds the four quantities and the openings; walls, levels, phases
     and the rupture screening have their own pages."""
-    overview = [p for p in panels if p[0] not in ("wall", "level", "phases", "rupture")]
     with _figure(OVERVIEW_SIZE, view) as fig:
-        if view.openings:  # valve states under the four quantities, across the page
-            grid = fig.subplot_mosaic([["pressure", "temperature"], ["mass", "flow"],
-                                       ["opening", "opening"]], sharex=True,
-                                      height_ratios=[1.0, 1.0, 0.7])
-            axes = [grid[name] for name, _ in overview]
-            bottom = [grid["opening"]]
-        else:
-            axes = fig.subplots(2, 2, sharex=True).ravel()
-            bottom = axes[2:]
-        for ax, (_, draw) in zip(axes, overview):
-            draw(ax, view, overview=True)
-        for ax in bottom:
-            ax.set_xlabel(view.time_label)
+        _overview_panels(fig, view, panels)
         save(fig, path)
     return path
+
+
+def _overview_panels(fig, view: _View, panels) -> list:
+    """Draw the overview's panels on ``fig``; returns their axes, in drawing order.
+
+    Each column of quantities has its time scale under it: the lower row of the 2 x 2
+    grid; with a row of valve openings across the foot of the page (whose time axis
+    is wider, so it does not line up with the columns) the mass and flow panels keep
+    their own time ticks and label too."""
+    overview = [p for p in panels if p[0] not in ("wall", "level", "phases", "rupture")]
+    if view.openings:  # valve states under the four quantities, across the page
+        grid = fig.subplot_mosaic([["pressure", "temperature"], ["mass", "flow"],
+                                   ["opening", "opening"]], sharex=True,
+                                  height_ratios=[1.0, 1.0, 0.7])
+        axes = [grid[name] for name, _ in overview]
+        timed = [grid["mass"], grid["flow"], grid["opening"]]
+        for ax in timed:  # sharex hides the ticks of every panel but the lowest
+            ax.tick_params(axis="x", labelbottom=True)
+    else:
+        axes = list(fig.subplots(2, 2, sharex=True).ravel())
+        timed = axes[2:]
+    for ax, (_, draw) in zip(axes, overview):
+        draw(ax, view, overview=True)
+    for ax in timed:
+        ax.set_xlabel(view.time_label)
+    return axes
 
 
 def _draw_single(view: _View, name: str, draw, path: Path) -> Path:
@@ -428,8 +442,8 @@ def _temperature_limits(ax, view: _View):
             ys.append(y)
         if lim.max_temperature is not None:
             y = lim.max_temperature - ZERO_CELSIUS
-            _limit_line(ax, view, y, f"{who}highest allowed {y:.1f} °C",
-                        LIMIT_DASH["temperature"], "above")
+            _limit_line(ax, view, y, f"{who}highest allowed {y:.1f} °C", LIMIT_DASH["hot"],
+                        "above")
             ys.append(y)
         for c in view.checks:
             if (c.vessel == v and c.quantity == "temperature" and c.crossed
@@ -462,12 +476,56 @@ def temperature_label(vessel: str, column: str) -> str:
     return f"{head}, {words}" if words else head
 
 
+#: line styles of a vessel's temperatures other than the gas: a wall's inside surface
+#: dashed, its outside surface dotted, anything else (a zone, a node) dash-dot; then
+#: these others when a pen (colour and style) is taken already
+SURFACE_DASH = {"inner_temperature": DASHES[1], "outer_temperature": DASHES[2]}
+MORE_DASHES = ((0, (3, 1, 1, 1, 1, 1)), (0, (10, 3)), (0, (2, 3)), (0, (8, 2, 1, 2, 1, 2)))
+
+
+def _temperature_pens(view: _View) -> dict[str, tuple[str, object]]:
+    """(colour, line style) of every temperature line of the panel, by column, no two
+    the same: the gas in its vessel's colour and style. With one vessel, colour tells the
+    part (the wetted wall, the unwetted wall, the liquid, the interface) and style the
+    surface (inside dashed, outside dotted); with several, colour tells the vessel and
+    style each of its lines."""
+    pens: dict[str, tuple[str, object]] = {}
+    taken: set = set()
+    styles = [DASHES[1], DASHES[2], DASHES[3], *MORE_DASHES]
+
+    def take(column, colour, style):
+        order = [style] + [s for s in ["-", *styles] if s != style]
+        colours = [colour] + [c for c in COLOURS if c != colour]
+        pen = next(((c, s) for c in colours for s in order if (c, repr(s)) not in taken),
+                   (colour, style))  # every pen taken (49 lines in one panel)
+        taken.add((pen[0], repr(pen[1])))
+        pens[column] = pen
+
+    for v in view.vessels:
+        take(f"{v}.temperature", view.colour[v], view.dash[v])
+    single = len(view.vessels) == 1
+    part_colour: dict[str, str] = {}
+    spare = [c for c in COLOURS if c not in {view.colour[v] for v in view.vessels}]
+    for v in view.vessels:
+        for k, name in enumerate(view.extra_temperatures[v]):
+            term, _, what = name[len(v) + 1:].rpartition(".")
+            style = SURFACE_DASH.get(what, DASHES[3]) if single else styles[k % len(styles)]
+            if single:   # a wall part's surfaces share a colour; a zone has its own
+                part = term if what in SURFACE_DASH else name
+                colour = part_colour.setdefault(part, spare[len(part_colour) % len(spare)])
+            else:
+                colour = view.colour[v]
+            take(name, colour, style)
+    return pens
+
+
 def _temperature(ax, view: _View, overview: bool):
     r = view.result
+    pens = _temperature_pens(view)
     for v in view.vessels:
-        colour = view.colour[v]
+        colour, style = pens[f"{v}.temperature"]
         _line(ax, view, r[f"{v}.temperature"] - ZERO_CELSIUS, f"{v} gas", colour, lw=1.6,
-              ls=view.dash[v])
+              ls=style)
         drawn = []  # (values, line): a column equal to one drawn joins its label
         for name in view.extra_temperatures[v]:
             values = r[name]
@@ -477,9 +535,8 @@ def _temperature(ax, view: _View, overview: bool):
             if same is not None:
                 same.set_label(f"{same.get_label()} = {label.split(', ', 1)[-1]}")
                 continue
-            k = len(drawn)
-            _line(ax, view, values - ZERO_CELSIUS, label, colour,
-                  lw=1.1, ls=DASHES[1 + k % (len(DASHES) - 1)])
+            colour, style = pens[name]
+            _line(ax, view, values - ZERO_CELSIUS, label, colour, lw=1.1, ls=style)
             if not view.empty:
                 drawn.append((values, ax.get_lines()[-1]))
     ax.set_ylabel("Temperature [°C]")

@@ -11,7 +11,10 @@ control of every accepted step:
 * a step that produced non-finite values (a trial state outside the equation
   of state's range: LSODA does not reject those by itself) is thrown away
   and retried from the last good state with a smaller first step; when that
-  does not help the run ends with the reason and the last good time;
+  does not help the run ends with the reason and the last good time; so is a
+  step on which scipy's solver itself raised (an implicit method factorising a
+  Jacobian that holds NaN: "array must not contain infs or NaNs"), and the
+  message names ``run.solver`` (:data:`SOLVER_ERRORS`);
 * the histories hold every multiple of the recording interval (from the dense
   output), the start and end of every segment and every event, exactly; a
   finer history holds every accepted step (summaries take extremes from both).
@@ -37,7 +40,7 @@ import numpy as np
 from scipy.integrate import BDF, DOP853, LSODA, RK23, RK45, Radau
 from scipy.optimize import brentq
 
-from .errors import StateError
+from .errors import CvsimError, StateError
 from .model import Model
 
 METHODS = {"LSODA": LSODA, "BDF": BDF, "Radau": Radau, "RK45": RK45, "RK23": RK23,
@@ -58,6 +61,9 @@ MAX_SWITCHES = 20000
 #: RETRY_SHRINK times smaller
 MAX_RETRIES = 12
 RETRY_SHRINK = 8.0
+#: what scipy's solvers raise on values they cannot use (a NaN in a Jacobian, a singular
+#: matrix: numpy's LinAlgError is a ValueError); cvsim's own errors are not among them
+SOLVER_ERRORS = (ValueError, ArithmeticError)
 #: most rows of the recorded histories (history.csv): a run whose end time over
 #: its recording interval gives more is recorded at a coarser interval. 200 000
 #: rows of a one-vessel run are about 60 MB of CSV and a few seconds of writing.
@@ -202,6 +208,14 @@ def integrate(model: Model, progress=None) -> RawRun:
                            evals0, wall0)
         except StateError as exc:  # observing a recorded point
             return _finish(raw, "failed", str(exc), y, t, model, evals0, wall0)
+        except SOLVER_ERRORS as exc:  # scipy raised outside a step (starting, dense output)
+            if isinstance(exc, CvsimError):
+                raise
+            stats["rhs_calls"] += seg.rhs_calls
+            stats["jacobians"] += seg.jac_calls
+            return _finish(raw, "failed", f"the solver could not proceed past t = {t:.6g} s: "
+                           f"{_solver_raised(settings, exc)} {_last_good(seg, t, y)}", y, t,
+                           model, evals0, wall0)
         stats["rhs_calls"] += seg.rhs_calls
         stats["jacobians"] += seg.jac_calls
         if progress is not None:
@@ -265,11 +279,21 @@ def _integrate_segment(seg, settings, atol, y, raw, stats, dt_rec, deadline=None
             raise _TimeUp(t, y)
         t_old, y_old = t, y
         seg.last_error = None
-        msg = solver.step()
-        bad = solver.status == "failed" or not np.all(np.isfinite(solver.y))
+        raised = None
+        try:
+            msg = solver.step()
+        except SOLVER_ERRORS as exc:  # scipy gave up on this step's values
+            if isinstance(exc, CvsimError):
+                raise
+            raised, msg = exc, None
+        bad = (raised is not None or solver.status == "failed"
+               or not np.all(np.isfinite(solver.y)))
         if bad:
             why = str(seg.last_error) if seg.last_error is not None else (
                 msg or "non-finite values")
+            if raised is not None:  # the state error behind it, if any, and what scipy said
+                why = (f"{seg.last_error}; " if seg.last_error is not None else "") + \
+                    _solver_raised(settings, raised)
             retries += 1
             stats["rejected_retries"] += 1
             if retries > MAX_RETRIES:
@@ -309,6 +333,14 @@ def _integrate_segment(seg, settings, atol, y, raw, stats, dt_rec, deadline=None
         if solver.status == "finished":
             raw.rows.append(seg.observe(t, y))
             return t, y, None
+
+
+def _solver_raised(settings, exc: BaseException) -> str:
+    """Words for an error scipy's solver raised, naming the scenario keys that choose it."""
+    other = "LSODA (the default)" if settings.method != "LSODA" else "BDF or Radau"
+    return (f"scipy's {settings.method} solver stopped with {type(exc).__name__}: {exc} "
+            f"(run.solver.method {settings.method}; try run.solver.method {other}, or "
+            "other run.solver tolerances).")
 
 
 def _grid_between(t0, t1, dt):

@@ -32,6 +32,40 @@ def test_every_demo_scenario_runs_and_writes_its_files(scenario, tmp_path, capsy
     assert not list(tmp_path.glob(".*partial*"))
 
 
+
+def readme_examples(option: str) -> list[str]:
+    """The ``cvsim`` command lines of README.md's shell blocks that use ``option`` (lines
+    joined at a trailing backslash, comments left out)."""
+    text = (ROOT / "README.md").read_text(encoding="utf-8")
+    blocks = text.split("```sh")[1:]
+    lines = []
+    for block in blocks:
+        body = block.split("```")[0].replace("\\\n", " ")
+        lines += [ln.strip() for ln in body.splitlines() if ln.strip().startswith("cvsim ")]
+    return [ln for ln in lines if option in ln]
+
+
+SET_EXAMPLES = readme_examples("--set")
+
+
+def test_the_readme_shows_set_examples_to_run():
+    assert len(SET_EXAMPLES) >= 4
+    assert any("=null" in ln for ln in SET_EXAMPLES)  # the one that removes a key
+
+
+@pytest.mark.parametrize("line", SET_EXAMPLES)
+def test_every_set_example_in_the_readme_runs(line, tmp_path, capsys, monkeypatch):
+    """Each ``cvsim ... --set`` line of the README, as printed (its scenario path is
+    relative to the checkout), into a folder of the test's own, without plots."""
+    import shlex
+    args = shlex.split(line, comments=True)
+    assert args[0] == "cvsim"
+    monkeypatch.chdir(ROOT)
+    out = ["--out", str(tmp_path / "out")]
+    extra = {"check": [], "relief": out}.get(args[1], out + ["--no-plots", "--quiet"])
+    code = main(args[1:] + extra)
+    assert code == 0, capsys.readouterr().err
+
 BROKEN = {
     "missing key": ("""
 fluid: Nitrogen

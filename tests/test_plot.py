@@ -224,6 +224,180 @@ def test_a_met_limit_has_no_crossing_mark():
     assert not [k for k in lines if k.startswith("CROSSED")]
 
 
+def filled(max_c=60.0, design_g=50e5):
+    """A receiver filled from a 200 bar g supply: the gas heats up past ``max_c`` and the
+    pressure passes the allowed pressure (``design_g`` + 10 %); a bursting disc rated
+    at 150 bar g (above the pressure reached, so it stays shut) protects it."""
+    limits = nw.VesselLimits(design_pressure=ATM + design_g, accumulation=0.10,
+                             accumulation_case="single-device",
+                             max_temperature=273.15 + max_c)
+    return run(nw.Network(
+        title="Filled receiver", fluid=NITROGEN,
+        vessels=(nw.Vessel("receiver", nw.Geometry(1.0), nw.InitialState(ATM + 20e5, 288.15),
+                           limits=limits),),
+        reservoirs=(nw.Reservoir("supply", Constant(ATM + 200e5), Constant(288.15)),
+                    nw.Reservoir("atmosphere", Constant(ATM), Constant(288.15))),
+        links=(nw.Link("fill", "supply", "receiver",
+                       nw.Orifice(math.pi * 0.01 ** 2 / 4, 0.84)),
+               nw.Link("disc", "receiver", "atmosphere",
+                       nw.BurstingDisc(area=1e-4, discharge_coefficient=0.62,
+                                       burst_pressure=ATM + 150e5))),
+        run=nw.RunSettings(end_time=60.0, record_every=1.0)))
+
+
+def test_temperature_panel_draws_the_highest_allowed_temperature_and_marks_the_crossing():
+    from cvsim.plot import _temperature
+    res = filled()
+    lines, _, (lo, hi) = drawn(_temperature, res)
+    assert lines["highest allowed 60.0 °C"][1][0] == pytest.approx(60.0)
+    assert lo <= 60.0 <= hi
+    T, when = res.extreme("receiver.temperature", "max")
+    assert T > 273.15 + 60.0  # the gas does cross it
+    (label,) = [k for k in lines if k.startswith("CROSSED")]
+    assert label == f"CROSSED: highest allowed (gas highest {T - 273.15:.1f} °C)"
+    (t,), (y,) = lines[label]
+    assert (t, y) == (pytest.approx(when), pytest.approx(T - 273.15))
+
+
+def test_pressure_panel_draws_the_bursting_disc_and_marks_the_allowed_pressure_crossed():
+    from cvsim.plot import _pressure
+    res = filled()
+    lines, _, (_, hi) = drawn(_pressure, res)
+    disc = lines["disc bursts at 150 bar g"][1]
+    assert disc[0] == disc[-1] == pytest.approx((ATM + 150e5) / 1e5)
+    assert hi >= (ATM + 150e5) / 1e5  # in view, though the pressure stays below it
+    (check,) = [c for c in res.limits if c.key == "design_pressure"]
+    # allowed = MAWP + 10 % of the gauge design pressure, 55 bar g
+    # source: ASME BPVC VIII-1 UG-125(c), 10 % accumulation for a single device
+    assert check.limit == pytest.approx(ATM + 55e5) and check.crossed
+    (label,) = [k for k in lines if k.startswith("CROSSED")]
+    assert label == "CROSSED: allowed pressure"
+    (t,), (p,) = lines[label]
+    P, when = res.extreme("receiver.pressure", "max")
+    assert (t, p) == (pytest.approx(when), pytest.approx(P / 1e5))
+
+
+def test_pressure_panel_draws_the_depressuring_deadline_as_a_vertical_line():
+    from cvsim.plot import LIMIT_COLOUR, _pressure, figure
+    res = limited_vent(within=60.0)
+    view = _View(res)
+    with figure((10.0, 6.0), "t", "s") as fig:
+        ax = fig.subplots()
+        _pressure(ax, view, overview=False)
+        upright = [ln for ln in ax.get_lines() if ln.get_color() == LIMIT_COLOUR
+                   and list(ln.get_ydata()) == [0, 1]]
+        assert [list(ln.get_xdata()) for ln in upright] == [[60.0, 60.0]]
+        # the target line ends at the deadline
+        target = next(ln for ln in ax.get_lines() if ln.get_label().startswith("depressure"))
+        assert max(target.get_xdata()) == pytest.approx(60.0)
+
+
+def test_a_deadline_past_the_end_of_the_run_has_no_vertical_line():
+    from cvsim.plot import LIMIT_COLOUR, _pressure, figure
+    res = limited_vent(within=3600.0)
+    with figure((10.0, 6.0), "t", "s") as fig:
+        ax = fig.subplots()
+        _pressure(ax, _View(res), overview=False)
+        assert not [ln for ln in ax.get_lines() if ln.get_color() == LIMIT_COLOUR
+                    and list(ln.get_ydata()) == [0, 1]]
+
+
+def pens(ax) -> list:
+    """(colour, dash pattern) of every drawn line of a panel (markers alone left out)."""
+    from matplotlib.colors import to_hex
+    return [(to_hex(ln.get_color()), repr(ln._unscaled_dash_pattern)) for ln in ax.get_lines()
+            if ln.get_linestyle() not in ("None", "none", "")]
+
+
+#: the temperatures a vessel with separated zones and a wetted and an unwetted wall
+#: records (besides its gas): each made distinct, so that none joins another's label
+ZONED = ["wall.wetted.inner_temperature", "wall.wetted.outer_temperature",
+         "wall.unwetted.inner_temperature", "wall.unwetted.outer_temperature",
+         "liquid_temperature", "interface_temperature"]
+
+
+def test_every_temperature_line_of_a_zoned_vessel_has_a_pen_of_its_own():
+    from cvsim.plot import _temperature, figure
+    res = limited_vent()
+    res = dataclasses.replace(res, network=dataclasses.replace(
+        res.network, vessels=tuple(dataclasses.replace(v, limits=dataclasses.replace(
+            v.limits, max_temperature=273.15 + 60.0)) for v in res.network.vessels)))
+    for k, column in enumerate(ZONED):
+        res = with_column(res, f"receiver.{column}", "K", "wall", res["receiver.temperature"]
+                          + 5.0 * (k + 1))
+    view = _View(res)
+    assert len(view.extra_temperatures["receiver"]) == len(ZONED)
+    with figure((10.0, 6.0), "t", "s") as fig:
+        ax = fig.subplots()
+        _temperature(ax, view, overview=False)
+        drawn_pens = pens(ax)
+        by_label = dict(zip([ln.get_label() for ln in ax.get_lines()
+                             if ln.get_linestyle() not in ("None",)], drawn_pens))
+    assert len(drawn_pens) == 1 + len(ZONED) + 2  # gas, the six, MDMT and highest allowed
+    assert len(set(drawn_pens)) == len(drawn_pens)
+    # one vessel: a wall part's two surfaces share a colour, the styles tell them apart
+    inner = by_label["receiver wall wetted, inside surface"]
+    outer = by_label["receiver wall wetted, outside surface"]
+    assert inner[0] == outer[0] and inner[1] != outer[1]
+    assert by_label["receiver, liquid"][0] != by_label["receiver, interface"][0]
+
+
+def test_temperature_lines_of_several_vessels_keep_their_vessel_colour_and_differ():
+    from cvsim.plot import _temperature, figure
+    res = run(nw.Network(
+        title="Two vessels", fluid=NITROGEN,
+        vessels=(nw.Vessel("bank", nw.Geometry(1.0), nw.InitialState(200e5, 288.15)),
+                 nw.Vessel("cylinder", nw.Geometry(0.5), nw.InitialState(20e5, 288.15))),
+        links=(nw.Link("fill", "bank", "cylinder", nw.Orifice(math.pi * 0.002 ** 2 / 4,
+                                                               0.84)),),
+        run=nw.RunSettings(end_time=10.0, record_every=1.0)))
+    for v in ("bank", "cylinder"):
+        for k, column in enumerate(ZONED):
+            res = with_column(res, f"{v}.{column}", "K", "wall",
+                              res[f"{v}.temperature"] + 3.0 * (k + 1))
+    view = _View(res)
+    with figure((10.0, 6.0), "t", "s") as fig:
+        ax = fig.subplots()
+        _temperature(ax, view, overview=False)
+        drawn_pens = pens(ax)
+        colours = {ln.get_label().split(" ")[0].rstrip(","): ln.get_color()
+                   for ln in ax.get_lines()}
+    assert len(drawn_pens) == 2 * (1 + len(ZONED))
+    assert len(set(drawn_pens)) == len(drawn_pens)
+    assert colours["bank"] == view.colour["bank"]
+    assert colours["cylinder"] == view.colour["cylinder"]
+
+
+def test_the_overview_with_valve_openings_shows_the_time_under_each_column():
+    """With a row of openings across the foot of the page, the lower quantity panels
+    keep their time ticks and label (sharex would hide them), so the panels above them
+    - in the same column, with the same x extent - can be read too."""
+    from cvsim import plot
+    full = vent()
+    res = with_column(full, "vent.opening", "-", "link", np.clip(full.time / 20.0, 0.0, 1.0))
+    view = _View(res)
+    assert view.openings == ["vent"]
+    with plot.figure(plot.OVERVIEW_SIZE, "t", "s") as fig:
+        panels = [(name, getattr(plot, f"_{name}"))
+                  for name in ("pressure", "temperature", "mass", "flow", "opening")]
+        axes = plot._overview_panels(fig, view, panels)
+        fig.canvas.draw()
+        shown = {ax.get_title(loc="left"): [t.get_text() for t in ax.get_xticklabels()
+                                            if t.get_visible() and t.get_text()]
+                 for ax in axes}
+        labels = {ax.get_title(loc="left"): ax.get_xlabel() for ax in axes}
+        where = {ax.get_title(loc="left"): ax.get_position() for ax in axes}
+    titles = list(shown)
+    pressure, temperature, mass, flow, opening = titles
+    for below in (mass, flow, opening):
+        assert len(shown[below]) >= 3, below
+        assert labels[below] == "Time [s]"
+    for above, below in ((pressure, mass), (temperature, flow)):
+        assert where[above].x0 == pytest.approx(where[below].x0, abs=1e-3)
+        assert where[above].x1 == pytest.approx(where[below].x1, abs=1e-3)
+        assert where[above].y0 > where[below].y1
+
+
 def test_the_stop_that_ends_a_run_gets_a_line_but_no_text():
     from cvsim.plot import _pressure
     res = vent()

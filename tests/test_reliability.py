@@ -421,3 +421,57 @@ def test_a_table_of_too_many_points_is_refused_before_reading_them(tmp_path, cap
     assert main(["check", str(path)]) == 2
     assert time.monotonic() - started < 20
     assert "a table of 12000 points; use at most 10000" in capsys.readouterr().err
+
+
+# ---------------------------------------------- scipy's solver raising on a step's values
+
+NAN_MESSAGE = "array must not contain infs or NaNs"  # scipy.linalg.lu_factor, check_finite
+
+
+def failing_solver(base, after: float, where: str = "step"):
+    """``base`` (a scipy solver class) that raises scipy's ValueError on every step
+    past ``after`` [s] (or, ``where="start"``, when made past it), as an implicit
+    method does when the Jacobian it factorises holds a NaN."""
+    class Failing(base):
+        def __init__(self, fun, t0, *args, **kw):
+            if where == "start" and t0 > after:
+                raise ValueError(NAN_MESSAGE)
+            super().__init__(fun, t0, *args, **kw)
+
+        def _step_impl(self):
+            if where == "step" and self.t > after:
+                raise ValueError(NAN_MESSAGE)
+            return super()._step_impl()
+    return Failing
+
+
+@pytest.mark.parametrize("method, where", [("LSODA", "step"), ("BDF", "step"),
+                                           ("BDF", "start")])
+def test_scipy_raising_on_a_step_ends_the_run_as_failed_naming_run_solver(method, where,
+                                                                          monkeypatch):
+    from cvsim.api import run_network
+    monkeypatch.setitem(solve.METHODS, method, failing_solver(solve.METHODS[method], 3.0,
+                                                              where))
+    # a table point at 5 s starts a new segment (and a new solver) there
+    text = SMALL.replace("run: {end: 10 s, record_every: 1 s}",
+                         f"run: {{end: 10 s, record_every: 1 s, solver: {{method: {method}}}}}")
+    scenario = load_scenario_text(text, overrides={
+        "reservoirs.air.pressure": "{table: [[0 s, 1 atm], [5 s, 1 atm], [10 s, 1 atm]]}"})
+    result = run_network(scenario.network, scenario)
+    assert result.status == "failed"
+    assert NAN_MESSAGE in result.message
+    assert f"run.solver.method {method}" in result.message
+    assert "Last good state" in result.message
+    assert 3.0 <= result.time[-1] <= 5.0 + 1e-9  # what was computed is kept
+
+
+def test_scipy_raising_is_one_clear_message_on_the_command_line(small, tmp_path, monkeypatch,
+                                                                capsys):
+    monkeypatch.setitem(solve.METHODS, "BDF", failing_solver(solve.METHODS["BDF"], 2.0))
+    code = main(["run", str(small), "--set", "run.solver={method: BDF}", "--out",
+                 str(tmp_path / "out"), "--no-plots"])
+    err = capsys.readouterr().err
+    assert code != 0
+    assert "the run failed" in err and "run.solver.method BDF" in err and NAN_MESSAGE in err
+    assert no_traceback(err.replace("ValueError: " + NAN_MESSAGE, ""))
+    assert not (tmp_path / "out").exists()

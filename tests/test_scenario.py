@@ -386,6 +386,45 @@ def test_an_override_mapping_for_a_section_is_read_and_null_on_a_required_key_is
     assert problem.key == "links.vent" and "'diameter'" in problem.message
 
 
+def test_null_on_a_key_that_is_not_there_is_a_problem_with_the_name_meant():
+    # a misspelt key to remove: not silently ignored (the key meant would stay)
+    with pytest.raises(ScenarioError) as info:
+        load_scenario_text(GOOD, overrides={"links.vent.discharge_coefficent": "null"})
+    (problem,) = info.value.problems
+    assert problem.key == "links.vent.discharge_coefficent"
+    assert "nothing to remove" in problem.message
+    assert "did you mean 'discharge_coefficient'?" in problem.message
+    # a section that is not there: nothing to remove, and nothing created on the way
+    with pytest.raises(ScenarioError) as info:
+        load_scenario_text(GOOD, overrides={"vessels.receiver.limits.design_pressure": "~"})
+    (problem,) = info.value.problems
+    assert problem.key == "vessels.receiver.limits.design_pressure"
+    assert "nothing to remove: no key 'limits' in vessels.receiver" in problem.message
+
+
+def test_a_misspelt_section_on_an_override_path_names_the_section_meant():
+    # a section close to one in the file is not created: a likely typo
+    with pytest.raises(ScenarioError) as info:
+        load_scenario_text(GOOD, overrides={"links.vnet.diameter": "12 mm"})
+    (problem,) = info.value.problems
+    assert problem.key == "links.vnet.diameter"
+    assert "no key 'vnet' in links; did you mean 'vent'?" in problem.message
+    with pytest.raises(ScenarioError) as info:
+        load_scenario_text(GOOD, overrides={"run.solvr.method": "BDF"})
+    (problem,) = info.value.problems
+    assert problem.key == "run.solvr.method"
+    assert "no key 'solvr' in run; did you mean 'solver'?" in problem.message
+    # a file without a solver section: the misspelt section is created, and the check
+    # of the file reports it as an unknown key with the name meant
+    solver = "  solver: {method: BDF, relative_tolerance: 1e-7, max_step: 10 s}\n"
+    assert solver in GOOD
+    with pytest.raises(ScenarioError) as info:
+        load_scenario_text(GOOD.replace(solver, ""), overrides={"run.solvr.method": "BDF"})
+    (problem,) = info.value.problems
+    assert problem.key == "run.solvr"
+    assert "unknown key 'solvr' in run; did you mean 'solver'?" in problem.message
+
+
 def test_the_format_reference_example_runs_to_a_real_stop():
     """The example in docs/scenario-format.md: vented for 10 min, then refilled by the
     compressor until 100 barg; not a run that ends at t = 0."""

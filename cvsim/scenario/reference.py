@@ -96,9 +96,12 @@ WRITING_VALUES = """
 - **Overrides** (`cvsim run --set`, sweeps) address any key by its dotted path,
   `links.vent.diameter=12 mm`; items of a list by index, `run.stop_when[0].pressure_below`.
   The value is read as YAML, so a whole mapping can be given (`{ua: 50 W/K, ambient:
-  15 degC}`). Every key on the path but the last must exist in the file; an unknown last
-  key is reported like any unknown key. Overrides are applied before the file is checked,
-  and the echo marks the values they set.
+  15 degC}`). A section missing on the path is created (`run.solver.method=BDF`) unless
+  its name is close to one in the file (a likely typo: the name meant is given); an
+  unknown last key is reported like any unknown key. The value `null` (or `~`, `none`)
+  removes the key so that its default applies; removing a key that is not there is a
+  problem, with the name meant when one is close. Overrides are applied before the file
+  is checked, and the echo marks the values they set.
 """
 
 DECISIONS = """

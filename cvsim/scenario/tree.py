@@ -324,10 +324,11 @@ def apply_overrides(tree: Mapping, overrides: dict | None) -> tuple[set[str], li
 
     The last key is replaced or added (an added key that the format does not know is
     reported by the validator like any unknown key); a value ``null`` removes it, so
-    that its default applies. A mapping missing on the way is created
-    (``run.solver.method`` without a ``solver:`` section) unless its name is close to
-    one that exists, which is reported as a likely typo with the name meant. Returns
-    (paths applied, problems).
+    that its default applies, and a key to remove that is not there is a problem (a
+    misspelt key would otherwise be ignored), with the name meant when one is close. A
+    mapping missing on the way is created (``run.solver.method`` without a ``solver:``
+    section) unless its name is close to one that exists, which is reported as a likely
+    typo with the name meant. Returns (paths applied, problems).
     """
     applied: set[str] = set()
     problems: list[Problem] = []
@@ -343,11 +344,15 @@ def apply_overrides(tree: Mapping, overrides: dict | None) -> tuple[set[str], li
         if not parts:
             problems.append(Problem(str(path), "override: empty key path"))
             continue
+        new = override_value(value)
+        removing = new is _REMOVED
         node = tree
         for depth, part in enumerate(parts[:-1]):
             here = key_path(parts[:depth]) or "the top level"
             found, message = _step(node, part, here)
-            if message and _creatable(node, part):
+            if message and removing:  # nothing there to remove: create nothing
+                message = f"nothing to remove: {message}"
+            elif message and _creatable(node, part):
                 node[part] = Mapping()
                 node.key_lines[part] = None
                 found, message = node[part], None
@@ -359,10 +364,15 @@ def apply_overrides(tree: Mapping, overrides: dict | None) -> tuple[set[str], li
         if node is None:
             continue
         last = parts[-1]
-        new = override_value(value)
-        if new is _REMOVED:
+        if removing:
             if isinstance(node, dict) and not isinstance(last, int):
-                node.pop(last, None)
+                if last not in node:
+                    where = key_path(parts[:-1]) or "the top level"
+                    _, message = _step(node, last, where)
+                    problems.append(Problem(str(path), f"override: nothing to remove: "
+                                            f"{message}"))
+                    continue
+                node.pop(last)
                 node.key_lines.pop(last, None)
             else:
                 where = key_path(parts[:-1]) or "the top level"

@@ -74,11 +74,9 @@ class _XAxis:
             where = dict(zip(p.texts(), p.numbers))
             self.x = [where[r[p.key]] for r in result.rows]
             words = axis_words(p.key)
-            self.label = f"{words} [{p.unit}]" if p.unit else words
+            unit = p.unit or (_common_unit(p.values) if p.kind == "list" else "")
+            self.label = f"{words} [{_deg(unit)}]" if unit else words
             self.log = p.kind == "log"
-            if not p.unit and p.kind == "list":
-                unit = _common_unit(p.values)
-                self.label = f"{words} [{unit}]" if unit else words
             return
         si = [r.get(f"{p.key}.si") for r in result.rows]
         unit = result.column(f"{p.key}.si").unit
