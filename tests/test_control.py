@@ -10,7 +10,7 @@ from cvsim.errors import ScenarioError
 from cvsim.flow.control_valve import gas_mass_flow
 from cvsim.flow.exponent import perfect_gas_exponent
 from cvsim.fluid import make_fluid
-from cvsim.scenario import load_scenario_text
+from cvsim.scenario import load_scenario, load_scenario_text
 
 ATM = 101325.0
 
@@ -296,6 +296,46 @@ run: {end: 10 min, record_every: 1 s}
     assert res["bpr.mass_flow"][-1] == pytest.approx(0.1, rel=0.03)   # near steady
 
 
+def test_a_regulators_set_pressure_is_not_compared_like_a_relief_valves():
+    # a pressure-reducing regulator is set below its supply: that is its normal case, no
+    # warning; set at or above its supply it cannot reduce anything, a likely slip
+    def warnings(text):
+        return load_scenario_text(text).warnings
+
+    supplied_by_a_vessel = REGULATOR.replace(
+        "reservoirs:\n  bank: {pressure: 200 barg, temperature: 20 degC}\n",
+        "reservoirs:\n").replace(
+        "vessels:\n", "vessels:\n  bank: {volume: 600 L, initial: {pressure: 200 barg, "
+        "temperature: 20 degC}}\n")
+    assert "bank: {volume: 600 L" in supplied_by_a_vessel
+    for text in (REGULATOR, supplied_by_a_vessel):
+        assert not warnings(text)
+        above = warnings(text.replace("set_pressure: 50 barg", "set_pressure: 250 barg"))
+        assert len(above) == 1 and above[0].startswith("links.regulator.set_pressure:")
+        assert "at or above the initial pressure of" in above[0] and "'bank'" in above[0]
+    # a back-pressure regulator holding a vessel that starts above its set pressure vents
+    # it down to the set pressure, which may be meant: no warning either
+    bpr = """
+fluid: Nitrogen
+vessels:
+  drum: {volume: 2 m3, initial: {pressure: 15 barg, temperature: 20 degC}}
+reservoirs:
+  flare: {pressure: 1 atm, temperature: 20 degC}
+links:
+  bpr: {from: drum, to: flare, device: back-pressure-regulator, set_pressure: 12 barg,
+        build_up: 10 %, Cv: 2}
+run: {end: 10 s}
+"""
+    assert not warnings(bpr)
+    # while a relief valve set below its vessel's pressure still is one
+    relief = bpr.replace("device: back-pressure-regulator, set_pressure: 12 barg,\n"
+                         "        build_up: 10 %, Cv: 2",
+                         "device: relief-valve, set_pressure: 12 barg, area: 1 cm2, "
+                         "blowdown: 7 %")
+    assert "relief-valve" in relief
+    assert any("opens at the start" in w for w in warnings(relief))
+
+
 # ------------------------------------------------------------------ fills
 
 
@@ -376,6 +416,9 @@ def test_a_fill_that_would_end_at_once_is_a_problem():
 
 def test_nitrogen_regulated_fill_demo_brings_the_cylinder_to_the_set_pressure():
     res = cvsim.run("scenarios/nitrogen-regulated-fill.yaml")
+    # the reader's warnings are not in a Result made by cvsim.run (the command line adds
+    # them), so they are asserted on the loaded scenario too
+    assert not load_scenario("scenarios/nitrogen-regulated-fill.yaml").warnings
     assert res.ok and not res.checks_failed and not res.warnings
     p_set, droop = 200e5 + ATM, 10e5
     # the regulator holds its outlet within its droop below set, and the cylinder comes up
