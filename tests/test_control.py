@@ -390,6 +390,34 @@ def test_a_fill_without_precooling_ends_on_the_temperature_limit():
     assert res.fine("tank.temperature")[i] == pytest.approx(358.15, abs=1e-3)
 
 
+
+def test_a_fill_with_a_final_pressure_ends_on_it():
+    # the ramp demo stopped at 50 MPag, below its state of charge and temperature limits:
+    # the fill ends at the final pressure, never above it, after the time the stated ramp
+    # takes to get there (within the 3 % the ramp holds), and the state of charge at the
+    # end is the density there over the trade's reference, both from CoolProp
+    text = open("scenarios/hydrogen-ramp-fill.yaml").read().replace(
+        "    nominal_working_pressure: 70 MPag\n",
+        "    nominal_working_pressure: 70 MPag\n    final_pressure: 50 MPag\n")
+    res = _run(text)
+    assert res.ok and not res.checks_failed
+    fig = res.summary()["links"]["dispenser_valve"]
+    p_final = 50e6 + ATM
+    assert fig["fill_end_reason"] == "receiver at the final pressure 501.013 bar a"
+    t, p = res.fine("time"), res.fine("tank.pressure")
+    i = int(np.argmin(abs(t - fig["fill_end_s"])))
+    assert p[i] == pytest.approx(p_final, abs=1.0)
+    assert fig["peak_pressure_Pa"] == pytest.approx(p_final, abs=1.0)
+    assert fig["fill_end_s"] == pytest.approx((p_final - (20e5 + ATM)) / (25e6 / 60.0),
+                                              rel=0.03)
+    fl = make_fluid("Hydrogen")
+    rho_ref = fl.state_pt(70e6 + ATM, 288.15).rho
+    rho_end = fl.state_pt(p_final, res.fine("tank.temperature")[i]).rho
+    assert fig["state_of_charge_at_fill_end"] == pytest.approx(rho_end / rho_ref, rel=1e-6)
+    assert fig["state_of_charge_at_fill_end"] < 0.75
+    after = res.time > fig["fill_end_s"] + 1e-6
+    assert after.any() and np.all(res["dispenser_valve.opening"][after] == 0.0)
+
 # ------------------------------------------------------------------ scenario keys
 
 
