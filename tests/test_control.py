@@ -5,11 +5,14 @@ import pytest
 from scipy.linalg import expm
 from scipy.optimize import brentq
 
+from conftest import report_rows
+
 import cvsim
 from cvsim.errors import ScenarioError
 from cvsim.flow.control_valve import gas_mass_flow
 from cvsim.flow.exponent import perfect_gas_exponent
 from cvsim.fluid import make_fluid
+from cvsim.report import render_run_report
 from cvsim.scenario import load_scenario, load_scenario_text
 
 ATM = 101325.0
@@ -455,6 +458,17 @@ def test_nitrogen_regulated_fill_demo_brings_the_cylinder_to_the_set_pressure():
     assert res["cylinder.pressure"].max() <= p_set + 1.0
     assert res["cylinder.pressure"][-1] > p_set - 0.5e5
     assert res.summary()["links"]["regulator"]["fully_open_s"] == 0.0
+
+
+def test_the_report_shows_a_regulators_droop_as_a_pressure_difference():
+    # a droop is a pressure difference: shown in bar, not as "10 bar a (8.99 bar g)"
+    scenario = load_scenario("scenarios/nitrogen-regulated-fill.yaml",
+                             overrides={"run.end": "5 s"})
+    page = render_run_report(cvsim.run(scenario), scenario=scenario, plots=[])
+    used = {c[0]: c[2] for c in report_rows(page, "inputs-used")}
+    assert used["links.regulator.droop"] == "10 bar"
+    assert used["links.regulator.droop_pressure"] == "10 bar"
+    assert used["links.regulator.set_pressure"] == "201.013 bar a (200 bar g)"
 
 
 def test_pi_temperature_controller_holds_a_mixed_stream_at_its_set_point():

@@ -7,9 +7,13 @@ from pathlib import Path
 import numpy as np
 import pytest
 
+from conftest import report_rows, report_text
+
 import cvsim
 from cvsim.errors import ScenarioError
-from cvsim.scenario import load_scenario_text
+from cvsim.report import render_run_report
+from cvsim.rupture import CAUTION_NOTE
+from cvsim.scenario import load_scenario, load_scenario_text
 from cvsim.study.outcomes import outcome_list, outcome_values
 
 DEMO = Path(__file__).resolve().parent.parent / "scenarios" / "gas-vessel-fire-rupture.yaml"
@@ -33,9 +37,14 @@ def retained_uts(T):
 
 
 @pytest.fixture(scope="module")
-def undepressured():
+def undepressured_scenario():
     # the orifice does not open within a 20 minute fire: the relief valve holds ~20 barg
-    return cvsim.run(DEMO, overrides={"links.blowdown.opens_at": "1 h", "run.end": "20 min"})
+    return load_scenario(DEMO, overrides={"links.blowdown.opens_at": "1 h", "run.end": "20 min"})
+
+
+@pytest.fixture(scope="module")
+def undepressured(undepressured_scenario):
+    return cvsim.run(undepressured_scenario)
 
 
 @pytest.fixture(scope="module")
@@ -114,6 +123,54 @@ def test_rupture_files_and_plot(depressured, tmp_path):
     assert "vessel.rupture.stress [MPa]" in header
     assert (tmp_path / "rupture.png").exists()
     assert "utilisation" in (tmp_path / "summary.txt").read_text()
+
+
+def test_the_report_gives_the_verdict_the_margin_stresses_in_mpa_and_the_caution(
+        undepressured_scenario, undepressured):
+    r = undepressured
+    page = render_run_report(r, scenario=undepressured_scenario, plots=[])
+    # the verdict and the margin: the limits table's row, from the utilisation history
+    util = r.fine("vessel.rupture.utilisation")
+    (row,) = [c for c in report_rows(page, "limits") if "ultimate tensile strength" in c[3]]
+    assert "CROSSED" in row[1]
+    assert row[4:] == ["1", f"{util.max():.4g}", "20 min", f"{1 - util.max():+.4g}", "L2"]
+    # its note: the moment of rupture, then the stress against the strength in MPa at the
+    # first recorded step past it, and the caution
+    t = r.fine("time")
+    t_cross = r.summary()["vessels"]["vessel"]["rupture_time_s"]
+    k = int(np.searchsorted(t, t_cross))
+    stress, strength = (r.fine(f"vessel.rupture.{q}")[k] / 1e6 for q in ("stress",
+                                                                          "allowed_stress"))
+    assert stress > strength
+    basis = report_text(page, "limits")
+    assert (f"RUPTURE predicted: the stress first reaches the criterion at t = "
+            f"{t_cross:.6g} s (14.69 min), stress {stress:.4g} MPa against {strength:.4g} MPa"
+            ) in basis
+    assert CAUTION_NOTE in basis
+    assert "rupture screening: the wall's stress reaches its ultimate tensile strength at " \
+        f"t = {t_cross:.4g} s" in report_text(page, "warnings")
+    # every value as used: the strength is a stress in MPa, not a pressure in bar a and g
+    used = {c[0].replace("\u200b", ""): c[2] for c in report_rows(page, "inputs-used")}
+    assert used["vessels.vessel.limits.rupture.tensile_strength"] == "485 MPa"
+    assert used["vessels.vessel.limits.design_pressure"] == "21.0132 bar a (20 bar g)"
+    # the same for a yield strength and a creep curve's stresses
+    text = BASE.replace("LAYERS", "{material: carbon-steel, thickness: 10 mm}").replace(
+        "RUPTURE", CREEP.replace("485 MPa,", "485 MPa, yield_strength: 38 ksi,"))
+    scenario = load_scenario_text(text)
+    page = render_run_report(cvsim.run(scenario), scenario=scenario, plots=[])
+    used = {c[0]: c[2] for c in report_rows(page, "inputs-used")}
+    assert used["vessels.v.limits.rupture.yield_strength"] == "262.001 MPa"   # 38 ksi
+    curve = [used[f"vessels.v.limits.rupture.creep.rupture_curve[{i}].1"] for i in range(3)]
+    assert curve == ["300 MPa", "100 MPa", "20 MPa"]
+
+
+def test_an_uncertain_strength_is_a_stress_not_a_pressure():
+    # an uncertainty entry takes the kind of quantity of the key's echo row; a strength
+    # shares the unit Pa with a pressure but has no gauge or absolute value
+    from cvsim.scenario.uncertainty import key_dimension
+    rows = {r.key: r for r in _load().echo}
+    assert key_dimension(rows["vessels.v.limits.rupture.tensile_strength"]) == "stress"
+    assert key_dimension(rows["vessels.v.initial.pressure"]) == "pressure"
 
 
 BASE = """
