@@ -8,6 +8,7 @@ from scipy.optimize import brentq
 from conftest import report_rows
 
 import cvsim
+from cvsim.cli import main
 from cvsim.errors import ScenarioError
 from cvsim.flow.control_valve import gas_mass_flow
 from cvsim.flow.exponent import perfect_gas_exponent
@@ -445,11 +446,14 @@ def test_a_fill_that_would_end_at_once_is_a_problem():
     assert "would end at once" in _problems(text)
 
 
-def test_nitrogen_regulated_fill_demo_brings_the_cylinder_to_the_set_pressure():
+def test_nitrogen_regulated_fill_demo_brings_the_cylinder_to_the_set_pressure(capsys):
     res = cvsim.run("scenarios/nitrogen-regulated-fill.yaml")
     # the reader's warnings are not in a Result made by cvsim.run (the command line adds
-    # them), so they are asserted on the loaded scenario too
+    # them), so they are asserted on the loaded scenario and on 'cvsim check' too
     assert not load_scenario("scenarios/nitrogen-regulated-fill.yaml").warnings
+    assert main(["check", "scenarios/nitrogen-regulated-fill.yaml"]) == 0
+    assert capsys.readouterr().out.startswith(
+        "scenarios/nitrogen-regulated-fill.yaml: no problems found.\n")
     assert res.ok and not res.checks_failed and not res.warnings
     p_set, droop = 200e5 + ATM, 10e5
     # the regulator holds its outlet within its droop below set, and the cylinder comes up
