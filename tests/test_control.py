@@ -2,10 +2,9 @@
 published values of the trade, the scenario keys."""
 import numpy as np
 import pytest
+from conftest import report_rows
 from scipy.linalg import expm
 from scipy.optimize import brentq
-
-from conftest import report_rows
 
 import cvsim
 from cvsim.cli import main

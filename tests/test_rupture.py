@@ -7,7 +7,6 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-
 from conftest import report_rows, report_text
 
 import cvsim
