@@ -183,19 +183,29 @@ INPUT_UNITS = {
     "kg/mol": ("g/mol", lambda v: v * 1e3),
     "J/(kg K)": ("kJ/(kg K)", lambda v: v / 1e3),
 }
+#: kind of an echoed input (:attr:`cvsim.scenario.spec.EchoRow.kind`) -> (shown unit,
+#: SI -> shown), where the SI unit alone would mislead: a stress or a pressure
+#: difference is in Pa like a pressure, but has no absolute or gauge value
+INPUT_KINDS = {
+    "stress": ("MPa", lambda v: v / 1e6),
+    "pressure_difference": ("bar", lambda v: v / 1e5),
+}
 #: lengths at least this [m] are shown in m rather than mm; areas at least
 #: SQUARE_METRES_FROM [m2] in m2 rather than mm2 (a vessel's area, not an orifice's)
 METRES_FROM = 1.0
 SQUARE_METRES_FROM = 0.01
 
 
-def engineering(value, unit: str, atm: float | None = None) -> str:
+def engineering(value, unit: str, atm: float | None = None, kind: str = "") -> str:
     """An input value used (SI) as an engineer reads it: bar a (and bar g when the
     gauge reference ``atm`` [Pa] is given), degC, mm (m from 1 m), mm2, kg/h, kW,
-    g/mol; other units and words as they are.
+    g/mol; a stress in MPa and a pressure difference in bar when ``kind`` says so
+    (:data:`INPUT_KINDS`); other units and words as they are.
 
     >>> engineering(1.51013e7, "Pa", 101325.0)
     '151.013 bar a (150 bar g)'
+    >>> engineering(4.85e8, "Pa", 101325.0, kind="stress")
+    '485 MPa'
     >>> engineering(0.01, "m"), engineering(1.13, "m"), engineering(288.15, "K")
     ('10 mm', '1.13 m', '15 degC')
     """
@@ -203,6 +213,9 @@ def engineering(value, unit: str, atm: float | None = None) -> str:
         return "" if value is None else str(value)
     if not math.isfinite(value):
         return f"{value} {unit}".strip()
+    if kind in INPUT_KINDS:
+        shown, conv = INPUT_KINDS[kind]
+        return f"{conv(value):.6g} {shown}"
     if unit == "m" and abs(value) >= METRES_FROM:
         return f"{value:.6g} m"
     if unit == "m2" and abs(value) >= SQUARE_METRES_FROM:
@@ -230,6 +243,6 @@ def jsonable(obj):
     return obj
 
 
-__all__ = ["DISPLAY", "RunUnits", "bar", "barg", "degc", "display", "duration",
+__all__ = ["DISPLAY", "INPUT_KINDS", "RunUnits", "bar", "barg", "degc", "display", "duration",
            "engineering", "flow_unit", "jsonable", "limit_value", "margin", "run_units",
            "time_unit"]

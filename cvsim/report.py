@@ -481,16 +481,18 @@ def _used(echo, atm: float) -> Html:
             rows.append(("group", g))
             classes.append(None)
         group = g if len(parts) > 1 else None
-        used = engineering(r.value, r.unit, atm if r.unit == "Pa" else None)
+        used = engineering(r.value, r.unit, atm if r.unit == "Pa" else None,
+                           kind=getattr(r, "kind", ""))
         if changed(r):
             used = Html(f"<b>{esc(used)}</b>")
         rows.append([_breakable(str(r.key)), str(r.given), used, r.note or ""])
         classes.append("crossed" if changed(r) else
                        "warning" if "warning" in (r.note or "") else None)
     return join([tag("p", "Every value as the run used it: pressures absolute (bar a) with "
-                     "the gauge value beside them, temperatures in degC, lengths in mm (m "
-                     "from 1 m), areas in mm2, mass flows in kg/h; a value a command changed "
-                     "is in bold on a marked row, its note starting CHANGED."),
+                     "the gauge value beside them, pressure differences in bar, stresses and "
+                     "strengths in MPa, temperatures in degC, lengths in mm (m from 1 m), "
+                     "areas in mm2, mass flows in kg/h; a value a command changed is in bold "
+                     "on a marked row, its note starting CHANGED."),
                  table(["Key", "As given", "Used", "Note"], rows, row_classes=classes,
                        cls="echo", widths=["32%", "22%", "22%", "24%"])])
 

@@ -71,3 +71,27 @@ def small(tmp_path):
     path = tmp_path / "small.yaml"
     path.write_text(SMALL)
     return path
+
+
+def report_rows(page: str, section: str) -> list[list[str]]:
+    """The cells, as plain text, of the table rows of one section (by its id) of a
+    calculation report's HTML; heading rows across the table are left out."""
+    import html
+    import re
+    start = page.index(f'id="{section}"')
+    end = page.find("</section>", start)
+    rows = []
+    for row in re.findall(r"<tr[^>]*>(.*?)</tr>", page[start:end], flags=re.S):
+        cells = re.findall(r"<td[^>]*>(.*?)</td>", row, flags=re.S)
+        if cells:
+            rows.append([html.unescape(re.sub(r"<[^>]+>", "", c)).strip() for c in cells])
+    return rows
+
+
+def report_text(page: str, section: str) -> str:
+    """The plain text of one section (by its id) of a calculation report's HTML."""
+    import html
+    import re
+    start = page.index(f'id="{section}"')
+    end = page.find("</section>", start)
+    return re.sub(r"\s+", " ", html.unescape(re.sub(r"<[^>]+>", " ", page[start:end])))

@@ -2,15 +2,18 @@
 published values of the trade, the scenario keys."""
 import numpy as np
 import pytest
+from conftest import report_rows
 from scipy.linalg import expm
 from scipy.optimize import brentq
 
 import cvsim
+from cvsim.cli import main
 from cvsim.errors import ScenarioError
 from cvsim.flow.control_valve import gas_mass_flow
 from cvsim.flow.exponent import perfect_gas_exponent
 from cvsim.fluid import make_fluid
-from cvsim.scenario import load_scenario_text
+from cvsim.report import render_run_report
+from cvsim.scenario import load_scenario, load_scenario_text
 
 ATM = 101325.0
 
@@ -296,6 +299,46 @@ run: {end: 10 min, record_every: 1 s}
     assert res["bpr.mass_flow"][-1] == pytest.approx(0.1, rel=0.03)   # near steady
 
 
+def test_a_regulators_set_pressure_is_not_compared_like_a_relief_valves():
+    # a pressure-reducing regulator is set below its supply: that is its normal case, no
+    # warning; set at or above its supply it cannot reduce anything, a likely slip
+    def warnings(text):
+        return load_scenario_text(text).warnings
+
+    supplied_by_a_vessel = REGULATOR.replace(
+        "reservoirs:\n  bank: {pressure: 200 barg, temperature: 20 degC}\n",
+        "reservoirs:\n").replace(
+        "vessels:\n", "vessels:\n  bank: {volume: 600 L, initial: {pressure: 200 barg, "
+        "temperature: 20 degC}}\n")
+    assert "bank: {volume: 600 L" in supplied_by_a_vessel
+    for text in (REGULATOR, supplied_by_a_vessel):
+        assert not warnings(text)
+        above = warnings(text.replace("set_pressure: 50 barg", "set_pressure: 250 barg"))
+        assert len(above) == 1 and above[0].startswith("links.regulator.set_pressure:")
+        assert "at or above the initial pressure of" in above[0] and "'bank'" in above[0]
+    # a back-pressure regulator holding a vessel that starts above its set pressure vents
+    # it down to the set pressure, which may be meant: no warning either
+    bpr = """
+fluid: Nitrogen
+vessels:
+  drum: {volume: 2 m3, initial: {pressure: 15 barg, temperature: 20 degC}}
+reservoirs:
+  flare: {pressure: 1 atm, temperature: 20 degC}
+links:
+  bpr: {from: drum, to: flare, device: back-pressure-regulator, set_pressure: 12 barg,
+        build_up: 10 %, Cv: 2}
+run: {end: 10 s}
+"""
+    assert not warnings(bpr)
+    # while a relief valve set below its vessel's pressure still is one
+    relief = bpr.replace("device: back-pressure-regulator, set_pressure: 12 barg,\n"
+                         "        build_up: 10 %, Cv: 2",
+                         "device: relief-valve, set_pressure: 12 barg, area: 1 cm2, "
+                         "blowdown: 7 %")
+    assert "relief-valve" in relief
+    assert any("opens at the start" in w for w in warnings(relief))
+
+
 # ------------------------------------------------------------------ fills
 
 
@@ -350,6 +393,34 @@ def test_a_fill_without_precooling_ends_on_the_temperature_limit():
     assert res.fine("tank.temperature")[i] == pytest.approx(358.15, abs=1e-3)
 
 
+
+def test_a_fill_with_a_final_pressure_ends_on_it():
+    # the ramp demo stopped at 50 MPag, below its state of charge and temperature limits:
+    # the fill ends at the final pressure, never above it, after the time the stated ramp
+    # takes to get there (within the 3 % the ramp holds), and the state of charge at the
+    # end is the density there over the trade's reference, both from CoolProp
+    text = open("scenarios/hydrogen-ramp-fill.yaml").read().replace(
+        "    nominal_working_pressure: 70 MPag\n",
+        "    nominal_working_pressure: 70 MPag\n    final_pressure: 50 MPag\n")
+    res = _run(text)
+    assert res.ok and not res.checks_failed
+    fig = res.summary()["links"]["dispenser_valve"]
+    p_final = 50e6 + ATM
+    assert fig["fill_end_reason"] == "receiver at the final pressure 501.013 bar a"
+    t, p = res.fine("time"), res.fine("tank.pressure")
+    i = int(np.argmin(abs(t - fig["fill_end_s"])))
+    assert p[i] == pytest.approx(p_final, abs=1.0)
+    assert fig["peak_pressure_Pa"] == pytest.approx(p_final, abs=1.0)
+    assert fig["fill_end_s"] == pytest.approx((p_final - (20e5 + ATM)) / (25e6 / 60.0),
+                                              rel=0.03)
+    fl = make_fluid("Hydrogen")
+    rho_ref = fl.state_pt(70e6 + ATM, 288.15).rho
+    rho_end = fl.state_pt(p_final, res.fine("tank.temperature")[i]).rho
+    assert fig["state_of_charge_at_fill_end"] == pytest.approx(rho_end / rho_ref, rel=1e-6)
+    assert fig["state_of_charge_at_fill_end"] < 0.75
+    after = res.time > fig["fill_end_s"] + 1e-6
+    assert after.any() and np.all(res["dispenser_valve.opening"][after] == 0.0)
+
 # ------------------------------------------------------------------ scenario keys
 
 
@@ -374,8 +445,14 @@ def test_a_fill_that_would_end_at_once_is_a_problem():
     assert "would end at once" in _problems(text)
 
 
-def test_nitrogen_regulated_fill_demo_brings_the_cylinder_to_the_set_pressure():
+def test_nitrogen_regulated_fill_demo_brings_the_cylinder_to_the_set_pressure(capsys):
     res = cvsim.run("scenarios/nitrogen-regulated-fill.yaml")
+    # the reader's warnings are not in a Result made by cvsim.run (the command line adds
+    # them), so they are asserted on the loaded scenario and on 'cvsim check' too
+    assert not load_scenario("scenarios/nitrogen-regulated-fill.yaml").warnings
+    assert main(["check", "scenarios/nitrogen-regulated-fill.yaml"]) == 0
+    assert capsys.readouterr().out.startswith(
+        "scenarios/nitrogen-regulated-fill.yaml: no problems found.\n")
     assert res.ok and not res.checks_failed and not res.warnings
     p_set, droop = 200e5 + ATM, 10e5
     # the regulator holds its outlet within its droop below set, and the cylinder comes up
@@ -384,6 +461,17 @@ def test_nitrogen_regulated_fill_demo_brings_the_cylinder_to_the_set_pressure():
     assert res["cylinder.pressure"].max() <= p_set + 1.0
     assert res["cylinder.pressure"][-1] > p_set - 0.5e5
     assert res.summary()["links"]["regulator"]["fully_open_s"] == 0.0
+
+
+def test_the_report_shows_a_regulators_droop_as_a_pressure_difference():
+    # a droop is a pressure difference: shown in bar, not as "10 bar a (8.99 bar g)"
+    scenario = load_scenario("scenarios/nitrogen-regulated-fill.yaml",
+                             overrides={"run.end": "5 s"})
+    page = render_run_report(cvsim.run(scenario), scenario=scenario, plots=[])
+    used = {c[0]: c[2] for c in report_rows(page, "inputs-used")}
+    assert used["links.regulator.droop"] == "10 bar"
+    assert used["links.regulator.droop_pressure"] == "10 bar"
+    assert used["links.regulator.set_pressure"] == "201.013 bar a (200 bar g)"
 
 
 def test_pi_temperature_controller_holds_a_mixed_stream_at_its_set_point():

@@ -207,6 +207,105 @@ def test_liquid_line_with_elevation_holds_the_static_head():
     assert up.mdot > 0.0 and up.h_to == pytest.approx(up.h_from - GRAVITY * dz, abs=1e-9)
 
 
+def test_fittings_as_equivalent_length_are_cranes_l_over_d():
+    # source: Crane Technical Paper 410 (2009), as implemented in the fluids library's
+    # fittings.K_globe_valve_Crane: a full-bore globe valve is K = 340 f, an equivalent
+    # length of 340 diameters; fluids.one_phase_dP and dP_from_K for the pipe and the
+    # outlet jet (Darcy-Weisbach, Clamond solution of Colebrook). The line multiplies the
+    # equivalent length by the friction factor of the flow (the fd fluids takes).
+    fl = make_fluid("Water")
+    a, b = fl.state_pt(5e5, 293.15), fl.state_pt(1e5, 293.15)
+    D, L, eps = 0.04, 60.0, 4.5e-5
+    f = _flow(_line(fl, length=L, diameter=D, roughness=eps, fittings_length=340 * D), a, b)
+    mu = CP.PropsSI("V", "P", 5e5, "T", 293.15, "Water")
+    V = f.mdot / (a.rho * math.pi * D * D / 4)
+    fd = fluids.friction_factor(Re=a.rho * V * D / mu, eD=eps / D)
+    K_valve = fluids.fittings.K_globe_valve_Crane(D, D, fd=fd)
+    dp = fluids.one_phase_dP(f.mdot, a.rho, mu, D, eps, L) + fluids.dP_from_K(
+        K_valve + 1.0, a.rho, V)
+    assert dp == pytest.approx(4e5, rel=1e-6)
+    # and it is a real resistance: 13.6 m more on 60 m takes a tenth of the flow
+    bare = _flow(_line(fl, length=L, diameter=D, roughness=eps), a, b)
+    assert f.mdot < 0.95 * bare.mdot
+
+
+def test_the_equivalent_length_key_runs_as_that_much_more_line():
+    # the scenario key reaches the line: 5 m of fittings' equivalent length runs as 5 m
+    # more pipe (the definition of an equivalent length; Crane TP 410, ch. 2)
+    given = load_scenario_text(NITROGEN_LINE.replace(
+        "fittings_K: 1.5", "fittings_K: 1.5\n    fittings_equivalent_length: 5 m"))
+    assert given.network.links[0].device.fittings_length == 5.0
+    longer = load_scenario_text(NITROGEN_LINE.replace("length: 30 m", "length: 35 m"))
+    one, two = cvsim.run(given), cvsim.run(longer)
+    base = cvsim.run(load_scenario_text(NITROGEN_LINE))
+    assert np.allclose(one["v.pressure"], two["v.pressure"], rtol=1e-9, atol=0.0)
+    # 5 m more of 30 m is slower (not a key that does nothing)
+    assert one["v.pressure"][-1] > base["v.pressure"][-1] * 1.01
+
+
+def _barometric(fl, p_low, T, dz):
+    """Pressure [Pa] dz [m] above p_low in a still isothermal gas column with Z held at
+    its value at p_low: dp/dz = -rho g, rho = p/(Z R T), so p = p_low exp(-g dz/(Z R T))
+    (hydrostatics of a perfect gas, by hand)."""
+    st = fl.state_pt(p_low, T)
+    R = CP.PropsSI("gas_constant", fl.name) / CP.PropsSI("molar_mass", fl.name)
+    return p_low * math.exp(-GRAVITY * dz / (p_low / (st.rho * R * T) * R * T))
+
+
+def test_a_gas_line_with_elevation_holds_the_barometric_head():
+    # nitrogen at 50 bar, the 'to' end 100 m higher: the head is small (0.56 bar, 1.1 %
+    # of the pressure) but the flow turns at it. Above the barometric pressure of the
+    # column (by a thousandth of the head) the gas runs downhill, below it uphill; at
+    # equal end pressures it runs downhill.
+    fl = make_fluid("Nitrogen")
+    T, dz = 293.15, 100.0
+    a = fl.state_pt(50e5, T)
+    p_top = _barometric(fl, a.p, T, dz)
+    head = a.p - p_top
+    assert head == pytest.approx(0.5638e5, rel=1e-3)   # rho g dz, 57.5 kg/m3 x g x 100 m
+    dev = _line(fl, length=150.0, diameter=0.025, elevation_change=dz)
+    flat = _flow(_line(fl, length=150.0, diameter=0.025), a, fl.state_pt(p_top, T)).mdot
+    up = _flow(dev, a, fl.state_pt(p_top - 1e-3 * head, T))
+    down = _flow(dev, a, fl.state_pt(p_top + 1e-3 * head, T))
+    assert up.mdot > 0.0 > down.mdot
+    assert abs(_flow(dev, a, fl.state_pt(p_top, T)).mdot) < 1e-3 * flat
+    # the stream gains g dz of potential energy going up, gives it back coming down
+    assert up.h_from - up.h_to == pytest.approx(GRAVITY * dz, rel=1e-12)
+    assert down.h_from - down.h_to == pytest.approx(-GRAVITY * dz, rel=1e-12)
+    # equal end pressures: the column's weight drives the gas downhill, as much as the
+    # head drives it through the level line
+    level = _flow(dev, a, fl.state_pt(a.p, T)).mdot
+    assert level < 0.0 and -level == pytest.approx(flat, rel=0.02)
+
+
+def test_a_gas_riser_settles_at_the_barometric_head_and_counts_its_potential_energy():
+    # two nitrogen vessels at one pressure joined by a line rising 100 m: gas runs down
+    # until the lower vessel is above the upper by the column's head, and the energy the
+    # line adds is the potential energy of the gas that came down, g dz per kilogram
+    text = """
+fluid: Nitrogen
+vessels:
+  low: {volume: 2 m3, initial: {pressure: 50 bara, temperature: 20 degC}}
+  high: {volume: 2 m3, initial: {pressure: 50 bara, temperature: 20 degC}}
+links:
+  riser: {from: low, to: high, device: line, length: 150 m, inside_diameter: 25 mm,
+          elevation_change: 100 m}
+run: {end: 60 s, record_every: 1 s}
+"""
+    res = cvsim.run(load_scenario_text(text))
+    assert res.ok and not res.checks_failed and not res.warnings
+    assert res["riser.mass_flow"][1] < 0.0                      # downhill at first
+    p_low, p_high = res["low.pressure"][-1], res["high.pressure"][-1]
+    T = 0.5 * (res["low.temperature"][-1] + res["high.temperature"][-1])
+    fl = make_fluid("Nitrogen")
+    assert p_low - p_high == pytest.approx(p_low - _barometric(fl, p_low, T, 100.0),
+                                           rel=2e-3)
+    came_down = res["low.mass"][-1] - res["low.mass"][0]
+    assert came_down > 0.0
+    assert res.summary()["links"]["riser"]["energy_added_by_device_J"] == pytest.approx(
+        came_down * GRAVITY * 100.0, rel=1e-6)
+
+
 # ------------------------------------------------------------------ runs
 
 NITROGEN_LINE = """

@@ -1,15 +1,19 @@
 """Rupture screening of a vessel's wall in a fire (cvsim.rupture, limits.rupture), on the
 demo scenario: the histories recomputed by hand from the run's pressure and wall
 temperatures, the check, the outcomes, the scenario's errors and target seeking."""
+import json
 import math
 from pathlib import Path
 
 import numpy as np
 import pytest
+from conftest import report_rows, report_text
 
 import cvsim
 from cvsim.errors import ScenarioError
-from cvsim.scenario import load_scenario_text
+from cvsim.report import render_run_report
+from cvsim.rupture import CAUTION_NOTE
+from cvsim.scenario import load_scenario, load_scenario_text
 from cvsim.study.outcomes import outcome_list, outcome_values
 
 DEMO = Path(__file__).resolve().parent.parent / "scenarios" / "gas-vessel-fire-rupture.yaml"
@@ -33,9 +37,14 @@ def retained_uts(T):
 
 
 @pytest.fixture(scope="module")
-def undepressured():
+def undepressured_scenario():
     # the orifice does not open within a 20 minute fire: the relief valve holds ~20 barg
-    return cvsim.run(DEMO, overrides={"links.blowdown.opens_at": "1 h", "run.end": "20 min"})
+    return load_scenario(DEMO, overrides={"links.blowdown.opens_at": "1 h", "run.end": "20 min"})
+
+
+@pytest.fixture(scope="module")
+def undepressured(undepressured_scenario):
+    return cvsim.run(undepressured_scenario)
 
 
 @pytest.fixture(scope="module")
@@ -113,7 +122,62 @@ def test_rupture_files_and_plot(depressured, tmp_path):
                   if not line.startswith("#"))
     assert "vessel.rupture.stress [MPa]" in header
     assert (tmp_path / "rupture.png").exists()
-    assert "utilisation" in (tmp_path / "summary.txt").read_text()
+    summary = (tmp_path / "summary.txt").read_text()
+    assert "utilisation" in summary
+    # the caution that a screening estimate does not replace the code's analysis, in the
+    # summary's text and its data (the lines may wrap in the text)
+    assert " ".join(CAUTION_NOTE.split()) in " ".join(summary.split())
+    limits = json.loads((tmp_path / "summary.json").read_text())["limits"]
+    (rupture,) = [c for c in limits if c.get("key") == "rupture"]
+    assert CAUTION_NOTE in rupture["note"]
+
+
+def test_the_report_gives_the_verdict_the_margin_stresses_in_mpa_and_the_caution(
+        undepressured_scenario, undepressured):
+    r = undepressured
+    page = render_run_report(r, scenario=undepressured_scenario, plots=[])
+    # the verdict and the margin: the limits table's row, from the utilisation history
+    util = r.fine("vessel.rupture.utilisation")
+    (row,) = [c for c in report_rows(page, "limits") if "ultimate tensile strength" in c[3]]
+    assert "CROSSED" in row[1]
+    assert row[4:] == ["1", f"{util.max():.4g}", "20 min", f"{1 - util.max():+.4g}", "L2"]
+    # its note: the moment of rupture, then the stress against the strength in MPa at the
+    # first recorded step past it, and the caution
+    t = r.fine("time")
+    t_cross = r.summary()["vessels"]["vessel"]["rupture_time_s"]
+    k = int(np.searchsorted(t, t_cross))
+    stress, strength = (r.fine(f"vessel.rupture.{q}")[k] / 1e6 for q in ("stress",
+                                                                          "allowed_stress"))
+    assert stress > strength
+    basis = report_text(page, "limits")
+    assert (f"RUPTURE predicted: the stress first reaches the criterion at t = "
+            f"{t_cross:.6g} s (14.69 min), stress {stress:.4g} MPa against {strength:.4g} MPa"
+            ) in basis
+    assert CAUTION_NOTE in basis
+    assert "rupture screening: the wall's stress reaches its ultimate tensile strength at " \
+        f"t = {t_cross:.4g} s" in report_text(page, "warnings")
+    # every value as used: the strength is a stress in MPa, not a pressure in bar a and g
+    used = {c[0].replace("\u200b", ""): c[2] for c in report_rows(page, "inputs-used")}
+    assert used["vessels.vessel.limits.rupture.tensile_strength"] == "485 MPa"
+    assert used["vessels.vessel.limits.design_pressure"] == "21.0132 bar a (20 bar g)"
+    # the same for a yield strength and a creep curve's stresses
+    text = BASE.replace("LAYERS", "{material: carbon-steel, thickness: 10 mm}").replace(
+        "RUPTURE", CREEP.replace("485 MPa,", "485 MPa, yield_strength: 38 ksi,"))
+    scenario = load_scenario_text(text)
+    page = render_run_report(cvsim.run(scenario), scenario=scenario, plots=[])
+    used = {c[0]: c[2] for c in report_rows(page, "inputs-used")}
+    assert used["vessels.v.limits.rupture.yield_strength"] == "262.001 MPa"   # 38 ksi
+    curve = [used[f"vessels.v.limits.rupture.creep.rupture_curve[{i}].1"] for i in range(3)]
+    assert curve == ["300 MPa", "100 MPa", "20 MPa"]
+
+
+def test_an_uncertain_strength_is_a_stress_not_a_pressure():
+    # an uncertainty entry takes the kind of quantity of the key's echo row; a strength
+    # shares the unit Pa with a pressure but has no gauge or absolute value
+    from cvsim.scenario.uncertainty import key_dimension
+    rows = {r.key: r for r in _load().echo}
+    assert key_dimension(rows["vessels.v.limits.rupture.tensile_strength"]) == "stress"
+    assert key_dimension(rows["vessels.v.initial.pressure"]) == "pressure"
 
 
 BASE = """
@@ -208,6 +272,38 @@ def test_a_stated_table_and_the_load_bearing_layer_under_fireproofing():
                        rtol=1e-12)
 
 
+@pytest.mark.parametrize("diameter, thickness, thin", [("1 m", "10 mm", True),
+                                                       ("100 mm", "27 mm", False)])
+def test_a_sphere_in_a_fire_carries_the_sphere_stresses(diameter, thickness, thin):
+    # a sphere's two membrane stresses are equal. Thin (t = 8 mm at R = 502 mm, after a
+    # 2 mm corrosion allowance): source ASME VIII-1 UG-27(d), S = P (R + 0.2 t) / (2 t).
+    # Thick (t = 25 mm at R = 52 mm, beyond t = 0.356 R): the tangential stress at the
+    # bore of a hollow sphere, S = P (b^3 + 2 a^3) / (2 (b^3 - a^3)) (source: Timoshenko &
+    # Goodier, Theory of Elasticity, 3rd ed., the hollow sphere; from memory)
+    text = BASE.replace("{kind: cylinder, inner_diameter: 1 m, length: 2 m}",
+                        f"{{kind: sphere, inner_diameter: {diameter}}}").replace(
+        "LAYERS", f"{{material: carbon-steel, thickness: {thickness}}}").replace(
+        "RUPTURE", "{tensile_strength: 485 MPa, corrosion_allowance: 2 mm}").replace(
+        "outside: {model: natural, ambient: 20 degC}",
+        "outside: {model: natural, ambient: 20 degC, fire: {model: pool, "
+        "drainage_and_firefighting: inadequate}}").replace("10 s", "2 min")
+    r = cvsim.run(load_scenario_text(text))
+    assert r.ok and not r.checks_failed
+    dp = r.fine("v.pressure") - r.network.atmosphere
+    assert dp[-1] > 1.2 * dp[0]                   # the fire heats the gas
+    a = r.network.vessels[0].geometry.inner_diameter / 2 + 0.002
+    t = {"10 mm": 0.008, "27 mm": 0.025}[thickness]
+    b = a + t
+    assert (t <= 0.356 * a) == thin
+    expected = (dp * (a + 0.2 * t) / (2 * t) if thin
+                else dp * (b**3 + 2 * a**3) / (2 * (b**3 - a**3)))
+    assert np.allclose(r.fine("v.rupture.hoop_stress"), expected, rtol=1e-9)
+    assert np.array_equal(r.fine("v.rupture.longitudinal_stress"),
+                          r.fine("v.rupture.hoop_stress"))
+    assert np.array_equal(r.fine("v.rupture.stress"), r.fine("v.rupture.hoop_stress"))
+    assert any("the sphere's layer 1" in a for a in r.assumptions)
+
+
 @pytest.mark.slow
 def test_find_answers_the_orifice_question_on_the_demo():
     # the smallest blowdown orifice that keeps the wall's margin for the 30 minute fire
@@ -222,6 +318,27 @@ def test_find_answers_the_orifice_question_on_the_demo():
     assert rows[result.bracket[1]]["vessel.limit.rupture.met"] is True
     assert rows[result.bracket[0]]["vessel.limit.rupture.met"] is False
     assert not math.isnan(rows[result.bracket[0]]["vessel.rupture_time"])
+
+
+@pytest.mark.slow
+def test_find_answers_the_latest_start_question_on_the_demo(undepressured):
+    # the latest opening of the blowdown orifice that keeps the wall's margin for the
+    # 30 minute fire. The orifice opens at once and the criterion is instantaneous, so
+    # opening just before the moment the wall ruptures without depressuring still saves
+    # it: the answer brackets that moment (14.69 min, from the run that never opens)
+    result = cvsim.seek(DEMO, {"links.blowdown.opens_at": "0 min:15 min"}, meet="limits",
+                        goal="largest", tolerance=0.01, max_runs=12, progress=False)
+    assert result.status == "found" and result.binding == "vessel.limit.rupture"
+    not_met, met = (float(t.split()[0]) for t in result.bracket)
+    assert met < not_met and (not_met - met) <= 0.01 * met
+    rows = {r["links.blowdown.opens_at"]: r for r in result.cases.rows}
+    assert rows[result.bracket[1]]["vessel.limit.rupture.met"] is True
+    assert math.isnan(rows[result.bracket[1]]["vessel.rupture_time"])
+    # too late: the wall ruptures at the moment it does without depressuring
+    t_rupture = undepressured.summary()["vessels"]["vessel"]["rupture_time_s"]
+    assert rows[result.bracket[0]]["vessel.rupture_time"] == pytest.approx(t_rupture,
+                                                                          rel=1e-5)
+    assert met < t_rupture / 60.0 <= not_met
 
 
 CREEP = """{tensile_strength: 485 MPa, creep: {larson_miller_constant: 20,

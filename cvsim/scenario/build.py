@@ -12,7 +12,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from ..errors import Problem, ScenarioError
-from ..network import FluidSpec, Link, Network, RunSettings, StopCondition
+from ..network import FluidSpec, Link, Network, Regulator, RunSettings, StopCondition
 from . import properties, schema, tree
 from . import vessels as vessels_
 from .controllers import build_controller, build_fill
@@ -304,24 +304,36 @@ def _out_of_range(fluid, p: float, T: float, saturated: bool) -> tuple[str, str]
 def warn_devices(network: Network, values, ctx: Context) -> None:
     """Warnings (not errors) on devices that a slip of a unit often explains:
     a relief valve set, or a disc bursting, at or below its vessel's initial
-    pressure (it opens at the start), and a device wider than its vessel."""
+    pressure (it opens at the start); a pressure-reducing regulator set at or
+    above the initial pressure of the node that feeds it (it cannot reduce the
+    pressure); and a device wider than its vessel.
+
+    A regulator's set pressure is not a relief valve's: a pressure-reducing regulator
+    is set below its supply (that is its job), and a back-pressure regulator holding
+    a vessel that starts above its set pressure vents it down to the set pressure,
+    which may well be what was meant, so neither is compared like a relief valve."""
     vessels = {v.name: v for v in network.vessels}
+    reservoirs = {r.name: r for r in network.reservoirs}
     atm = network.atmosphere
     for link in network.links:
         d = link.device
         here = values["links"][link.name]
         source = vessels.get(link.source)
-        for field_, what in (("set_pressure", "set pressure"), ("burst_pressure",
-                                                                 "burst pressure")):
-            p_set = getattr(d, field_, None)
-            if p_set is None or source is None or p_set > source.initial.pressure:
-                continue
-            at = here.where.get(field_, here.at)
-            ctx.record(at, "", None, "", f"warning: the {what} "
-                       f"({(p_set - atm) / 1e5:.4g} bar g) is at or below the initial "
-                       f"pressure of vessel '{source.name}' "
-                       f"({(source.initial.pressure - atm) / 1e5:.4g} bar g): it opens at "
-                       "the start; check the units (barg or bara?)")
+        if isinstance(d, Regulator):
+            if d.holds == "downstream":
+                _warn_regulator_above_supply(link, d, vessels, reservoirs, here, atm, ctx)
+        else:
+            for field_, what in (("set_pressure", "set pressure"), ("burst_pressure",
+                                                                     "burst pressure")):
+                p_set = getattr(d, field_, None)
+                if p_set is None or source is None or p_set > source.initial.pressure:
+                    continue
+                at = here.where.get(field_, here.at)
+                ctx.record(at, "", None, "", f"warning: the {what} "
+                           f"({(p_set - atm) / 1e5:.4g} bar g) is at or below the initial "
+                           f"pressure of vessel '{source.name}' "
+                           f"({(source.initial.pressure - atm) / 1e5:.4g} bar g): it opens "
+                           "at the start; check the units (barg or bara?)")
         area = getattr(d, "area", None)
         if not area:
             continue
@@ -340,6 +352,26 @@ def warn_devices(network: Network, values, ctx: Context) -> None:
                 ctx.record(here.at, "", None, "", f"warning: the opening ({width * 1e3:.4g} "
                            f"mm across) is wider than vessel '{name}' ({basis}, "
                            f"{room * 1e3:.4g} mm); check the units of both")
+
+
+def _warn_regulator_above_supply(link: Link, d: Regulator, vessels, reservoirs, here,
+                                 atm: float, ctx: Context) -> None:
+    """A pressure-reducing regulator set at or above the pressure of its supply at the
+    start cannot hold its outlet at the set pressure: it stays open and passes what the
+    supply gives. Usually a slip of a unit or of the values."""
+    if link.source in vessels:
+        p_in, node = vessels[link.source].initial.pressure, f"vessel '{link.source}'"
+    elif link.source in reservoirs:
+        p_in, node = reservoirs[link.source].pressure(0.0), f"reservoir '{link.source}'"
+    else:
+        return
+    if d.set_pressure < p_in:
+        return
+    ctx.record(here.where.get("set_pressure", here.at), "", None, "",
+               f"warning: the set pressure ({(d.set_pressure - atm) / 1e5:.4g} bar g) is at "
+               f"or above the initial pressure of {node} that feeds the regulator "
+               f"({(p_in - atm) / 1e5:.4g} bar g): it cannot hold its outlet at the set "
+               "pressure and stays open; check the units and the set pressure")
 
 
 def _fluid(values, ctx: Context) -> FluidSpec:

@@ -178,7 +178,8 @@ def _build_regulator(holds: str, band_key: str):
         p_set = values["set_pressure"]
         band = share_or_difference(values[band_key], p_set - ctx.atmosphere)
         ctx.record(values.at.child(f"{band_key}_pressure", None), "(from the set pressure)",
-                   band, "Pa", "the proportional band as a pressure difference")
+                   band, "Pa", "the proportional band as a pressure difference",
+                   kind="pressure_difference")
         return Regulator(holds=holds, set_pressure=p_set, band=band, kv=kv, xt=values["xT"],
                          fl=values["FL"])
     return build

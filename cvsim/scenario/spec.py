@@ -64,6 +64,10 @@ class EchoRow:
     value  the value used: SI number, word, or ``None``
     unit   SI unit of ``value`` (``""`` for words and plain numbers)
     note   what was assumed or computed (gauge reference, default, source)
+    kind   what kind of quantity ``value`` is, where its unit does not tell: a name of
+           :data:`cvsim.units.DIMENSIONS` (``stress``, ``pressure``) or
+           ``pressure_difference``; ``""`` when not known. A stress and a pressure share
+           the unit Pa but are shown differently (MPa against bar a and bar g).
     """
 
     key: str
@@ -71,6 +75,7 @@ class EchoRow:
     value: float | str | None
     unit: str = ""
     note: str = ""
+    kind: str = ""
 
     @property
     def used(self) -> str:
@@ -110,14 +115,15 @@ class Context:
         """True if ``key`` or a key above it was set by an override."""
         return any(key == p or key.startswith((p + ".", p + "[")) for p in self.overridden)
 
-    def record(self, at: At, given, value, unit: str = "", note: str = "") -> None:
+    def record(self, at: At, given, value, unit: str = "", note: str = "",
+               kind: str = "") -> None:
         notes = [note] if note else []
         if at.default:
             notes.insert(0, "default")
         if self.is_overridden(at.key):
             notes.insert(0, "set by override")
         self.echo.append(EchoRow(at.key, shorten(as_text(given)), value, unit,
-                                 "; ".join(notes)))
+                                 "; ".join(notes), kind))
 
 
 def as_text(given) -> str:
@@ -192,8 +198,13 @@ class Quantity(Kind):
         if message:
             ctx.problem(at, message)
             return BAD
-        ctx.record(at, raw, reading.value, dim.symbol, reading.note)
+        ctx.record(at, raw, reading.value, dim.symbol, reading.note, kind=self.echo_kind)
         return reading.value
+
+    @property
+    def echo_kind(self) -> str:
+        """The kind of quantity its echo rows state (:attr:`EchoRow.kind`)."""
+        return self.dimension
 
     def convert(self, raw, ctx) -> units.Reading:
         """Text -> SI reading; subclasses may read other notations."""
@@ -245,7 +256,8 @@ class Quantity(Kind):
             if t is BAD or v is BAD:
                 ok = False
                 continue
-            ctx.record(here, row, v, units.DIMENSIONS[self.dimension].symbol, f"at t = {t:g} s")
+            ctx.record(here, row, v, units.DIMENSIONS[self.dimension].symbol, f"at t = {t:g} s",
+                       kind=self.echo_kind)
             times.append(t)
             values.append(v)
         if not ok:

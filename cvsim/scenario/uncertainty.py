@@ -276,10 +276,13 @@ class Inputs(Kind):
 
 
 def key_dimension(row) -> str:
-    """The kind of quantity of an echo row: from its SI unit; for kelvin, a
-    temperature unless the value was read as a difference (a deadband)."""
+    """The kind of quantity of an echo row: its ``kind`` where the reader stated it
+    (a stress), otherwise from its SI unit; for kelvin, a temperature unless the value
+    was read as a difference (a deadband)."""
     if row.unit in ("", "-"):
         return "fraction"
+    if getattr(row, "kind", "") in units.DIMENSIONS and row.kind != "temperature":
+        return row.kind    # a stress is in Pa, like a pressure
     names = [d.name for d in units.DIMENSIONS.values() if d.symbol == row.unit]
     if "temperature" in names:
         try:

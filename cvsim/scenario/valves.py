@@ -30,6 +30,10 @@ class PressureDifference(Quantity):
 
     dimension: str = "pressure"
 
+    @property
+    def echo_kind(self) -> str:
+        return "pressure_difference"
+
     def convert(self, raw, ctx) -> units.Reading:
         reading = units.read_quantity(raw, "pressure", atmosphere=ctx.atmosphere)
         if reading.reference is not None:
