@@ -23,7 +23,7 @@ from pathlib import Path
 #: helper processes started (the machine these runs are made for has 2 cores)
 HELPERS = 2
 #: relative cost of drawing each figure (the overview has four panels or five)
-COST = {"overview": 2.5}
+COST = {"overview": 3.0, "pressure": 1.5}
 
 
 def _warm_up() -> None:
@@ -70,8 +70,8 @@ def _serve(conn) -> None:
 def _helpers(theirs: list, mine: list) -> None:
     """The first helper's life: drop the main process's ends of the pipes (so that the
     helpers see the end of their pipe when the main process ends, however it ends), warm
-    up, fork one more helper per further pipe, then serve the first pipe. Forked helpers
-    leave with ``os._exit``: they never run the main process's exit handlers."""
+    up, fork one more helper per further pipe, then serve the first pipe. Every helper
+    leaves with ``os._exit``: none runs the main process's exit handlers."""
     for conn in mine:
         conn.close()
     children = []
@@ -93,16 +93,16 @@ def _helpers(theirs: list, mine: list) -> None:
             children.append(pid)
             conn.close()
         _serve(theirs[0])
-    except (EOFError, OSError, KeyboardInterrupt, SystemExit):
-        return
-    except BaseException:  # stopped while warming up
-        return
-    finally:
-        for pid in children:
-            try:
-                os.waitpid(pid, 0)
-            except (ChildProcessError, InterruptedError, OSError):
-                pass
+    except BaseException:  # the pipe closed, or the command was stopped while warming up
+        pass
+    for pid in children:
+        try:
+            os.waitpid(pid, 0)
+        except (ChildProcessError, InterruptedError, OSError):
+            pass
+    # leave at once: the clean-up of a process forked from the command (its imported
+    # libraries, its exit handlers) is not this helper's to run, and the command waits
+    os._exit(0)
 
 
 def _light(result):
