@@ -263,6 +263,28 @@ def check_vessel(name: str, limits, atmosphere: float, t, pressure, gas_temperat
             "temperature", limits.min_metal_temperature, T_min, t_min,
             bool(T_min >= limits.min_metal_temperature), T_min - limits.min_metal_temperature,
             "K", MDMT_SOURCE, note, key="min_metal_temperature"))
+        # a wall split at the liquid level: each part's own lowest metal temperature and
+        # margin, for information (the verdict is the check above, on the colder part)
+        parts: dict[tuple[str, str], list] = {}
+        for column, values in walls.items():
+            label, _, rest = column.removeprefix(name + ".").partition(".")
+            part = rest.split(".")[0]
+            if part in ("wetted", "unwetted"):
+                parts.setdefault((label, part), []).append((_extreme(t, values, "min"),
+                                                            column))
+        for (label, part), found in sorted(parts.items(),
+                                           key=lambda kv: (kv[0][0], kv[0][1] != "wetted")):
+            (T_p, t_p), col = min(found, key=lambda m: m[0][0])
+            out.append(LimitCheck(
+                name, f"lowest metal temperature of the {part} part of the {label} against "
+                "the minimum design metal temperature", "temperature",
+                limits.min_metal_temperature, T_p, t_p,
+                bool(T_p >= limits.min_metal_temperature),
+                T_p - limits.min_metal_temperature, "K", MDMT_SOURCE,
+                f"each part of a wall split at the liquid level, for information: the "
+                f"verdict is the wall's check, on the colder part; lowest at "
+                f"{_where(col.removeprefix(name + '.' + label + '.'))}",
+                key=f"min_metal_temperature.{label}.{part}", informative=True))
         if walls:
             Tg, tg = _extreme(t, gas_temperature, "min")
             out.append(LimitCheck(

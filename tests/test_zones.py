@@ -334,6 +334,16 @@ def test_mdmt_of_a_split_wall_is_checked_on_the_coldest_part_and_names_it(blowdo
     assert check.limit == pytest.approx(273.15 - 29.0)
     assert check.met == (check.actual >= check.limit)
     assert check.margin == pytest.approx(check.actual - check.limit)
+    # issue 13: the MDMT on each wall part, with its own lowest metal temperature and
+    # margin, for information (the verdict above is not counted again)
+    for part in ("wetted", "unwetted"):
+        (row,) = [c for c in r.limits if c.key == f"min_metal_temperature.wall.{part}"]
+        assert row.informative and row.limit == check.limit
+        assert row.actual == pytest.approx(lowest[part], abs=1e-12)
+        assert row.margin == pytest.approx(lowest[part] - check.limit)
+        assert f"of the {part} part" in row.note
+    assert [c.key for c in r.limits_crossed].count("min_metal_temperature") <= 1
+    assert not any(c.key.startswith("min_metal_temperature.wall") for c in r.limits_crossed)
 
 
 def test_mdmt_names_the_unwetted_part_when_it_is_the_colder():
