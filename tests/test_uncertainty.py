@@ -329,6 +329,26 @@ def test_same_seed_same_study_and_failed_cases_kept(blowdown):
     assert len(one.used) == 6 - short.sum()
 
 
+@pytest.mark.slow
+def test_an_uncertainty_study_on_a_dask_cluster_gives_the_local_table(blowdown):
+    """The same seed on a Dask cluster (processes on this machine) gives the same
+    design, the same rows and the same percentiles as local worker processes."""
+    distributed = pytest.importorskip("distributed")
+    args = dict(inputs={"links.vent.discharge_coefficient":
+                        "{distribution: normal, standard_deviation: 0.04, highest: 1}"},
+                cases=6, seed=7, progress=False)
+    local = cvsim.uncertainty(blowdown, workers=2, **args)
+    with distributed.LocalCluster(processes=True, n_workers=2, threads_per_worker=1,
+                                  host="127.0.0.1", dashboard_address=None) as cluster:
+        remote = cvsim.uncertainty(blowdown, cluster=cluster.scheduler_address, **args)
+    assert remote.table.ran_on.startswith("Dask cluster at tcp://127.0.0.1:")
+    assert np.array_equal(local.design.values, remote.design.values)
+    assert same_rows(local.table.rows, remote.table.rows)
+    assert all(r["status"] != "failed" for r in remote.table.rows)
+    for p in (5, 50, 95):
+        assert remote.percentile("end_time", p) == local.percentile("end_time", p)
+
+
 def same_rows(a, b) -> bool:
     """Rows equal value for value (NaN equal to NaN)."""
     def same(x, y):
