@@ -313,6 +313,32 @@ def test_fire_demo_heats_the_unwetted_wall_above_the_wetted_one():
     assert wall.actual == pytest.approx(s["max_unwetted_wall_temperature_K"])
 
 
+def test_pool_fire_heat_of_a_split_wall_follows_api_521_by_hand():
+    """The fire heat of a wall split at the level, worked by hand at every recorded
+    point: API 521's wetted-surface input Q = 43 200 F A_wet^0.82 [W] (adequate drainage,
+    A in m2) on the wetted part, where A_wet is the outside of the horizontal bullet
+    below the level (shell: L D_o acos(1 - 2 h_o/D_o); two hemispherical heads, a whole
+    sphere's zone: pi D_o h_o; the wetted arc is the same angle inside and out, so
+    h_o = h D_o/D_i), plus, on the part above the level, the flux cvsim gives a
+    gas-filled wall, Q(A_reach)/A_reach, over the exposed area (the whole vessel is
+    within 7.6 m of the fire here, so A_reach = pi D_o L + pi D_o^2).
+    source: API Standard 521 (ISO 23251), fire-exposure section, SI form (the wetted
+    input); the unwetted flux is cvsim's screening choice (decisions Z9)."""
+    sc = load_scenario(SCENARIOS / "propane-bullet-separated-fire.yaml", {"run.end": "2 min"})
+    r = run_network(sc.network)
+    assert r.ok
+    D_i, t_w, L = 2.0, 0.016, 8.0   # the demo's bullet and its 16 mm wall
+    D_o = D_i + 2.0 * t_w
+    h_o = r["bullet.liquid_level"] * D_o / D_i
+    A_wet = L * D_o * np.arccos(1.0 - 2.0 * h_o / D_o) + math.pi * D_o * h_o
+    assert r["bullet.wall.fire_wetted_area"] == pytest.approx(A_wet, rel=1e-12)
+    A_reach = math.pi * D_o * L + math.pi * D_o**2
+    wetted_input = 43200.0 * A_wet**0.82
+    above = (A_reach - A_wet) * 43200.0 * A_reach**0.82 / A_reach
+    assert r["bullet.wall.fire_heat"] == pytest.approx(wetted_input + above, rel=1e-9)
+    assert 0.3 < float(np.min(above / (wetted_input + above))) < 0.5   # both parts matter
+
+
 def test_mdmt_of_a_split_wall_is_checked_on_the_coldest_part_and_names_it(blowdown_demo):
     """One minimum-design-metal-temperature check per wall, at the coldest column of
     either part (every surface and node, wetted or unwetted), naming the part."""
