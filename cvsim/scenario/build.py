@@ -204,7 +204,11 @@ def _outlet(v, vessels: dict, fluid, ctx: Context):
         ctx.problem(at, f"outlet_height {height:g} m is above the inside height of "
                     f"'{vessel.name}' ({top:g} m): give a height from 0 to {top:g} m")
         return None, None
-    return height, share_below(geometry, min(height, top))
+    share = share_below(geometry, min(height, top))
+    ctx.record(v.at.child("share_below_outlet", None), "(from shape)", share, "",
+               "share of the volume below the outlet: it draws vapour below the level, liquid "
+               "above (draws is not used)")
+    return height, share
 
 
 def build_network(values, ctx: Context) -> Network | None:

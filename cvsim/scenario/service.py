@@ -71,8 +71,8 @@ def liquid_reasons(link, phases: dict[str, str], vessel_names,
     elif phases.get(src) == "two-phase" and draws != "vapour":
         f = (fractions or {}).get(src)
         if f is None or f > draws - 0.5 * BAND:
-            out.append(f"its outlet_height is at or below the liquid level of the two-phase "
-                       f"vessel '{src}'" if f is not None else
+            out.append(f"the liquid level of the two-phase vessel '{src}' starts at or above "
+                       "the band around its outlet_height" if f is not None else
                        f"its outlet_height may be below the liquid level of the two-phase "
                        f"vessel '{src}'")
     if isinstance(link.device, REVERSIBLE) and phases.get(tgt) == "liquid":
