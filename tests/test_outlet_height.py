@@ -138,6 +138,23 @@ def test_side_outlet_draws_liquid_above_the_level_and_vapour_below(drained):
     assert md[above[-1]] > 2.0 * md[below[0]]
 
 
+def test_heated_closed_drum_side_outlet_draws_vapour_then_liquid_as_the_level_rises():
+    """The drum 80 % liquid, heated 1 MW with only a 1 mm drain: the liquid swells past a
+    side outlet at 1.7 m (85 % of the volume); it draws saturated vapour before and
+    saturated liquid after."""
+    r = run_network(drum("outlet_height: 1.7 m", drain="1 mm", end="70 s", **{
+        "liquid_fraction: 60 %}": "liquid_fraction: 80 %}\n    heat: {load: 1 MW}"}).network)
+    assert r.ok and not r.checks_failed, [c.text() for c in r.checks_failed]
+    f, md, p = r["drum.liquid_fraction"], r["side.mass_flow"], r["drum.pressure"]
+    below = np.flatnonzero(f < 0.835)
+    above = np.flatnonzero(f > 0.865)
+    assert len(below) > 10 and len(above) > 10 and below[-1] < above[0]
+    for i, q in ((below[0], 1.0), (below[-1], 1.0), (above[0], 0.0), (above[-1], 0.0)):
+        h0, s0 = saturated(p[i], q)   # saturated vapour, then liquid, at the pressure
+        assert md[i] == pytest.approx(CD * SIDE_AREA * brute_force_flux(p[i], h0, s0),
+                                      rel=1e-5)
+
+
 def test_side_outlet_flow_moves_smoothly_across_the_band(drained):
     """In the band the flow lies between the liquid's and the vapour's and falls with the
     level; no recorded step (1 s) takes more than half the change across the band (a
@@ -230,3 +247,18 @@ def test_outlet_height_refused_on_a_reservoir_and_for_mixtures():
         drum(**{"fluid: Propane\nproperties: real":
                 "fluid: {name: lpg, components: {Propane: 0.9, n-Butane: 0.1}}",
                 "liquid_fraction: 60 %": "pressure: 7 bara"})
+
+
+def test_liquid_service_at_the_start_follows_the_level():
+    """The start-of-run check: a side outlet below the starting level (60 % of the volume)
+    passes liquid, one above it passes gas; an orifice with the perfect-gas form cannot
+    pass liquid, so below the level it is a problem named at the link."""
+    rows = {r.key: r for r in drum("outlet_height: 1.0 m").echo}
+    assert "homogeneous-equilibrium" in rows["links.side.liquid_service"].used
+    # a flat-headed vertical cylinder: pi R^2 z / (pi R^2 L), half at mid-height
+    assert float(rows["links.side.share_below_outlet"].used) == pytest.approx(0.5, rel=1e-9)
+    rows = {r.key: r for r in drum("outlet_height: 1.5 m").echo}
+    assert "links.side.liquid_service" not in rows
+    with pytest.raises(ScenarioError, match=r"links\.side.*passes liquid.*outlet_height"):
+        drum("outlet_height: 1.0 m, flow_model: ideal-gas")
+    drum("outlet_height: 1.5 m, flow_model: ideal-gas")   # above the level: gas, accepted
