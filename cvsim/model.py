@@ -48,7 +48,7 @@ import numpy as np
 
 from . import contents
 from . import network as nw
-from .errors import StateError
+from .errors import FluidError, StateError
 from .flow.base import NO_FLOW, Flow
 from .flow.control_valve import ControlValveDevice
 from .flow.disc import BurstingDiscDevice, CheckValveDevice
@@ -132,7 +132,6 @@ class Model:
         for vrt, vdef in zip(self.vessels, network.vessels):
             if vdef.zones is not None:
                 if self.mix is not None:
-                    from .errors import FluidError
                     raise FluidError(f"vessel '{vdef.name}': separated vapour and liquid "
                                      "zones are not built for mixtures; hold it in "
                                      "equilibrium (one zone)")
@@ -175,6 +174,12 @@ class Model:
         self.draws_liquid = any(k == "liquid" for k in self.draw_keys)
         #: the shares of the volume below the side outlets (``outlet_height``)
         self.side_outlets = sorted({k for k in self.draw_keys if not isinstance(k, str)})
+        if self.mix is not None:
+            for link in self.links:
+                if link.outlet_height is not None:
+                    raise FluidError(f"link '{link.name}': outlet_height is not built for "
+                                     "mixtures in this version; use draws: vapour or draws: "
+                                     "liquid")
         self.devices = []
         for i, link in enumerate(self.links):
             cls = DEVICE_TYPES[type(link.device)]

@@ -262,3 +262,19 @@ def test_liquid_service_at_the_start_follows_the_level():
     with pytest.raises(ScenarioError, match=r"links\.side.*passes liquid.*outlet_height"):
         drum("outlet_height: 1.0 m, flow_model: ideal-gas")
     drum("outlet_height: 1.5 m, flow_model: ideal-gas")   # above the level: gas, accepted
+
+
+def test_a_network_given_directly_refuses_a_side_outlet_on_a_mixture():
+    """Below the scenario reader (a network built in Python) the model refuses it too."""
+    import dataclasses
+
+    from cvsim.errors import FluidError
+    from cvsim.model import Model
+    net = drum("draws: vapour", **{
+        "fluid: Propane\nproperties: real":
+        "fluid: {name: lpg, components: {Propane: 0.9, n-Butane: 0.1}}",
+        "liquid_fraction: 60 %": "pressure: 7 bara"}).network
+    links = tuple(dataclasses.replace(k, outlet_height=1.0, outlet_share=0.5)
+                  if k.name == "side" else k for k in net.links)
+    with pytest.raises(FluidError, match="link 'side': outlet_height.*mixtures"):
+        Model(dataclasses.replace(net, links=links))
