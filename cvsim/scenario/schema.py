@@ -121,7 +121,8 @@ LINK = Section(
         Field("draws", Choice(("vapour", "liquid")),
               "What leaves the `from` vessel through this link while it holds two "
               "phases: `vapour` (top outlet) or `liquid` (bottom outlet, flashing through "
-              "the device). Reverse flow draws vapour.", default="vapour"),
+              "the device). Reverse flow draws vapour. An outlet between the two: "
+              "`outlet_height` instead.", default="vapour"),
         Field("outlet_height", Quantity("length", at_least=0.0),
               "Height of the outlet above the `from` vessel's inside bottom, instead of "
               "`draws` (vessels given by their shape; 0 up to the inside height): it draws "
