@@ -278,3 +278,37 @@ def test_a_network_given_directly_refuses_a_side_outlet_on_a_mixture():
                   if k.name == "side" else k for k in net.links)
     with pytest.raises(FluidError, match="link 'side': outlet_height.*mixtures"):
         Model(dataclasses.replace(net, links=links))
+
+
+def test_relief_sizing_takes_the_phase_at_the_outlet_height():
+    """`cvsim relief` on a two-phase vessel sizes on the phase at the outlet's height at
+    the relieving level: an outlet low in the liquid as `draws: liquid` (flashing), one
+    high in the vapour space as `draws: vapour`."""
+    from cvsim.sizing import size_relief
+    bullet = """
+title: bullet
+fluid: Propane
+vessels:
+  bullet:
+    shape: {kind: cylinder, inner_diameter: 2 m, length: 8 m, orientation: horizontal,
+            heads: hemispherical}
+    initial: {temperature: 20 degC, liquid_fraction: 60 %}
+    limits: {design_pressure: 17.5 barg, accumulation: fire}
+reservoirs:
+  atmosphere: {pressure: 1 atm, temperature: 20 degC}
+links:
+  psv: {from: bullet, to: atmosphere, device: relief-valve, set_pressure: 17.5 barg,
+        blowdown: 7 %, orifice_letter: D, OUTLET}
+run: {end: 10 s, record_every: 1 s}
+"""
+    W = 20000 / 3600
+
+    def sized(outlet):
+        net = load_scenario_text(bullet.replace("OUTLET", outlet)).network
+        return size_relief(net, "psv", load=W, confirm=False)
+    low, liquid = sized("outlet_height: 0.3 m"), sized("draws: liquid")
+    high, vapour = sized("outlet_height: 1.7 m"), sized("draws: vapour")
+    assert low.service == liquid.service == "flashing"
+    assert low.required_area == liquid.required_area
+    assert high.service == vapour.service == "vapour"
+    assert high.required_area == vapour.required_area

@@ -1,9 +1,9 @@
 """What each link will pass at the start: gas, or liquid from a vessel that holds it.
 
 A link passes liquid when it draws liquid from a vessel that starts with two
-phases (``draws: liquid``, or an ``outlet_height`` at or below the starting level,
-within the band where it draws both), when its upstream vessel starts liquid-full, or when
-a reservoir at its end is a liquid. Every device kind says, through
+phases (``draws: liquid``, or an ``outlet_height`` whose band reaches up to the
+starting level), when its upstream vessel starts liquid-full, or when a reservoir
+at its end is a liquid. Every device kind says, through
 :data:`~cvsim.scenario.registry.LIQUID_SERVICE`, whether it can model that
 and with which equations; a device that cannot is a problem of the scenario,
 named at the link with what to do, so that ``cvsim check`` refuses it before
