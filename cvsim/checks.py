@@ -59,7 +59,7 @@ from dataclasses import asdict, dataclass
 import numpy as np
 
 from .errors import StateError
-from .outlets import drawn_quality
+from .outlets import drawn_by, drawn_quality
 from .zones import liquid_share_drawn
 
 #: largest relative state residual accepted at a recorded point (the state solve
@@ -341,7 +341,7 @@ def _stream_rates(h: _Histories, vessel: str) -> np.ndarray:
             if md == 0.0 or md != md:
                 continue
             if md > 0.0:
-                h_up, _, _, f_up, _ = h.stream(link.source, link.draws, i)
+                h_up, _, _, f_up, _ = h.stream(link.source, drawn_by(link), i)
                 h_in = h_up - g_dz
                 if delivery is not None:
                     p_to = h.col(f"{link.target}.pressure")[i]
@@ -449,7 +449,7 @@ def liquid_zone_balances(h: _Histories) -> list[Check]:
             for link in h.net.links:
                 md = h.col(f"{link.name}.mass_flow")[i]
                 if md > 0.0 and link.source == name:
-                    draws = link.draws
+                    draws = drawn_by(link)
                 elif md < 0.0 and link.target == name:
                     draws = "vapour"
                 else:
@@ -508,7 +508,7 @@ def _component_rates(h: _Histories, vessel: str) -> np.ndarray:
             md = mdot[i]
             if md == 0.0 or md != md:
                 continue
-            up, draws = (link.source, link.draws) if md > 0.0 else (link.target, "vapour")
+            up, draws = (link.source, drawn_by(link)) if md > 0.0 else (link.target, "vapour")
             w = h.stream(up, draws, i)[4]
             if link.target == vessel:
                 rate[i] += md * w
@@ -574,7 +574,7 @@ def link_entropy(h: _Histories) -> list[Check]:
             md = mdot[i]
             if md == 0.0 or md != md:
                 continue
-            up, down, draws = ((link.source, link.target, link.draws) if md > 0.0 else
+            up, down, draws = ((link.source, link.target, drawn_by(link)) if md > 0.0 else
                                (link.target, link.source, "vapour"))
             h_up, s_up, _, f_up, _ = h.stream(up, draws, i)
             p_down = h.col(f"{down}.pressure")[i]

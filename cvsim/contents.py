@@ -52,6 +52,18 @@ def liquid_level(geometry: Geometry, liquid_fraction: float) -> float:
     return t.level(liquid_fraction * t.volume)
 
 
+def inside_height(geometry: Geometry) -> float:
+    """Inside height [m] of a vessel given by its shape (NaN for one given by its volume)."""
+    return _tank(geometry).height if has_level(geometry) else math.nan
+
+
+def share_below(geometry: Geometry, height: float) -> float:
+    """Share [-] of the volume of a vessel given by its shape that lies below ``height``
+    [m] above its inside bottom (the liquid share at which the level stands there)."""
+    t = _tank(geometry)
+    return min(max(t.volume_below(height) / t.volume, 0.0), 1.0)
+
+
 def columns(vessel: Vessel) -> list[tuple[str, str, str]]:
     """The history columns of a vessel's contents: (name, SI unit, kind)."""
     out = [(f"{vessel.name}.liquid_fraction", "-", "vessel")]

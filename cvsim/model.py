@@ -48,7 +48,7 @@ import numpy as np
 
 from . import contents
 from . import network as nw
-from .errors import StateError
+from .errors import FluidError, StateError
 from .flow.base import NO_FLOW, Flow
 from .flow.control_valve import ControlValveDevice
 from .flow.disc import BurstingDiscDevice, CheckValveDevice
@@ -59,7 +59,7 @@ from .flow.orifice import OrificeDevice
 from .flow.regulator import RegulatorDevice
 from .flow.relief import ReliefValveDevice
 from .engines import fluid_for
-from .outlets import drawn_state
+from .outlets import drawn_by, drawn_state
 from .heat.definitions import GasFire, Wall
 from .heat.level import forget_levels
 from .heat.loads import AmbientExchangeTerm, HeatLoadTerm
@@ -132,7 +132,6 @@ class Model:
         for vrt, vdef in zip(self.vessels, network.vessels):
             if vdef.zones is not None:
                 if self.mix is not None:
-                    from .errors import FluidError
                     raise FluidError(f"vessel '{vdef.name}': separated vapour and liquid "
                                      "zones are not built for mixtures; hold it in "
                                      "equilibrium (one zone)")
@@ -170,7 +169,17 @@ class Model:
 
         # links
         self.links = list(network.links)
-        self.draws_liquid = any(link.draws == "liquid" for link in self.links)
+        #: what each link draws from its ``from`` vessel (:func:`cvsim.outlets.drawn_by`)
+        self.draw_keys = [drawn_by(link) for link in self.links]
+        self.draws_liquid = any(k == "liquid" for k in self.draw_keys)
+        #: the shares of the volume below the side outlets (``outlet_height``)
+        self.side_outlets = sorted({k for k in self.draw_keys if not isinstance(k, str)})
+        if self.mix is not None:
+            for link in self.links:
+                if link.outlet_height is not None:
+                    raise FluidError(f"link '{link.name}': outlet_height is not built for "
+                                     "mixtures in this version; use draws: vapour or draws: "
+                                     "liquid")
         self.devices = []
         for i, link in enumerate(self.links):
             cls = DEVICE_TYPES[type(link.device)]
@@ -444,15 +453,18 @@ class States:
     are the states a stream leaving each node carries through a top outlet
     (vapour when two phases are present), ``liquid`` those through a bottom
     outlet (saturated liquid when two phases are present; ``None`` when no link
-    draws liquid)."""
+    draws liquid); ``side[f_o]`` those through a side outlet with a share f_o of the
+    volume below it (``None`` without side outlets)."""
 
-    __slots__ = ("t", "states", "outflow", "liquid", "y", "w_out", "w_liq")
+    __slots__ = ("t", "states", "outflow", "liquid", "y", "w_out", "w_liq", "side")
 
-    def __init__(self, t, states, outflow, liquid=None, y=None, w_out=None, w_liq=None):
+    def __init__(self, t, states, outflow, liquid=None, y=None, w_out=None, w_liq=None,
+                 side=None):
         self.t = t
         self.states = states
         self.outflow = outflow
         self.liquid = liquid
+        self.side = side
         #: the state vector they were made from (controllers read their own states)
         self.y = y
         #: a mixture run: mass fractions of the top- and bottom-outlet streams per node
@@ -531,6 +543,11 @@ class Segment:
         if m.draws_liquid:
             liquid = [zoned[i].drawn(st, "liquid")[0] if i in zoned else
                       drawn_state(fluid, st, "liquid") for i, st in enumerate(states)]
+        side = None
+        if m.side_outlets:
+            side = {f_o: [zoned[i].drawn(st, f_o)[0] if i in zoned else
+                          drawn_state(fluid, st, f_o) for i, st in enumerate(states)]
+                    for f_o in m.side_outlets}
         for r in m.reservoirs:
             p = self.signal(r.pressure, t)
             T = self.signal(r.temperature, t)
@@ -539,7 +556,10 @@ class Segment:
             outflow.append(st)
             if liquid is not None:
                 liquid.append(st)
-        s = States(t, states, outflow, liquid, y)
+            if side is not None:
+                for drawn in side.values():
+                    drawn.append(st)
+        s = States(t, states, outflow, liquid, y, side=side)
         self._key, self._states = key, s
         return s
 
@@ -594,6 +614,7 @@ class Segment:
             return s, self._flows
         flows = []
         gates = self.model.gates
+        keys = self.model.draw_keys
         for c in self.model.valve_controllers:
             self.driven[c.link] = c.output(t, y, s, self)
         for d in self.model.devices:
@@ -601,7 +622,9 @@ class Segment:
             if gate is not None and self.discrete[gate[0]][0] != gate[1]:
                 flows.append(NO_FLOW)  # a link of a sequence whose step is not active
                 continue
-            source = s.liquid if self.model.links[d.index].draws == "liquid" else s.outflow
+            key = keys[d.index]
+            source = (s.outflow if key == "vapour" else s.liquid if key == "liquid" else
+                      s.side[key])
             try:
                 flows.append(d.flow(t, source[d.source], s.outflow[d.target], self))
             except StateError as exc:
@@ -645,7 +668,7 @@ class Segment:
                 dydt[2 * d.target] += mdot
                 dydt[2 * d.target + 1] += e_tgt
             if zoned:   # the part of a stream leaving a liquid zone (entering: the vapour)
-                left, draws = ((d.source, m.links[k].draws) if mdot > 0.0 else
+                left, draws = ((d.source, m.draw_keys[k]) if mdot > 0.0 else
                                (d.target, "vapour"))
                 zv = zoned.get(left)
                 if zv is not None:
@@ -661,7 +684,7 @@ class Segment:
             if m.mix is not None:
                 # component flows: the mass fractions of what the stream draws
                 if mdot > 0.0:
-                    w = (s.w_liq if m.links[k].draws == "liquid" else s.w_out)[d.source]
+                    w = (s.w_liq if m.draw_keys[k] == "liquid" else s.w_out)[d.source]
                 else:
                     w = s.w_out[d.target]
                 nc = m.mix.nc

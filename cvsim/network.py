@@ -453,6 +453,10 @@ class Link:
     draws  what leaves the ``source`` vessel through this link when two phases are
            present in it: ``vapour`` (an outlet at the top) or ``liquid`` (at the
            bottom). A stream leaving the ``target`` (reverse flow) draws vapour.
+    outlet_height  [m] height of the outlet above the ``source`` vessel's inside bottom
+           (vessels given by their shape); ``None``: the outlet is where ``draws`` says
+    outlet_share   [-] share of the ``source`` vessel's volume below ``outlet_height``
+           (what :func:`cvsim.outlets.drawn_by` reads); ``None`` without a height
     """
 
     name: str
@@ -460,6 +464,8 @@ class Link:
     target: str
     device: Device
     draws: str = "vapour"
+    outlet_height: float | None = None
+    outlet_share: float | None = None
 
 
 # ---------------------------------------------------------------- sequences

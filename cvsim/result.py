@@ -399,6 +399,10 @@ def assumptions(model: Model) -> list[str]:
                + (" (saturated liquid through links that draw liquid: "
                   + ", ".join(k.name for k in net.links if k.draws == "liquid") + ")"
                   if any(k.draws == "liquid" for k in net.links) else "")
+               + (" (a side outlet (" + ", ".join(k.name for k in net.links
+                                                  if k.outlet_height is not None)
+                  + ") draws vapour while the level is below it and liquid while above it)"
+                  if any(k.outlet_height is not None for k in net.links) else "")
                + "; an outlet draws the mixture itself as the level comes within 2 % of the "
                "volume of it (a regularisation, common practice, no source: cvsim.outlets).")
     kinds = {type(link.device).__name__ for link in net.links}

@@ -41,6 +41,7 @@ from .fluid import root_on_bracket
 from .limits import ACCUMULATION
 from .units import PSI
 from .network import FixedFlow, Network, ReliefValve
+from .outlets import drawn_by
 from .relief_loads import (WALL_TEMPERATURE_CARBON_STEEL, api521_unwetted_factor,
                            api521_unwetted_load, latent_heat_load, max_set_pressure,
                            relieving_pressure, vapour_generation_load)
@@ -395,7 +396,10 @@ def size_relief(network: Network, link_name: str, *, load: float | None = None,
             "'cvsim run'.")
     if contents.two_phase:
         liq, vap = fluid.saturated_liquid_at_p(p1), fluid.saturated_vapour_at_p(p1)
-        stream = liq if link.draws == "liquid" else vap
+        draws = drawn_by(link)
+        if not isinstance(draws, str):  # a side outlet: the phase at its height
+            draws = "liquid" if contents.liquid_fraction >= draws else "vapour"
+        stream = liq if draws == "liquid" else vap
     else:
         stream = contents
     flows_liquid = passes_liquid(stream)

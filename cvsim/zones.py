@@ -59,7 +59,7 @@ from .heat.boiling import (HORIZONTAL_SURFACE_STABLE, HORIZONTAL_SURFACE_UNSTABL
                            nu_horizontal_surface)
 from .heat.convection import G, RangeWatch, prandtl, rayleigh
 from .heat.walls import WATCH_MIN_DIFFERENCE
-from .outlets import F_BOTTOM, F_TOP
+from .outlets import F_BOTTOM, F_TOP, side_liquid_share
 
 #: the pressures of the two zones agree to |p_l - p_v| <= SPLIT_RTOL p
 SPLIT_RTOL = 1e-11
@@ -460,11 +460,12 @@ class ZonedVessel:
         return (a_l - a_v) / (b_l + b_v)
 
     # ------------------------------------------------------------ outlets
-    def drawn(self, z: ZonedState, draws: str):
+    def drawn(self, z: ZonedState, draws):
         """(state drawn, share of its mass from the liquid zone) through an outlet at the
-        top (``vapour``) or bottom (``liquid``); near liquid-full (top) or dry (bottom)
-        the outlet draws a mixture of the zones' streams, linear in the liquid share as
-        :mod:`cvsim.outlets` (its F_TOP, F_BOTTOM)."""
+        top (``vapour``), bottom (``liquid``) or side (the share of the volume below it,
+        :func:`cvsim.outlets.drawn_by`); near liquid-full (top), dry (bottom) or the
+        side outlet's height the outlet draws a mixture of the zones' streams, linear in
+        the liquid share as :mod:`cvsim.outlets` (its F_TOP, F_BOTTOM, BAND)."""
         w = liquid_share_drawn(draws, z.liquid_fraction, z.liquid is not None)
         if w == 0.0:
             return z.vapour, 0.0
@@ -547,16 +548,20 @@ class ZonedVessel:
             + ", the sum evaporating or condensing at the interface (two-film model)."]
 
 
-def liquid_share_drawn(draws: str, liquid_fraction: float, has_liquid: bool) -> float:
+def liquid_share_drawn(draws, liquid_fraction: float, has_liquid: bool) -> float:
     """Mass share [-] of an outlet's stream that comes from the liquid zone: a top outlet
     (``vapour``) 0 up to a liquid share of the volume F_TOP, rising linearly to 1 at a
     full vessel; a bottom outlet (``liquid``) 1 down to F_BOTTOM, falling linearly to 0
-    at an empty one (the rule of :mod:`cvsim.outlets` applied to the zones' streams)."""
+    at an empty one; a side outlet (``draws`` the share of the volume below it) 0 below
+    its band, 1 above it, linear across it (the rule of :mod:`cvsim.outlets` applied to
+    the zones' streams)."""
     if not has_liquid:
         return 0.0
     f = liquid_fraction
     if draws == "liquid":
         return 1.0 if f >= F_BOTTOM else max(f / F_BOTTOM, 0.0)
+    if draws != "vapour":
+        return side_liquid_share(draws, f)
     return 0.0 if f <= F_TOP else min((f - F_TOP) / (1.0 - F_TOP), 1.0)
 
 

@@ -11,6 +11,7 @@ import math
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from ..contents import has_level, inside_height, share_below
 from ..errors import Problem, ScenarioError
 from ..network import FluidSpec, Link, Network, Regulator, RunSettings, StopCondition
 from . import properties, schema, tree
@@ -175,6 +176,41 @@ def _ordered(problems: list[Problem]) -> list[Problem]:
     return sorted(problems, key=lambda p: (p.line is None, p.line or 0))
 
 
+def _outlet(v, vessels: dict, fluid, ctx: Context):
+    """(outlet height [m], share of the vessel's volume below it [-]) of a link with
+    ``outlet_height``, or (None, None); a problem where the height cannot be placed."""
+    height = v.get("outlet_height")
+    if height is None:
+        return None, None
+    at = v.where["outlet_height"]
+    vessel = vessels.get(v["from"])
+    if vessel is None:
+        ctx.problem(at, f"outlet_height places an outlet on the 'from' vessel, but "
+                    f"'{v['from']}' is a reservoir: leave outlet_height out")
+        return None, None
+    if fluid.model == "mixture":
+        ctx.problem(at, "outlet_height is not built for mixtures in this version (the "
+                    "phases a side outlet draws are not split by composition): use draws: "
+                    "vapour or draws: liquid")
+        return None, None
+    geometry = vessel.geometry
+    if not has_level(geometry):
+        ctx.problem(at, f"outlet_height needs the vessel '{vessel.name}' given by its shape "
+                    "(a level needs one): give its shape instead of its volume, or use "
+                    "draws: vapour or draws: liquid")
+        return None, None
+    top = inside_height(geometry)
+    if height > top * (1.0 + 1e-12):
+        ctx.problem(at, f"outlet_height {height:g} m is above the inside height of "
+                    f"'{vessel.name}' ({top:g} m): give a height from 0 to {top:g} m")
+        return None, None
+    share = share_below(geometry, min(height, top))
+    ctx.record(v.at.child("share_below_outlet", None), "(from shape)", share, "",
+               "share of the volume below the outlet: it draws vapour below the level, liquid "
+               "above (draws is not used)")
+    return height, share
+
+
 def build_network(values, ctx: Context) -> Network | None:
     """The :class:`~cvsim.network.Network` from values read without problems."""
     fluid = _fluid(values, ctx)
@@ -186,10 +222,12 @@ def build_network(values, ctx: Context) -> Network | None:
     #: compositions of the reservoirs that supply their own (mixture runs)
     ctx.supplies = {r.name: r.composition for r in reservoirs if r.composition is not None}
     links = []
+    by_name = {vessel.name: vessel for vessel in vessels}
     for name, v in (values["links"] or {}).items():
         device = v.variant.build(v, ctx)
+        height, share = _outlet(v, by_name, fluid, ctx)
         links.append(Link(name=name, source=v["from"], target=v["to"], device=device,
-                          draws=v["draws"]))
+                          draws=v["draws"], outlet_height=height, outlet_share=share))
     check_liquid_service(fluid, vessels, reservoirs, links,
                          {name: v.at for name, v in (values["links"] or {}).items()}, ctx)
     linked = {n for link in links for n in (link.source, link.target)}

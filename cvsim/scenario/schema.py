@@ -103,6 +103,10 @@ def _check_link(values, ctx) -> None:
     elif a in reservoirs and b in reservoirs:
         ctx.problem(values.at, f"the link joins two reservoirs ('{a}' and '{b}'); a flow "
                     "between imposed states changes nothing: one end must be a vessel")
+    if values.get("outlet_height") is not None and "draws" in values.given:
+        ctx.problem(values.where["outlet_height"],
+                    "outlet_height and draws are two ways of placing the outlet: give one "
+                    "(draws: vapour is an outlet at the top, draws: liquid one at the bottom)")
 
 
 LINK = Section(
@@ -117,7 +121,14 @@ LINK = Section(
         Field("draws", Choice(("vapour", "liquid")),
               "What leaves the `from` vessel through this link while it holds two "
               "phases: `vapour` (top outlet) or `liquid` (bottom outlet, flashing through "
-              "the device). Reverse flow draws vapour.", default="vapour"),
+              "the device). Reverse flow draws vapour. An outlet between the two: "
+              "`outlet_height` instead.", default="vapour"),
+        Field("outlet_height", Quantity("length", at_least=0.0),
+              "Height of the outlet above the `from` vessel's inside bottom, instead of "
+              "`draws` (vessels given by their shape; 0 up to the inside height): it draws "
+              "vapour while the liquid level is below it, liquid while the level is above "
+              "it, and both across the band of levels around it that holds 2 % of the "
+              "volume. Not with mixtures in this version. Reverse flow draws vapour."),
     ),
     variant=("device", DEVICES),
     checks=(_check_link,),

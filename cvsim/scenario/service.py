@@ -1,8 +1,9 @@
 """What each link will pass at the start: gas, or liquid from a vessel that holds it.
 
 A link passes liquid when it draws liquid from a vessel that starts with two
-phases (``draws: liquid``), when its upstream vessel starts liquid-full, or when
-a reservoir at its end is a liquid. Every device kind says, through
+phases (``draws: liquid``, or an ``outlet_height`` whose band reaches up to the
+starting level), when its upstream vessel starts liquid-full, or when a reservoir
+at its end is a liquid. Every device kind says, through
 :data:`~cvsim.scenario.registry.LIQUID_SERVICE`, whether it can model that
 and with which equations; a device that cannot is a problem of the scenario,
 named at the link with what to do, so that ``cvsim check`` refuses it before
@@ -15,6 +16,7 @@ from __future__ import annotations
 
 from ..errors import CvsimError
 from ..network import ControlValve, Line, Orifice
+from ..outlets import BAND, drawn_by
 from .registry import LIQUID_SERVICE
 
 #: device kinds that pass reverse flow (from their ``to`` node)
@@ -54,15 +56,25 @@ def _phase(fluid, p: float, T: float) -> str:
     return "two-phase" if fluid.model == "mixture" and st.two_phase else "gas"
 
 
-def liquid_reasons(link, phases: dict[str, str], vessel_names) -> list[str]:
-    """Why ``link`` passes liquid at the start (empty: it does not)."""
+def liquid_reasons(link, phases: dict[str, str], vessel_names,
+                   fractions: dict | None = None) -> list[str]:
+    """Why ``link`` passes liquid at the start (empty: it does not); ``fractions`` are
+    the vessels' starting liquid shares of the volume (``None`` where not stated)."""
     out = []
     src, tgt = link.source, link.target
+    draws = drawn_by(link)
     if phases.get(src) == "liquid":
         what = "vessel" if src in vessel_names else "reservoir"
         out.append(f"its 'from' {what} '{src}' holds liquid only")
-    elif phases.get(src) == "two-phase" and link.draws == "liquid":
+    elif phases.get(src) == "two-phase" and draws == "liquid":
         out.append(f"it draws liquid from the two-phase vessel '{src}'")
+    elif phases.get(src) == "two-phase" and draws != "vapour":
+        f = (fractions or {}).get(src)
+        if f is None or f > draws - 0.5 * BAND:
+            out.append(f"the liquid level of the two-phase vessel '{src}' starts at or above "
+                       "the band around its outlet_height" if f is not None else
+                       f"its outlet_height may be below the liquid level of the two-phase "
+                       f"vessel '{src}'")
     if isinstance(link.device, REVERSIBLE) and phases.get(tgt) == "liquid":
         what = "vessel" if tgt in vessel_names else "reservoir"
         out.append(f"reverse flow would come from the liquid in its 'to' {what} '{tgt}'")
@@ -84,8 +96,9 @@ def check_liquid_service(fluid_spec, vessels, reservoirs, links, link_at, ctx) -
         return
     phases = node_phases(fluid_spec, vessels, reservoirs)
     names = {v.name for v in vessels}
+    fractions = {v.name: v.initial.liquid_fraction for v in vessels}
     for link in links:
-        reasons = liquid_reasons(link, phases, names)
+        reasons = liquid_reasons(link, phases, names, fractions)
         check = LIQUID_SERVICE.get(type(link.device))
         if not reasons or check is None:
             continue

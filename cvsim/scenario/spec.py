@@ -536,6 +536,8 @@ class Values(dict):
         self.at = at
         self.where: dict[str, At] = {}
         self.variant: Variant | None = None
+        #: the keys written in the file (the others took their default or nothing)
+        self.given: set[str] = set()
 
     def ok(self, *names: str) -> bool:
         """True if each named value was read without a problem."""
@@ -584,6 +586,7 @@ def read_section(raw, section: Section, at: At, ctx: Context):
         here = at.child(f.name, lines.get(f.name))
         values.where[f.name] = here
         if f.name in raw:
+            values.given.add(f.name)
             values[f.name] = f.kind.read(raw[f.name], here, ctx)
         elif f.required and f.name not in in_group:
             ctx.problem(At(here.key, at.line),
