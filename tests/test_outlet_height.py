@@ -312,3 +312,19 @@ run: {end: 10 s, record_every: 1 s}
     assert low.required_area == liquid.required_area
     assert high.service == vapour.service == "vapour"
     assert high.required_area == vapour.required_area
+
+
+def test_a_fast_drain_of_separated_zones_passes_its_first_law_check():
+    """A 25 mm drain of the drum held as separated zones, past a side outlet: the first
+    law recomputed from the histories closes within the quadrature's error plus the
+    integrator's own allowance on U (rtol |U|, U from CoolProp's reference). With a
+    floor of 1e-6 of the energy turned over only, this run failed its check (2.2e-6
+    against 1.4e-6) though its energy is right to the solver's tolerance: at rtol 1e-8
+    the same run closes to 1e-7."""
+    from cvsim.checks import ENERGY_CONTENT_SHARE
+    assert ENERGY_CONTENT_SHARE <= 1.0  # no more than the integrator's own tolerance
+    r = run_network(drum("outlet_height: 1.0 m", phases="phases: {model: separated}",
+                         drain="25 mm", end="90 s").network)
+    assert r.ok and not r.checks_failed, [c.text() for c in r.checks_failed]
+    (law,) = [c for c in r.checks if c.name == "first law of vessel 'drum'"]
+    assert law.value < law.tolerance < 1e-5
