@@ -47,6 +47,22 @@ run: {end: 1 h}
 """
 
 
+IDEAL_VENT = """
+title: Ideal-gas vent of a small tank
+fluid: Nitrogen
+properties: ideal-gas
+ideal_gas: {molar_mass: 28.0134 g/mol, heat_capacity: 1040 J/kg/K}
+vessels:
+  tank: {volume: 0.5 m3, initial: {pressure: 10 barg, temperature: 15 degC}}
+reservoirs:
+  outside: {pressure: 1 atm, temperature: 15 degC}
+links:
+  vent: {from: tank, to: outside, device: orifice, diameter: 5 mm, discharge_coefficient: 0.8,
+         flow_model: ideal-gas}
+run: {end: 20 s}
+"""
+
+
 @pytest.fixture
 def air14():
     return ideal_air(1.4)

@@ -6,7 +6,7 @@ from pathlib import Path
 
 import pytest
 
-from conftest import COLD_BLOWDOWN
+from conftest import COLD_BLOWDOWN, IDEAL_VENT
 
 from cvsim.cli import main
 
@@ -172,20 +172,7 @@ def test_relief_sizing_json_carries_the_caution(tmp_path, capsys):
     assert record["caution"] == CAUTION
 
 
-VENT = """
-title: Vent for the CSV test
-fluid: Nitrogen
-properties: ideal-gas
-ideal_gas: {molar_mass: 28.0134 g/mol, heat_capacity: 1040 J/kg/K}
-vessels:
-  tank: {volume: 0.5 m3, initial: {pressure: 10 barg, temperature: 15 degC}}
-reservoirs:
-  outside: {pressure: 1 atm, temperature: 15 degC}
-links:
-  vent: {from: tank, to: outside, device: orifice, diameter: 5 mm, discharge_coefficient: 0.8,
-         flow_model: ideal-gas}
-run: {end: 5 s}
-"""
+VENT = IDEAL_VENT.replace("run: {end: 20 s}", "run: {end: 5 s}")
 
 
 def test_decimal_comma_csv_reads_back_in_a_decimal_comma_locale(tmp_path):

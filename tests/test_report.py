@@ -14,6 +14,7 @@ from html.parser import HTMLParser
 from pathlib import Path
 
 import pytest
+from conftest import IDEAL_VENT
 
 from cvsim import __version__
 from cvsim import network as nw
@@ -396,22 +397,6 @@ def test_a_run_that_failed_before_its_first_record_still_gives_a_report():
     assert set(RUN_SECTIONS) - {"inputs-given", "inputs-used"} <= set(tree.ids())
     assert "No plots" in tree.by_id("plots").text()
     assert "FAILED" in tree.by_id("failed").text()
-
-
-IDEAL_VENT = """
-title: Ideal-gas vent for the report test
-fluid: Nitrogen
-properties: ideal-gas
-ideal_gas: {molar_mass: 28.0134 g/mol, heat_capacity: 1040 J/kg/K}
-vessels:
-  tank: {volume: 0.5 m3, initial: {pressure: 10 barg, temperature: 15 degC}}
-reservoirs:
-  outside: {pressure: 1 atm, temperature: 15 degC}
-links:
-  vent: {from: tank, to: outside, device: orifice, diameter: 5 mm, discharge_coefficient: 0.8,
-         flow_model: ideal-gas}
-run: {end: 20 s}
-"""
 
 
 def test_report_without_plot_files_still_embeds_the_plots(tmp_path):
