@@ -45,9 +45,6 @@ if TYPE_CHECKING:
 BAR = 1e5                 # [Pa]
 ZERO_CELSIUS = 273.15     # [K]
 DPI = 150
-#: PNG encoder settings: zlib level 3 writes about three times faster than the default
-#: 6 for files a tenth larger (measured on the demo plots, benchmarks/bench_outputs.py)
-PNG_OPTIONS = {"compress_level": 3}
 OVERVIEW_SIZE = (11.0, 8.0)   # [in] fits a landscape A4 page inside its margins
 SINGLE_SIZE = (10.0, 6.0)     # [in]
 MAX_EVENT_LABELS = 8      # more events than this: lines only, no text
@@ -331,6 +328,7 @@ def _pressure(ax, view: _View, overview: bool):
     gauge = ax.secondary_yaxis("right", functions=(lambda b: b - atm, lambda g: g + atm))
     gauge.set_ylabel(f"Pressure [bar g]  (atmosphere {atm:.4g} bar a)", fontsize=8)
     gauge.tick_params(labelsize=8)
+    gauge.ticklabel_format(axis="y", useOffset=False)  # as the bar a axis: whole values
     _finish(ax, view, "Pressure", floor=1e-3, overview=overview, event_labels=True)
 
 
@@ -722,13 +720,12 @@ def _note(ax, text: str):
 
 def _finish(ax, view: _View, title: str, floor: float | None, overview: bool,
             event_labels: bool = False, legend_outside: bool = False):
-    """Title, grid, y range, event lines and legend of a panel.
+    """Grid, y range, event lines, legend and title of a panel.
 
     floor  smallest y span shown [plot unit] (with at least 1e-3 of the largest
            value), so that a flat line does not show rounding noise as ticks;
            ``None``: the panel sets its own range
     """
-    ax.set_title(title, fontsize=10, loc="left")
     ax.grid(True, which="major", color="0.85", lw=0.6)
     ax.set_axisbelow(True)
     ax.ticklabel_format(axis="y", useOffset=False)
@@ -748,6 +745,45 @@ def _finish(ax, view: _View, title: str, floor: float | None, overview: bool,
                       framealpha=0.9)
     else:
         place_legend(ax, size, obstacles)
+    # the y range is final here: the title is set last, fixed at the top where it can be
+    ax.set_title(title, fontsize=10, loc="left", y=1.0 if title_fits_at_top(ax) else None)
+
+
+#: a y axis whose range reaches this size [plot unit], or stays below the smaller one, may
+#: be labelled with a power of ten above it (matplotlib's ``axes.formatter.limits``, -5 and
+#: 6: an exponent when the largest tick is from 1e6 up or below 1e-4; the smaller bound
+#: leaves room for ticks that stay inside the range)
+EXPONENT_FROM = 1e6
+EXPONENT_BELOW = 1e-3
+
+
+def title_fits_at_top(ax) -> bool:
+    """Whether nothing can be drawn over the panel ``ax`` that its title must clear, so
+    that the title can be fixed at the top (``set_title(..., y=1.0)``), where matplotlib
+    puts it in that case.
+
+    Otherwise matplotlib searches, at every draw (and twice more for the layout), for tick
+    labels set on top of the panel and for an offset or power-of-ten text over a y axis,
+    its own or a secondary one's: about a tenth of the drawing time
+    (benchmarks/bench_outputs.py). True when every y axis of the panel has a plain number
+    format without offset and a range from :data:`EXPONENT_BELOW` to below
+    :data:`EXPONENT_FROM` (or no ticks), and no x ticks or label are on top. The pixels are
+    the same either way; only the search is saved. Call it once the y range is final."""
+    from matplotlib.ticker import ScalarFormatter
+
+    for axes in (ax, *ax.child_axes):
+        if (axes.xaxis.get_ticks_position() != "bottom"
+                or axes.xaxis.get_label_position() != "bottom"):
+            return False
+        formatter = axes.yaxis.get_major_formatter()
+        if not isinstance(formatter, ScalarFormatter) or formatter.get_useOffset():
+            return False
+        if not len(axes.yaxis.get_ticklocs()):
+            continue  # no ticks (an empty panel): no labels, no exponent
+        top = max(abs(float(v)) for v in axes.get_ylim())
+        if not EXPONENT_BELOW <= top < EXPONENT_FROM:
+            return False
+    return True
 
 
 def _panel_size(ax, view: _View, overview: bool) -> tuple[float, float]:
@@ -896,24 +932,27 @@ def _hits_boxes(boxes, box) -> bool:
 
 # ---------------------------------------------------------------- figures
 
-def save(fig, path: Path) -> None:
-    """Write ``fig`` (made by :func:`figure`, at :data:`DPI`) as PNG with :data:`PNG_OPTIONS`.
+def save(fig, path) -> None:
+    """Write ``fig`` (made by :func:`figure`, at :data:`DPI`) as PNG to ``path`` (a file
+    name, or a binary file object).
 
     One draw on the Agg canvas (layout and rendering) and the canvas's pixels written as
-    they are: ``Figure.savefig`` would first draw once more without rendering to lay the
-    figure out, which costs about a tenth of the time for the same pixels (checked pixel
-    for pixel on the demo plots; benchmarks/bench_outputs.py)."""
+    they are by :func:`cvsim.png.png_bytes`: ``Figure.savefig`` would first draw once more
+    without rendering to lay the figure out, and Pillow's encoder tries every filter on
+    every row; together about a fifth of the time for the same pixels (checked pixel for
+    pixel on every demo's plots; benchmarks/bench_outputs.py)."""
     from matplotlib import __version__ as mpl_version
-    from PIL import Image, PngImagePlugin
 
     from . import __version__
+    from .png import png_bytes
     canvas = fig.canvas
     canvas.draw()
-    width, height = canvas.get_width_height(physical=True)
-    image = Image.frombuffer("RGBA", (width, height), canvas.buffer_rgba(), "raw", "RGBA", 0, 1)
-    info = PngImagePlugin.PngInfo()
-    info.add_text("Software", f"cvsim {__version__} (Matplotlib {mpl_version})")
-    image.save(path, format="png", dpi=(fig.dpi, fig.dpi), pnginfo=info, **PNG_OPTIONS)
+    data = png_bytes(np.asarray(canvas.buffer_rgba()), dpi=fig.dpi,
+                     text={"Software": f"cvsim {__version__} (Matplotlib {mpl_version})"})
+    if hasattr(path, "write"):
+        path.write(data)
+    else:
+        Path(path).write_bytes(data)
 
 
 @contextlib.contextmanager
@@ -928,18 +967,19 @@ def _figure(size: tuple[float, float], view: _View):
 def figure(size: tuple[float, float], title: str, subtitle: str, alarm: bool = False):
     """A figure on the Agg canvas with the header (title, subtitle in dark red
     when ``alarm``) and footer (caution, version) drawn and the space between
-    them left to the panels; cleared on leaving."""
+    them left to the panels.
+
+    The figure is not cleared on leaving: that would rebuild every axis only to throw it
+    away (about 3 % of the drawing time); the garbage collector takes it (drawing 60
+    overview-sized figures in one process holds the memory at 157 MB)."""
     from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
 
     fig = Figure(figsize=size, dpi=DPI, layout="constrained")
     FigureCanvasAgg(fig)
-    try:
-        top, bottom = _frame(fig, title, subtitle, alarm)
-        fig.get_layout_engine().set(rect=(0.0, bottom, 1.0, top - bottom))
-        yield fig
-    finally:
-        fig.clear()
+    top, bottom = _frame(fig, title, subtitle, alarm)
+    fig.get_layout_engine().set(rect=(0.0, bottom, 1.0, top - bottom))
+    yield fig
 
 
 def _frame(fig, title_text: str, subtitle: str, alarm: bool) -> tuple[float, float]:
