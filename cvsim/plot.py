@@ -772,8 +772,10 @@ def title_fits_at_top(ax) -> bool:
     from matplotlib.ticker import ScalarFormatter
 
     for axes in (ax, *ax.child_axes):
-        if (axes.xaxis.get_ticks_position() != "bottom"
-                or axes.xaxis.get_label_position() != "bottom"):
+        if axes.xaxis.get_label_position() != "bottom" or any(
+                params.get("top") or params.get("labeltop")
+                for params in (axes.xaxis.get_tick_params(which="major"),
+                               axes.xaxis.get_tick_params(which="minor"))):
             return False
         formatter = axes.yaxis.get_major_formatter()
         if not isinstance(formatter, ScalarFormatter) or formatter.get_useOffset():

@@ -571,3 +571,59 @@ def test_what_the_helpers_receive_loads_neither_solver_nor_property_library(tmp_
     out = subprocess.run([sys.executable, "-c", code, str(path)], capture_output=True,
                          text=True, check=True)
     assert out.stdout.split() == ["False", "False"]
+
+
+# ---------------------------------------------------------------- fixed panel titles
+
+def _panel_pixels(y_values, pin: bool, top_ticks: bool = False):
+    """A panel as the run plots draw it (offset off, a left title), its title fixed at
+    the top (``pin``) or placed by matplotlib; the canvas pixels."""
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.figure import Figure
+    fig = Figure(figsize=(4, 3), dpi=80, layout="constrained")
+    FigureCanvasAgg(fig)
+    ax = fig.subplots()
+    ax.plot([0.0, 1.0], y_values)
+    ax.ticklabel_format(axis="y", useOffset=False)
+    if top_ticks:
+        ax.xaxis.set_ticks_position("top")
+    ax.set_title("Pressure", fontsize=10, loc="left", y=1.0 if pin else None)
+    fig.canvas.draw()
+    return np.asarray(fig.canvas.buffer_rgba()).copy(), ax
+
+
+def test_title_fixed_where_nothing_is_above_the_panel_same_pixels():
+    from cvsim.plot import title_fits_at_top
+    auto, ax = _panel_pixels([1.0, 150.0], pin=False)
+    assert title_fits_at_top(ax)
+    pinned, _ = _panel_pixels([1.0, 150.0], pin=True)
+    assert np.array_equal(auto, pinned)
+
+
+@pytest.mark.parametrize("y_values, top_ticks", [([0.0, 3.0e7], False),   # 1e7 over the axis
+                                                  ([0.0, 2.0e-5], False),  # 1e-5 over it
+                                                  ([1.0, 150.0], True)])   # ticks on top
+def test_title_left_to_matplotlib_where_something_may_be_above(y_values, top_ticks):
+    """Where a power of ten or tick labels sit above the panel, matplotlib moves the title
+    up; fixing it there would draw the title over them, so it is not fixed."""
+    from cvsim.plot import title_fits_at_top
+    auto, ax = _panel_pixels(y_values, pin=False, top_ticks=top_ticks)
+    assert not title_fits_at_top(ax)
+    pinned, _ = _panel_pixels(y_values, pin=True, top_ticks=top_ticks)
+    assert not np.array_equal(auto, pinned)  # the guard matters: the pixels would differ
+
+
+def test_title_not_fixed_over_a_secondary_axis_with_an_offset():
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.figure import Figure
+
+    from cvsim.plot import title_fits_at_top
+    fig = Figure()
+    FigureCanvasAgg(fig)
+    ax = fig.subplots()
+    ax.plot([0.0, 1.0], [1.0, 150.0])
+    ax.ticklabel_format(axis="y", useOffset=False)
+    gauge = ax.secondary_yaxis("right", functions=(lambda b: b - 1.0, lambda g: g + 1.0))
+    assert not title_fits_at_top(ax)  # the gauge's formatter may write an offset
+    gauge.ticklabel_format(axis="y", useOffset=False)
+    assert title_fits_at_top(ax)
