@@ -16,7 +16,7 @@ import threading
 import warnings
 from pathlib import Path
 
-from . import __version__
+from . import __version__, collector
 from .cliargs import parse_overrides
 
 DESCRIPTION = """\
@@ -160,6 +160,7 @@ def _run(args, painters) -> int:
     from .scenario import load_scenario
 
     scenario = load_scenario(args.scenario, overrides=parse_overrides(args.overrides))
+    collector.settle()  # the libraries are loaded (see command())
     out = args.out or Path("results") / args.scenario.stem
     with claim(out):  # checked and locked before solving: a wrong --out costs nothing
         _say_warnings(scenario_warnings(scenario))
@@ -252,6 +253,7 @@ def _relief(args, painters) -> int:
     from .units import parse_quantity
 
     scenario = load_scenario(args.scenario, overrides=parse_overrides(args.overrides))
+    collector.settle()  # the libraries are loaded (see command())
     net = scenario.network
     kw = {}
     try:
@@ -364,6 +366,9 @@ def main(argv: list[str] | None = None) -> int:
 #: commands that start no worker pool or cluster client: after them the process may
 #: leave without the interpreter's clean-up
 QUICK_EXIT = {"run", "check", "relief", "fluids"}
+#: commands that load their libraries with the garbage collector paused (cvsim.collector)
+#: and resume it once the scenario is read
+LOAD_PAUSED = {"run", "relief"}
 
 
 def command(argv: list[str] | None = None) -> None:
@@ -374,8 +379,15 @@ def command(argv: list[str] | None = None) -> None:
     flushed: tearing down the imported libraries (the property library, SciPy,
     matplotlib) would add about 0.1 s to every run for nothing
     (benchmarks/bench_outputs.py). Other commands leave the usual way, so that worker
-    pools and cluster clients shut down by their own handlers."""
+    pools and cluster clients shut down by their own handlers.
+
+    The commands in :data:`LOAD_PAUSED` load their libraries with the garbage collector
+    paused and resume it, with everything loaded frozen out of its sight, once the
+    scenario is read (:mod:`cvsim.collector`; the plotting helpers, forked paused, once
+    matplotlib is loaded): about 0.1 s of the demo run."""
     argv = sys.argv[1:] if argv is None else argv
+    if argv and argv[0] in LOAD_PAUSED:
+        collector.pause()
     try:
         code = main(argv)
         sys.stdout.flush()

@@ -20,6 +20,8 @@ import os
 import pickle
 from pathlib import Path
 
+from . import collector
+
 #: helper processes started (the machine these runs are made for has 2 cores)
 HELPERS = 2
 #: relative cost of drawing each figure (the overview has four panels or five)
@@ -77,6 +79,7 @@ def _helpers(theirs: list, mine: list) -> None:
     children = []
     try:
         _warm_up()
+        collector.settle()  # matplotlib is loaded: out of the collector's sight
         for i, conn in enumerate(theirs[1:], start=1):
             pid = os.fork()
             if pid == 0:  # the new helper: keeps its own pipe only
