@@ -17,7 +17,7 @@ _LAZY = {
     "load_scenario": ("cvsim.scenario", "load_scenario"),
     "load_scenario_text": ("cvsim.scenario", "load_scenario_text"),
     "Result": ("cvsim.result", "Result"),
-    "CAUTION": ("cvsim.result", "CAUTION"),
+    "CAUTION": ("cvsim.caution", "CAUTION"),
     "write_run_outputs": ("cvsim.outputs", "write_run_outputs"),
     "sweep": ("cvsim.study.sweep", "sweep"),
     "SweepResult": ("cvsim.study.table", "SweepResult"),

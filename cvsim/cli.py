@@ -154,6 +154,8 @@ def _painters(wanted: bool):
 
 
 def _run(args, painters) -> int:
+    from . import preload
+    preload.start()  # CoolProp's fluids load in the background (after the helpers' fork)
     from .api import run
     from .outfolder import claim
     from .outputs import summary_text, write_run_outputs
@@ -216,6 +218,8 @@ def _say_warnings(warnings: list[str]) -> None:
 
 
 def cmd_check(args) -> int:
+    from . import preload
+    preload.start()  # as in _run
     from .scenario import load_scenario
     scenario = load_scenario(args.scenario, overrides=parse_overrides(args.overrides))
     warnings = scenario_warnings(scenario)
@@ -244,6 +248,8 @@ def cmd_relief(args) -> int:
 
 
 def _relief(args, painters) -> int:
+    from . import preload
+    preload.start()  # as in _run
     import json
     from .errors import CvsimError
     from .display import jsonable

@@ -1004,7 +1004,7 @@ def _frame(fig, title_text: str, subtitle: str, alarm: bool) -> tuple[float, flo
     y -= len(sub) * SUBTITLE_PT * spacing * to_frac + pad * to_frac
 
     from . import __version__
-    from .result import CAUTION
+    from .caution import CAUTION  # not .result, which loads the solver
     foot = _wrap(CAUTION, width, FOOTER_PT) + [f"cvsim {__version__}"]
     fig.text(0.012, pad * to_frac, "\n".join(foot), ha="left", va="bottom",
              fontsize=FOOTER_PT, color="0.3", linespacing=spacing)

@@ -12,6 +12,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from .caution import CAUTION
 from .contents import run_figures
 from .histories import EXTREME_RTOL, Histories
 from .flow.exponent import EXPONENT_ASSUMPTION
@@ -21,9 +22,6 @@ from .rupture import add_rupture
 from .solve import RawRun
 from .zones import run_figures as zone_figures
 
-CAUTION = ("Screening estimate - verify against the governing codes (e.g. ASME Section VIII, "
-           "API 520/521, ISO 4126, ISO 23251, local regulations) and have it reviewed by a "
-           "qualified engineer.")
 
 
 @dataclass

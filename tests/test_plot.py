@@ -627,3 +627,26 @@ def test_title_not_fixed_over_a_secondary_axis_with_an_offset():
     assert not title_fits_at_top(ax)  # the gauge's formatter may write an offset
     gauge.ticklabel_format(axis="y", useOffset=False)
     assert title_fits_at_top(ax)
+
+
+def test_drawing_a_run_loads_neither_the_solver_nor_the_property_library(tmp_path):
+    """The plotting helpers draw from a run's histories alone: drawing every plot in a
+    fresh process loads no SciPy, no CoolProp and no solver module (each would cost the
+    helpers a few tenths of a second of the command's time)."""
+    import pickle
+
+    from cvsim.painters import _light
+    (tmp_path / "run.pickle").write_bytes(pickle.dumps(_light(limited_vent())))
+    script = (
+        "import pickle, sys\n"
+        "from pathlib import Path\n"
+        "from cvsim import plot\n"
+        f"folder = Path({str(tmp_path)!r})\n"
+        "result = pickle.loads((folder / 'run.pickle').read_bytes())\n"
+        "assert plot.plot_run(result, folder / 'plots')\n"
+        "print(sorted(m for m in sys.modules if m.split('.')[0] in ('scipy', 'CoolProp')\n"
+        "             or m in ('cvsim.result', 'cvsim.solve', 'cvsim.model', 'cvsim.fluid')))\n")
+    done = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True,
+                          timeout=300)
+    assert done.returncode == 0, done.stderr
+    assert done.stdout.strip() == "[]"
