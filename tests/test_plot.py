@@ -650,3 +650,17 @@ def test_drawing_a_run_loads_neither_the_solver_nor_the_property_library(tmp_pat
                           timeout=300)
     assert done.returncode == 0, done.stderr
     assert done.stdout.strip() == "[]"
+
+
+def test_helpers_run_at_a_lower_priority():
+    """The helpers leave the cores to the command while it loads (cvsim.painters.NICE)."""
+    from cvsim.painters import NICE, Painters
+    painters = Painters.start()
+    if painters is None:
+        pytest.skip("no plotting helpers on this machine (one core or no fork)")
+    with painters:
+        pids = _helper_pids(painters)
+        assert len(pids) == 2
+        mine = os.getpriority(os.PRIO_PROCESS, 0)
+        assert [os.getpriority(os.PRIO_PROCESS, pid) for pid in pids] == \
+            [min(mine + NICE, 19)] * 2
