@@ -99,9 +99,11 @@ class _WaitBeforeImport:
 
 def start() -> bool:
     """Start loading CoolProp's fluid library in the background; False when it is not
-    (CoolProp imported already, a load started already, no library file found)."""
+    (CoolProp imported already, a load started already, no library file found, or the
+    environment sets ``CVSIM_PRELOAD=0``)."""
     global _loader
-    if _loader is not None or "CoolProp" in sys.modules:
+    if (_loader is not None or "CoolProp" in sys.modules
+            or os.environ.get("CVSIM_PRELOAD", "").strip() == "0"):
         return False
     path = library_file()
     if path is None:

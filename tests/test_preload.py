@@ -73,3 +73,10 @@ def test_without_the_c_interface_coolprop_loads_as_usual():
                   "import CoolProp.CoolProp as CP\n"
                   "print(preload.wait().get('skipped'), len(CP.FluidsList()) > 100)\n")
     assert out.strip() == "no C interface found True"
+
+
+def test_turned_off_by_the_environment():
+    out = subprocess.run([sys.executable, "-c", "from cvsim import preload; print(preload.start())"],
+                         capture_output=True, text=True, timeout=120,
+                         env={**os.environ, "CVSIM_PRELOAD": "0"}).stdout
+    assert out.strip() == "False"
