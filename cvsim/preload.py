@@ -99,8 +99,8 @@ class _WaitBeforeImport:
 
 def start() -> bool:
     """Start loading CoolProp's fluid library in the background; False when it is not
-    (CoolProp imported already, a load started already, no library file found, or the
-    environment sets ``CVSIM_PRELOAD=0``)."""
+    (CoolProp imported already, a load started already, no library file found, no
+    ctypes in this Python, or the environment sets ``CVSIM_PRELOAD=0``)."""
     global _loader
     if (_loader is not None or "CoolProp" in sys.modules
             or os.environ.get("CVSIM_PRELOAD", "").strip() == "0"):
@@ -108,7 +108,10 @@ def start() -> bool:
     path = library_file()
     if path is None:
         return False
-    import ctypes  # here: the thread must import nothing (see _load)
+    try:
+        import ctypes  # here: the thread must import nothing (see _load)
+    except ImportError:  # a Python built without it: CoolProp loads as usual
+        return False
     sys.meta_path.insert(0, _WaitBeforeImport())
     _loader = threading.Thread(target=_load, args=(ctypes, path),
                                name="cvsim-coolprop-load", daemon=True)

@@ -80,3 +80,13 @@ def test_turned_off_by_the_environment():
                          capture_output=True, text=True, timeout=120,
                          env={**os.environ, "CVSIM_PRELOAD": "0"}).stdout
     assert out.strip() == "False"
+
+
+def test_a_python_without_ctypes_loads_coolprop_as_usual():
+    out = _python("import sys\n"
+                  "sys.modules['ctypes'] = None  # as a Python built without it\n"
+                  "from cvsim import preload\n"
+                  "print(preload.start())\n"
+                  "import CoolProp.CoolProp as CP\n"
+                  "print(len(CP.FluidsList()) > 100)\n")
+    assert out.split() == ["False", "True"]
